@@ -1,0 +1,290 @@
+//! Reaction equations: `2 Al(cr) + Fe2O3(s) -> Al2O3(s) + 2 Fe(cr)`.
+//!
+//! Arrows: `->`, `=>`, `=`, `<=>` (and `→`, `⇌`). Coefficients are optional and may be integers,
+//! decimals (`0.5 O2`) or fractions (`1/2 O2(g)`); a space after the coefficient is optional
+//! (`2H2O`). Species on one side are separated by a `+` with a space before it, or by a `+` written
+//! directly before an upper-case letter or bracket (`H2+O2`); any other `+` is a charge (`NH4+ + OH-`).
+
+use crate::formula::{found_at, parse_species, SpeciesSpec, SyntaxError};
+use crate::rational::Rational;
+
+/// Longest equation accepted, in bytes.
+pub const MAX_EQUATION_BYTES: usize = 4096;
+/// Most species terms in one equation (both sides together).
+pub const MAX_TERMS: usize = 40;
+/// Largest numerator or denominator of a written coefficient.
+pub const MAX_COEFFICIENT: i128 = 1_000_000;
+/// Most decimal places in a written coefficient.
+pub const MAX_DECIMALS: usize = 6;
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Arrow {
+    /// `->`, `=>`, `=`, `→`
+    Forward,
+    /// `<=>`, `⇌`
+    Equilibrium,
+}
+
+/// One species with its written coefficient.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Term {
+    pub coefficient: Option<Rational>,
+    pub species: SpeciesSpec,
+    /// Byte offset of the species token in the equation.
+    pub position: usize,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Equation {
+    pub reactants: Vec<Term>,
+    pub products: Vec<Term>,
+    pub arrow: Arrow,
+}
+
+impl Equation {
+    /// True when at least one coefficient was written.
+    pub fn has_coefficients(&self) -> bool {
+        self.reactants.iter().chain(&self.products).any(|t| t.coefficient.is_some())
+    }
+}
+
+const ARROWS: [(&str, Arrow); 6] = [
+    ("<=>", Arrow::Equilibrium),
+    ("⇌", Arrow::Equilibrium),
+    ("->", Arrow::Forward),
+    ("=>", Arrow::Forward),
+    ("→", Arrow::Forward),
+    ("=", Arrow::Forward),
+];
+
+fn find_arrow(s: &str) -> Result<(usize, usize, Arrow), SyntaxError> {
+    let mut found: Option<(usize, usize, Arrow)> = None;
+    let b = s.as_bytes();
+    let mut i = 0;
+    while i < b.len() {
+        let hit = ARROWS.iter().find(|(a, _)| s[i..].starts_with(a));
+        if let Some(&(a, kind)) = hit {
+            if found.is_some() {
+                return Err(SyntaxError::Unexpected { position: i, expected: "only one arrow", found: format!("a second arrow '{a}'") });
+            }
+            found = Some((i, a.len(), kind));
+            i += a.len();
+        } else {
+            i += s[i..].chars().next().map_or(1, char::len_utf8);
+        }
+    }
+    found.ok_or(SyntaxError::Unexpected { position: s.len(), expected: "an arrow: ->, =>, = or <=>", found: "end of input".into() })
+}
+
+/// Split one side into `(offset, text)` terms.
+fn split_terms(s: &str, base: usize) -> Vec<(usize, &str)> {
+    let b = s.as_bytes();
+    let mut out = Vec::new();
+    let mut start = 0;
+    for i in 0..b.len() {
+        if b[i] != b'+' {
+            continue;
+        }
+        let before_space = i == 0 || b[i - 1].is_ascii_whitespace();
+        let after = b.get(i + 1).copied();
+        let glued_separator = i > 0 && matches!(after, Some(c) if c.is_ascii_uppercase() || c == b'(' || c == b'[');
+        // `^+` and `^2+` are always charges.
+        let in_caret = i > 0 && (b[i - 1] == b'^' || (b[i - 1].is_ascii_digit() && s[..i].contains('^')));
+        if (before_space || glued_separator) && !in_caret {
+            out.push((base + start, &s[start..i]));
+            start = i + 1;
+        }
+    }
+    out.push((base + start, &s[start..]));
+    out
+}
+
+fn parse_coefficient(t: &str, base: usize) -> Result<(Option<Rational>, usize), SyntaxError> {
+    let b = t.as_bytes();
+    let mut i = 0;
+    let digits = |i: &mut usize| {
+        let s = *i;
+        while *i < b.len() && b[*i].is_ascii_digit() {
+            *i += 1;
+        }
+        s..*i
+    };
+    let whole = digits(&mut i);
+    if whole.is_empty() {
+        return Ok((None, 0));
+    }
+    let limit = |pos: usize| SyntaxError::Limit { position: base + pos, what: "coefficient", limit: MAX_COEFFICIENT as u64 };
+    let parse_int = |r: std::ops::Range<usize>| -> Result<i128, SyntaxError> {
+        let v = &t[r.clone()];
+        if v.len() > 7 {
+            return Err(limit(r.start));
+        }
+        let n: i128 = v.parse().map_err(|_| limit(r.start))?;
+        if n > MAX_COEFFICIENT {
+            return Err(limit(r.start));
+        }
+        Ok(n)
+    };
+    let mut num = parse_int(whole.clone())?;
+    let mut den: i128 = 1;
+    if i < b.len() && b[i] == b'.' && b.get(i + 1).is_some_and(u8::is_ascii_digit) {
+        i += 1;
+        let frac = digits(&mut i);
+        if frac.len() > MAX_DECIMALS {
+            return Err(SyntaxError::Limit { position: base + frac.start, what: "decimal places in a coefficient", limit: MAX_DECIMALS as u64 });
+        }
+        let f: i128 = t[frac.clone()].parse().map_err(|_| limit(frac.start))?;
+        den = 10i128.pow(frac.len() as u32);
+        num = num * den + f;
+    } else if i < b.len() && b[i] == b'/' {
+        i += 1;
+        let d = digits(&mut i);
+        if d.is_empty() {
+            return Err(SyntaxError::Unexpected { position: base + i, expected: "a denominator after '/'", found: found_at(t, i) });
+        }
+        den = parse_int(d)?;
+    }
+    if num == 0 || den == 0 {
+        return Err(SyntaxError::Unexpected { position: base, expected: "a positive coefficient", found: format!("'{}'", &t[..i]) });
+    }
+    let r = Rational::new(num, den).map_err(|_| limit(0))?;
+    while i < b.len() && b[i].is_ascii_whitespace() {
+        i += 1;
+    }
+    Ok((Some(r), i))
+}
+
+/// A term before its species is parsed: the written coefficient and the species text.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct RawTerm<'a> {
+    pub coefficient: Option<Rational>,
+    pub text: &'a str,
+    /// Byte offset of `text` in the equation.
+    pub position: usize,
+}
+
+/// An equation cut into terms; species are parsed by the caller (who may cache them by text).
+#[derive(Clone, Debug, PartialEq)]
+pub struct RawEquation<'a> {
+    pub reactants: Vec<RawTerm<'a>>,
+    pub products: Vec<RawTerm<'a>>,
+    pub arrow: Arrow,
+}
+
+fn split_side<'a>(s: &'a str, base: usize, side: &'static str, out: &mut Vec<RawTerm<'a>>) -> Result<(), SyntaxError> {
+    for (off, raw) in split_terms(s, base) {
+        let lead = raw.len() - raw.trim_start().len();
+        let t = raw.trim();
+        let at = off + lead;
+        if t.is_empty() {
+            return Err(SyntaxError::Unexpected { position: at, expected: side, found: "nothing".into() });
+        }
+        let (coefficient, used) = parse_coefficient(t, at)?;
+        if used == t.len() {
+            return Err(SyntaxError::Unexpected { position: at + used, expected: "a species after the coefficient", found: "nothing".into() });
+        }
+        out.push(RawTerm { coefficient, text: &t[used..], position: at + used });
+        if out.len() > MAX_TERMS {
+            return Err(SyntaxError::Limit { position: at, what: "species terms per equation", limit: MAX_TERMS as u64 });
+        }
+    }
+    Ok(())
+}
+
+/// Cut an equation into sides and terms, reading coefficients but not species.
+///
+/// # Errors
+/// `SyntaxError` with the byte position and what was expected there.
+pub fn split_equation(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
+    if s.len() > MAX_EQUATION_BYTES {
+        return Err(SyntaxError::Limit { position: 0, what: "equation length in bytes", limit: MAX_EQUATION_BYTES as u64 });
+    }
+    if let Some(p) = s.find(">>") {
+        return Err(SyntaxError::Unexpected {
+            position: p,
+            expected: "a formula equation (reaction SMILES are not supported by this engine version)",
+            found: "'>>'".into(),
+        });
+    }
+    let (at, len, arrow) = find_arrow(s)?;
+    let mut reactants = Vec::new();
+    split_side(&s[..at], 0, "a reactant", &mut reactants)?;
+    let mut products = Vec::new();
+    split_side(&s[at + len..], at + len, "a product", &mut products)?;
+    if reactants.len() + products.len() > MAX_TERMS {
+        return Err(SyntaxError::Limit { position: 0, what: "species terms per equation", limit: MAX_TERMS as u64 });
+    }
+    Ok(RawEquation { reactants, products, arrow })
+}
+
+/// Parse a whole equation, species included.
+///
+/// # Errors
+/// `SyntaxError` with the byte position and what was expected there.
+pub fn parse_equation(s: &str) -> Result<Equation, SyntaxError> {
+    let raw = split_equation(s)?;
+    let term = |t: &RawTerm| -> Result<Term, SyntaxError> {
+        Ok(Term { coefficient: t.coefficient, species: parse_species(t.text, t.position)?, position: t.position })
+    };
+    Ok(Equation {
+        reactants: raw.reactants.iter().map(term).collect::<Result<_, _>>()?,
+        products: raw.products.iter().map(term).collect::<Result<_, _>>()?,
+        arrow: raw.arrow,
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn texts(terms: &[Term]) -> Vec<String> {
+        terms.iter().map(|t| t.species.to_string()).collect()
+    }
+
+    #[test]
+    fn arrows_coefficients_and_charges() {
+        let e = parse_equation("2 H2(g) + O2(g) -> 2H2O(l)").unwrap();
+        assert_eq!(texts(&e.reactants), ["H2(g)", "O2(g)"]);
+        assert_eq!(e.products[0].coefficient, Some(Rational::integer(2)));
+        let e = parse_equation("H2 + 1/2 O2 = H2O").unwrap();
+        assert_eq!(e.reactants[1].coefficient, Some(Rational::new(1, 2).unwrap()));
+        let e = parse_equation("N2O4(g) <=> 2 NO2(g)").unwrap();
+        assert_eq!(e.arrow, Arrow::Equilibrium);
+        let e = parse_equation("NH4+ + OH- => NH3 + H2O").unwrap();
+        assert_eq!(texts(&e.reactants), ["NH4+", "OH-"]);
+        let e = parse_equation("Fe+3 + e- -> Fe+2").unwrap();
+        assert_eq!(texts(&e.reactants), ["Fe+3", "e-"]);
+        let e = parse_equation("H2+Cl2->2HCl").unwrap();
+        assert_eq!(texts(&e.reactants), ["H2", "Cl2"]);
+        let e = parse_equation("0.5 O2 + CO -> CO2").unwrap();
+        assert_eq!(e.reactants[0].coefficient, Some(Rational::new(1, 2).unwrap()));
+        let e = parse_equation("SO4^2- + Ba^2+ -> BaSO4(s)").unwrap();
+        assert_eq!(texts(&e.reactants), ["SO4-2", "Ba+2"]);
+    }
+
+    #[test]
+    fn errors_point_at_the_problem() {
+        let e = parse_equation("H2 + O2").unwrap_err();
+        assert!(matches!(e, SyntaxError::Unexpected { position: 7, .. }), "{e}");
+        let e = parse_equation("H2 -> H2O -> H2O2").unwrap_err();
+        assert!(matches!(e, SyntaxError::Unexpected { position: 10, .. }), "{e}");
+        let e = parse_equation("H2 +  -> H2").unwrap_err();
+        assert!(e.to_string().contains("expected a reactant"), "{e}");
+        let e = parse_equation("2 H2 + O2 -> 2 H2Q").unwrap_err();
+        assert_eq!(e, SyntaxError::UnknownElement { position: 17, symbol: "Q".into() });
+        let e = parse_equation("CCO>>CC=O").unwrap_err();
+        assert!(e.to_string().contains("SMILES"), "{e}");
+    }
+
+    #[test]
+    fn limits() {
+        let e = parse_equation("10000000 H2 -> H2").unwrap_err();
+        assert!(matches!(e, SyntaxError::Limit { what: "coefficient", .. }), "{e}");
+        let long = format!("{} -> H2", vec!["H2"; 3000].join(" + "));
+        assert!(matches!(parse_equation(&long), Err(SyntaxError::Limit { .. })));
+        let many = format!("{} -> H2", vec!["H2"; 41].join(" + "));
+        assert!(matches!(parse_equation(&many), Err(SyntaxError::Limit { what: "species terms per equation", .. })));
+        let e = parse_equation("0.0000001 H2 -> H2").unwrap_err();
+        assert!(matches!(e, SyntaxError::Limit { .. }), "{e}");
+    }
+}

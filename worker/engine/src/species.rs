@@ -1,0 +1,504 @@
+//! Species thermodynamic data and how a written species finds it.
+//!
+//! The bundled table is `data/nasa_species.tsv` (NASA Glenn 9-coefficient polynomials, public
+//! domain, exported from Cantera's `nasa_gas.yaml` and `nasa_condensed.yaml` by
+//! `scripts/gen_species_data.py`). It is embedded in the binary and parsed once per process.
+//!
+//! Every model is held in NASA 9-coefficient form (`Cp/R = a1/T² + a2/T + a3 + a4 T + a5 T² + a6 T³ +
+//! a7 T⁴`, with integration constants b1 for H and b2 for S): NASA 7-coefficient data and values
+//! supplied with a request (ΔfH°, S° and a constant Cp) are exactly representable in it.
+//!
+//! Resolution order: values supplied with the request, then the bundled table by name, then by
+//! formula. A formula that fits several compounds (isomers) is an error naming them; several solid
+//! records of one compound form a polymorph series, and the one valid at 298.15 K is the reference.
+
+use crate::formula::{parse_species, Formula, Phase, SpeciesSpec};
+use std::collections::HashMap;
+use std::sync::OnceLock;
+
+/// Molar gas constant, J/(mol·K) (CODATA 2018, exact).
+pub const R: f64 = 8.314462618;
+/// Standard reference temperature, K.
+pub const T_REF_K: f64 = 298.15;
+
+/// One temperature segment of a heat-capacity polynomial, NASA 9-coefficient form.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Segment {
+    pub t_min_k: f64,
+    pub t_max_k: f64,
+    /// a1..a7, b1, b2
+    pub a: [f64; 9],
+}
+
+impl Segment {
+    pub fn covers(&self, t: f64) -> bool {
+        t >= self.t_min_k && t <= self.t_max_k
+    }
+
+    pub fn cp_over_r(&self, t: f64) -> f64 {
+        let a = &self.a;
+        a[0] / (t * t) + a[1] / t + a[2] + t * (a[3] + t * (a[4] + t * (a[5] + t * a[6])))
+    }
+
+    /// (H/(RT), S/R) at `t`, with `ln_t` = ln(t) passed in so callers evaluating many species at
+    /// one temperature take the logarithm once.
+    pub fn h_rt_s_r(&self, t: f64, ln_t: f64) -> (f64, f64) {
+        let a = &self.a;
+        let inv = 1.0 / t;
+        let h = -a[0] * inv * inv + a[1] * ln_t * inv + a[2] + t * (a[3] / 2.0 + t * (a[4] / 3.0 + t * (a[5] / 4.0 + t * a[6] / 5.0))) + a[7] * inv;
+        let s = -a[0] * inv * inv / 2.0 - a[1] * inv + a[2] * ln_t + t * (a[3] + t * (a[4] / 2.0 + t * (a[5] / 3.0 + t * a[6] / 4.0))) + a[8];
+        (h, s)
+    }
+
+    /// NASA 7-coefficient data (a1..a5 of Cp/R, a6 for H, a7 for S) in 9-coefficient form.
+    pub fn from_nasa7(t_min_k: f64, t_max_k: f64, c: &[f64; 7]) -> Segment {
+        Segment { t_min_k, t_max_k, a: [0.0, 0.0, c[0], c[1], c[2], c[3], c[4], c[5], c[6]] }
+    }
+
+    /// A constant heat capacity fixed to ΔfH° and S° at 298.15 K.
+    pub fn constant_cp(t_min_k: f64, t_max_k: f64, dhf_kj_per_mol: f64, s_j_per_mol_k: f64, cp_j_per_mol_k: f64) -> Segment {
+        let a3 = cp_j_per_mol_k / R;
+        let b1 = dhf_kj_per_mol * 1000.0 / R - a3 * T_REF_K;
+        let b2 = s_j_per_mol_k / R - a3 * T_REF_K.ln();
+        Segment { t_min_k, t_max_k, a: [0.0, 0.0, a3, 0.0, 0.0, 0.0, 0.0, b1, b2] }
+    }
+}
+
+/// Molar enthalpy (NASA convention: H(298.15 K) = ΔfH°), entropy and validity at one temperature.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct State {
+    pub h_j_per_mol: f64,
+    pub s_j_per_mol_k: f64,
+    pub in_range: bool,
+}
+
+impl State {
+    pub fn g_j_per_mol(&self, t: f64) -> f64 {
+        self.h_j_per_mol - t * self.s_j_per_mol_k
+    }
+}
+
+/// Where a species' numbers come from.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Origin {
+    /// A record of the bundled table (its name in the source, e.g. `H2O(L)`).
+    Tabulated { record: String, note: String },
+    /// Values supplied with the request.
+    Supplied,
+}
+
+/// One record of a data table.
+#[derive(Clone, Debug)]
+pub struct Record {
+    /// The source's own name: `CO2`, `H2O(L)`, `Fe(a)`.
+    pub name: String,
+    /// The name without its phase tag: `H2O`, `Fe`.
+    pub base: String,
+    pub phase: Phase,
+    /// The source's polymorph/phase letters (`a`, `b`, `gr`, `L`), empty for gases.
+    pub tag: String,
+    pub formula: Formula,
+    pub segments: Vec<Segment>,
+    pub note: String,
+    /// Standard uncertainty of ΔfH°(298.15 K) where the source gives one.
+    pub dhf_uncertainty_kj_per_mol: Option<f64>,
+}
+
+impl Record {
+    pub fn t_min_k(&self) -> f64 {
+        self.segments.first().map_or(f64::NAN, |s| s.t_min_k)
+    }
+    pub fn t_max_k(&self) -> f64 {
+        self.segments.last().map_or(f64::NAN, |s| s.t_max_k)
+    }
+    pub fn covers(&self, t: f64) -> bool {
+        self.segments.iter().any(|s| s.covers(t))
+    }
+}
+
+/// Values a request supplies for one species (they win over the bundled table).
+#[derive(Clone, Debug, PartialEq)]
+pub struct SuppliedSpecies {
+    pub formula: Formula,
+    pub phase: Phase,
+    pub dhf_kj_per_mol: f64,
+    pub s_j_per_mol_k: f64,
+    /// Constant heat capacity; without it ΔCp of this species is taken as 0 and every temperature
+    /// other than 298.15 K is flagged as outside the valid range.
+    pub cp_j_per_mol_k: Option<f64>,
+    /// Range in which the supplied Cp holds.
+    pub t_min_k: f64,
+    pub t_max_k: f64,
+    pub dhf_uncertainty_kj_per_mol: Option<f64>,
+}
+
+/// A species as the engine will use it.
+#[derive(Clone, Debug)]
+pub struct Resolved {
+    /// How it is shown in balanced equations: `H2O(l)`, `Fe(s)`, `C(gr)`.
+    pub label: String,
+    pub formula: Formula,
+    pub phase: Phase,
+    /// Segments of every record used (a solid's polymorph series has several records).
+    pub segments: Vec<Segment>,
+    pub origin: Vec<Origin>,
+    pub dhf_uncertainty_kj_per_mol: Option<f64>,
+    /// Things the user should know about how this species was resolved.
+    pub notes: Vec<String>,
+}
+
+impl Resolved {
+    /// State at `t`. Outside every segment the nearest segment is used and `in_range` is false.
+    /// Where segments overlap (polymorphs), the one with the lowest Gibbs energy is the stable one.
+    pub fn state(&self, t: f64, ln_t: f64) -> State {
+        let mut best: Option<(f64, f64, f64)> = None;
+        for seg in self.segments.iter().filter(|s| s.covers(t)) {
+            let (h, s) = seg.h_rt_s_r(t, ln_t);
+            let g = h - s;
+            if best.is_none_or(|b| g < b.2) {
+                best = Some((h, s, g));
+            }
+        }
+        let (h, s, in_range) = match best {
+            Some((h, s, _)) => (h, s, true),
+            None => {
+                let seg = self
+                    .segments
+                    .iter()
+                    .min_by(|a, b| dist(a, t).total_cmp(&dist(b, t)))
+                    .expect("a resolved species has at least one segment");
+                let (h, s) = seg.h_rt_s_r(t, ln_t);
+                (h, s, false)
+            }
+        };
+        State { h_j_per_mol: h * R * t, s_j_per_mol_k: s * R, in_range }
+    }
+
+    /// Lowest and highest temperature any segment covers.
+    pub fn range_k(&self) -> (f64, f64) {
+        let lo = self.segments.iter().map(|s| s.t_min_k).fold(f64::INFINITY, f64::min);
+        let hi = self.segments.iter().map(|s| s.t_max_k).fold(f64::NEG_INFINITY, f64::max);
+        (lo, hi)
+    }
+
+    /// One line naming the data behind this species.
+    pub fn source_line(&self, table: &Table) -> String {
+        let parts: Vec<String> = self
+            .origin
+            .iter()
+            .map(|o| match o {
+                Origin::Tabulated { record, note } if note.is_empty() => format!("{} [{record}]", table.source_name),
+                Origin::Tabulated { record, note } => format!("{} [{record}; {note}]", table.source_name),
+                Origin::Supplied => "values supplied with the request".to_string(),
+            })
+            .collect();
+        parts.join(" + ")
+    }
+}
+
+fn dist(s: &Segment, t: f64) -> f64 {
+    if t < s.t_min_k {
+        s.t_min_k - t
+    } else {
+        t - s.t_max_k
+    }
+}
+
+/// Why a species could not be resolved.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+pub enum ResolveError {
+    #[error("no data for {species}: not in the bundled table{hint}")]
+    NotFound { species: String, hint: String },
+    #[error("{species} is ambiguous: it matches {}; {advice}", candidates.join(", "))]
+    Ambiguous { species: String, candidates: Vec<String>, advice: &'static str },
+    #[error("{species} is written by name but a name alone gives no formula; supply its formula with its values")]
+    NameWithoutData { species: String },
+}
+
+/// The bundled data, indexed.
+pub struct Table {
+    pub records: Vec<Record>,
+    by_name: HashMap<(String, i32), Vec<usize>>,
+    by_formula: HashMap<String, Vec<usize>>,
+    /// Header comment of the data file: generator, versions, terms.
+    pub provenance: String,
+    pub source_name: String,
+}
+
+const NASA_TSV: &str = include_str!("../data/nasa_species.tsv");
+
+/// The bundled table, parsed on first use (a few milliseconds) and shared for the process.
+pub fn bundled() -> &'static Table {
+    static TABLE: OnceLock<Table> = OnceLock::new();
+    TABLE.get_or_init(|| Table::from_tsv(NASA_TSV, "NASA Glenn (McBride, Zehe & Gordon 2002), public domain").unwrap_or_else(|e| panic!("{e}")))
+}
+
+fn parse_composition(s: &str, charge: i32) -> Result<Formula, String> {
+    let mut text = String::new();
+    for part in s.split_whitespace() {
+        let (el, n) = part.split_once(':').ok_or_else(|| format!("bad composition {s:?}"))?;
+        let n: f64 = n.parse().map_err(|_| format!("bad count in {s:?}"))?;
+        if n.fract() != 0.0 {
+            return Err(format!("non-integer composition {s:?}"));
+        }
+        text.push_str(el);
+        text.push_str(&(n as u64).to_string());
+    }
+    if text.is_empty() {
+        return Ok(Formula { atoms: Vec::new(), charge });
+    }
+    let mut f = parse_species(&text, 0).map_err(|e| e.to_string())?.formula.ok_or("no formula")?;
+    f.charge = charge;
+    Ok(f)
+}
+
+fn strip_charge(name: &str) -> &str {
+    name.trim_end_matches(['+', '-'])
+}
+
+impl Table {
+    /// Parse a table in the `nasa_species.tsv` layout.
+    ///
+    /// # Errors
+    /// A message naming the line when a row is malformed.
+    pub fn from_tsv(tsv: &str, source_name: &str) -> Result<Table, String> {
+        let mut provenance = String::new();
+        let mut header: Option<Vec<&str>> = None;
+        let mut records = Vec::new();
+        for (i, line) in tsv.lines().enumerate() {
+            if let Some(c) = line.strip_prefix('#') {
+                provenance.push_str(c.trim());
+                provenance.push('\n');
+                continue;
+            }
+            if line.trim().is_empty() {
+                continue;
+            }
+            let f: Vec<&str> = line.split('\t').collect();
+            let Some(h) = &header else {
+                header = Some(f);
+                continue;
+            };
+            let col = |name: &str| -> Result<&str, String> {
+                let k = h.iter().position(|c| *c == name).ok_or_else(|| format!("no column {name}"))?;
+                f.get(k).copied().ok_or_else(|| format!("line {}: missing {name}", i + 1))
+            };
+            let err = |what: &str| format!("species table line {}: {what}", i + 1);
+            let phase = match col("phase")? {
+                "g" => Phase::Gas,
+                "l" => Phase::Liquid,
+                "s" => Phase::Solid,
+                p => return Err(err(&format!("phase {p:?}"))),
+            };
+            let charge: i32 = col("charge")?.parse().map_err(|_| err("charge"))?;
+            let formula = match parse_composition(col("composition")?, charge) {
+                Ok(f) => f,
+                // Records with fractional compositions (non-stoichiometric solids) are not usable
+                // in integer balancing; leave them out rather than round them.
+                Err(e) if e.starts_with("non-integer") => continue,
+                Err(e) => return Err(err(&e)),
+            };
+            let nasa7 = match col("model")? {
+                "nasa9" => false,
+                "nasa7" => true,
+                m => return Err(err(&format!("model {m:?}"))),
+            };
+            let mut segments = Vec::new();
+            for seg in col("segments")?.split(';') {
+                let v: Vec<f64> = seg.split(',').map(|x| x.trim().parse::<f64>()).collect::<Result<_, _>>().map_err(|_| err("segment number"))?;
+                let s = match (nasa7, v.len()) {
+                    (false, 11) => Segment { t_min_k: v[0], t_max_k: v[1], a: v[2..11].try_into().map_err(|_| err("segment"))? },
+                    (true, 9) => Segment::from_nasa7(v[0], v[1], &v[2..9].try_into().map_err(|_| err("segment"))?),
+                    _ => return Err(err("segment length")),
+                };
+                segments.push(s);
+            }
+            segments.sort_by(|a, b| a.t_min_k.total_cmp(&b.t_min_k));
+            records.push(Record {
+                name: col("name")?.to_string(),
+                base: col("base")?.to_string(),
+                phase,
+                tag: col("tag")?.to_string(),
+                formula,
+                segments,
+                note: col("note").unwrap_or("").to_string(),
+                dhf_uncertainty_kj_per_mol: None,
+            });
+        }
+        let mut by_name: HashMap<(String, i32), Vec<usize>> = HashMap::new();
+        let mut by_formula: HashMap<String, Vec<usize>> = HashMap::new();
+        for (k, r) in records.iter().enumerate() {
+            by_name.entry((strip_charge(&r.base).to_string(), r.formula.charge)).or_default().push(k);
+            by_formula.entry(r.formula.hill()).or_default().push(k);
+        }
+        Ok(Table { records, by_name, by_formula, provenance, source_name: source_name.to_string() })
+    }
+
+    /// Records whose base name is `name` with this charge.
+    pub fn by_name(&self, name: &str, charge: i32) -> &[usize] {
+        self.by_name.get(&(name.to_string(), charge)).map_or(&[], Vec::as_slice)
+    }
+
+    /// Records with this Hill formula (with charge).
+    pub fn by_formula(&self, hill: &str) -> &[usize] {
+        self.by_formula.get(hill).map_or(&[], Vec::as_slice)
+    }
+
+    /// Resolve a written species to the data the engine will use.
+    ///
+    /// # Errors
+    /// `ResolveError` when the species is unknown, ambiguous or written by name with no data.
+    pub fn resolve(&self, spec: &SpeciesSpec) -> Result<Resolved, ResolveError> {
+        let shown = spec.to_string();
+        let Some(formula) = &spec.formula else {
+            return Err(ResolveError::NameWithoutData { species: shown });
+        };
+        if spec.phase == Some(Phase::Aqueous) {
+            return Err(ResolveError::NotFound {
+                species: shown,
+                hint: " (no aqueous-species data is bundled; supply ΔfH° and S° for it)".into(),
+            });
+        }
+        let mut ids: Vec<usize> = self.by_name(&spec.text, formula.charge).to_vec();
+        if ids.is_empty() {
+            ids = self.by_formula(&formula.hill()).to_vec();
+        }
+        let all = ids.clone();
+        ids.retain(|&k| {
+            let r = &self.records[k];
+            spec.phase.is_none_or(|p| p == r.phase) && spec.form.as_ref().is_none_or(|f| *f == r.tag)
+        });
+        if ids.is_empty() {
+            let hint = if all.is_empty() {
+                String::new()
+            } else {
+                let have: Vec<String> = all.iter().map(|&k| self.records[k].name.clone()).collect();
+                format!(" in that phase (the table has {})", have.join(", "))
+            };
+            return Err(ResolveError::NotFound { species: shown, hint });
+        }
+        let mut bases: Vec<&str> = ids.iter().map(|&k| self.records[k].base.as_str()).collect();
+        bases.sort_unstable();
+        bases.dedup();
+        if bases.len() > 1 {
+            let mut names: Vec<String> = bases.iter().map(|b| b.to_string()).collect();
+            names.sort();
+            return Err(ResolveError::Ambiguous { species: shown, candidates: names, advice: "write the one you mean by its name" });
+        }
+        let mut notes = Vec::new();
+        let phase = match spec.phase {
+            Some(p) => p,
+            None => {
+                let p = self.stable_phase_at_298(&ids);
+                notes.push(format!("{} has no phase tag: the stable phase at 298.15 K ({}) is used", spec.text, p.tag()));
+                p
+            }
+        };
+        ids.retain(|&k| self.records[k].phase == phase);
+        if ids.len() > 1 {
+            let at_ref: Vec<usize> = ids.iter().copied().filter(|&k| self.records[k].covers(T_REF_K)).collect();
+            if phase != Phase::Solid || at_ref.len() > 1 {
+                let names = if at_ref.len() > 1 { &at_ref } else { &ids };
+                return Err(ResolveError::Ambiguous {
+                    species: shown,
+                    candidates: names.iter().map(|&k| self.records[k].name.clone()).collect(),
+                    advice: "add a polymorph tag such as (alpha) or (gr)",
+                });
+            }
+        }
+        ids.sort_by(|&a, &b| self.records[a].t_min_k().total_cmp(&self.records[b].t_min_k()));
+        let label = match (phase, spec.form.as_deref()) {
+            (_, Some("gr")) => format!("{}(gr)", spec.text_with_charge()),
+            (p, Some(f)) => format!("{}({},{f})", spec.text_with_charge(), p.tag()),
+            (p, None) => format!("{}({})", spec.text_with_charge(), p.tag()),
+        };
+        let recs: Vec<&Record> = ids.iter().map(|&k| &self.records[k]).collect();
+        Ok(Resolved {
+            label,
+            formula: recs[0].formula.clone(),
+            phase,
+            segments: recs.iter().flat_map(|r| r.segments.iter().copied()).collect(),
+            origin: recs.iter().map(|r| Origin::Tabulated { record: r.name.clone(), note: r.note.clone() }).collect(),
+            dhf_uncertainty_kj_per_mol: recs[0].dhf_uncertainty_kj_per_mol,
+            notes,
+        })
+    }
+
+    /// Of the phases these records offer, the one with the lowest Gibbs energy at 298.15 K among
+    /// records valid there (the stable phase at 1 bar); gas when none is valid there.
+    fn stable_phase_at_298(&self, ids: &[usize]) -> Phase {
+        let ln_t = T_REF_K.ln();
+        ids.iter()
+            .filter_map(|&k| {
+                let r = &self.records[k];
+                let seg = r.segments.iter().find(|s| s.covers(T_REF_K))?;
+                let (h, s) = seg.h_rt_s_r(T_REF_K, ln_t);
+                Some((h - s, r.phase))
+            })
+            .min_by(|a, b| a.0.total_cmp(&b.0))
+            .map_or(Phase::Gas, |(_, p)| p)
+    }
+}
+
+impl SpeciesSpec {
+    /// The written text with its charge: `NH4+`, `SO4-2`.
+    pub fn text_with_charge(&self) -> String {
+        let mut s = self.to_string();
+        if let Some(k) = s.find('(') {
+            if self.formula.is_some() && k >= self.text.len() {
+                s.truncate(k);
+            }
+        }
+        s
+    }
+}
+
+/// Build a resolved species from supplied values.
+pub fn from_supplied(spec: &SpeciesSpec, v: &SuppliedSpecies) -> Resolved {
+    let (cp, lo, hi) = match v.cp_j_per_mol_k {
+        Some(cp) => (cp, v.t_min_k, v.t_max_k),
+        None => (0.0, T_REF_K, T_REF_K),
+    };
+    let mut notes = Vec::new();
+    if v.cp_j_per_mol_k.is_none() {
+        notes.push(format!("{spec}: no heat capacity supplied; its Cp is taken as 0 away from 298.15 K (flagged)"));
+    }
+    Resolved {
+        label: format!("{}({})", spec.text_with_charge(), v.phase.tag()),
+        formula: v.formula.clone(),
+        phase: v.phase,
+        segments: vec![Segment::constant_cp(lo, hi, v.dhf_kj_per_mol, v.s_j_per_mol_k, cp)],
+        origin: vec![Origin::Supplied],
+        dhf_uncertainty_kj_per_mol: v.dhf_uncertainty_kj_per_mol,
+        notes,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn constant_cp_segment_reproduces_its_inputs() {
+        // Definition check: H(298.15) = ΔfH°, S(298.15) = S°, Cp constant.
+        let s = Segment::constant_cp(250.0, 400.0, -285.83, 69.95, 75.3);
+        let (h, sr) = s.h_rt_s_r(T_REF_K, T_REF_K.ln());
+        assert!((h * R * T_REF_K / 1000.0 + 285.83).abs() < 1e-9);
+        assert!((sr * R - 69.95).abs() < 1e-9);
+        assert!((s.cp_over_r(350.0) * R - 75.3).abs() < 1e-9);
+    }
+
+    #[test]
+    fn nasa7_and_nasa9_forms_agree() {
+        let c = [3.0, 1e-3, -2e-7, 3e-11, -1e-15, -1000.0, 4.0];
+        let s7 = Segment::from_nasa7(300.0, 1000.0, &c);
+        let t: f64 = 500.0;
+        // NASA 7 definitions (McBride, Gordon & Reno, NASA TM-4513, eqs. 1-3).
+        let cp = c[0] + c[1] * t + c[2] * t * t + c[3] * t.powi(3) + c[4] * t.powi(4);
+        let h = c[0] + c[1] * t / 2.0 + c[2] * t * t / 3.0 + c[3] * t.powi(3) / 4.0 + c[4] * t.powi(4) / 5.0 + c[5] / t;
+        let s = c[0] * t.ln() + c[1] * t + c[2] * t * t / 2.0 + c[3] * t.powi(3) / 3.0 + c[4] * t.powi(4) / 4.0 + c[6];
+        let (h9, s9) = s7.h_rt_s_r(t, t.ln());
+        assert!((s7.cp_over_r(t) - cp).abs() < 1e-12);
+        assert!((h9 - h).abs() < 1e-12 && (s9 - s).abs() < 1e-12);
+    }
+}

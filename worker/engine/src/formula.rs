@@ -3,7 +3,7 @@
 //!
 //! Grammar (positions in errors are byte offsets into the whole input):
 //! ```text
-//! species   := electron | name tags | body charge? tags
+//! species   := electron | name tags | body qualifier? charge? tags   qualifier: ',' [a-z0-9-]+
 //! body      := groups ( ADDUCT count? groups )*        ADDUCT: · • * .
 //! groups    := ( element count? | '(' groups ')' count? | '[' groups ']' count? )+
 //! charge    := '^' digits? sign | '^' sign digits? | sign+ | sign digits
@@ -414,6 +414,13 @@ pub fn parse_species(s: &str, base: usize) -> Result<SpeciesSpec, SyntaxError> {
                 let part = groups(&mut cur, 0)?;
                 merge(&mut atoms, &part, n, &cur)?;
             }
+            // NASA's isomer qualifier: `C4H10,n-butane`, `C6H12,cyclo-`.
+            if cur.peek() == Some(b',') && cur.b.get(cur.i + 1).is_some_and(|c| c.is_ascii_lowercase() || c.is_ascii_digit()) {
+                cur.i += 1;
+                while cur.peek().is_some_and(|c| c.is_ascii_alphanumeric() || c == b'-') {
+                    cur.i += 1;
+                }
+            }
             spec.text = s[..cur.i].to_string();
             let q = charge(&mut cur)?;
             let atoms = atoms.into_iter().map(|(z, n)| (z, n as u32)).collect();
@@ -454,6 +461,8 @@ mod tests {
         assert_eq!(hill("NH4+"), "H4N+");
         assert_eq!(hill("e-"), "e-");
         assert_eq!(hill("C2H5OH"), "C2H6O");
+        let q = parse_species("C4H10,n-butane(g)", 0).unwrap();
+        assert_eq!((q.text.as_str(), q.phase), ("C4H10,n-butane", Some(Phase::Gas)));
         assert_eq!(atoms("H2O"), vec![("H".to_string(), 2), ("O".to_string(), 1)]);
     }
 

@@ -1,8 +1,9 @@
 //! Species thermodynamic data and how a written species finds it.
 //!
-//! The bundled table is `data/nasa_species.tsv` (NASA Glenn 9-coefficient polynomials, public
-//! domain, exported from Cantera's `nasa_gas.yaml` and `nasa_condensed.yaml` by
-//! `scripts/gen_species_data.py`). It is embedded in the binary and parsed once per process.
+//! The bundled table is `data/nasa_species.tsv`: NASA polynomials (McBride, Gordon & Reno,
+//! NASA TM-4513, 7-coefficient fits, a few 9-coefficient; public domain), exported from Cantera's
+//! `nasa_gas.yaml` and `nasa_condensed.yaml` by `scripts/gen_species_data.py`. It is embedded in
+//! the binary and parsed once per process. Deuterated species are left out (no `D` element).
 //!
 //! Every model is held in NASA 9-coefficient form (`Cp/R = a1/T² + a2/T + a3 + a4 T + a5 T² + a6 T³ +
 //! a7 T⁴`, with integration constants b1 for H and b2 for S): NASA 7-coefficient data and values
@@ -226,11 +227,13 @@ pub struct Table {
 }
 
 const NASA_TSV: &str = include_str!("../data/nasa_species.tsv");
+/// How results name the bundled data.
+pub const SOURCE_NAME: &str = "NASA thermo data (McBride, Gordon & Reno, NASA TM-4513, 1993; public domain) via Cantera 3.2.0";
 
 /// The bundled table, parsed on first use (a few milliseconds) and shared for the process.
 pub fn bundled() -> &'static Table {
     static TABLE: OnceLock<Table> = OnceLock::new();
-    TABLE.get_or_init(|| Table::from_tsv(NASA_TSV, "NASA Glenn (McBride, Zehe & Gordon 2002), public domain").unwrap_or_else(|e| panic!("{e}")))
+    TABLE.get_or_init(|| Table::from_tsv(NASA_TSV, SOURCE_NAME).unwrap_or_else(|e| panic!("{e}")))
 }
 
 fn parse_composition(s: &str, charge: i32) -> Result<Formula, String> {
@@ -293,9 +296,9 @@ impl Table {
             let charge: i32 = col("charge")?.parse().map_err(|_| err("charge"))?;
             let formula = match parse_composition(col("composition")?, charge) {
                 Ok(f) => f,
-                // Records with fractional compositions (non-stoichiometric solids) are not usable
-                // in integer balancing; leave them out rather than round them.
-                Err(e) if e.starts_with("non-integer") => continue,
+                // Fractional compositions (non-stoichiometric solids) cannot be balanced in
+                // integers, and deuterium is not an element of the table: leave those out.
+                Err(e) if e.starts_with("non-integer") || e.contains("'D'") => continue,
                 Err(e) => return Err(err(&e)),
             };
             let nasa7 = match col("model")? {
@@ -314,6 +317,15 @@ impl Table {
                 segments.push(s);
             }
             segments.sort_by(|a, b| a.t_min_k.total_cmp(&b.t_min_k));
+            // The CHEMKIN-format NASA files give 300 K as the lower limit of many condensed
+            // species (Al2O3, Fe2O3, CaO) and a few gases (SO2, SO3, HCl) whose fits start at the
+            // 298.15 K reference point; take them as valid from 298.15 K so standard values are
+            // not flagged for a 1.85 K step.
+            if let Some(first) = segments.first_mut() {
+                if first.t_min_k == 300.0 {
+                    first.t_min_k = T_REF_K;
+                }
+            }
             records.push(Record {
                 name: col("name")?.to_string(),
                 base: col("base")?.to_string(),
@@ -328,7 +340,14 @@ impl Table {
         let mut by_name: HashMap<(String, i32), Vec<usize>> = HashMap::new();
         let mut by_formula: HashMap<String, Vec<usize>> = HashMap::new();
         for (k, r) in records.iter().enumerate() {
-            by_name.entry((strip_charge(&r.base).to_string(), r.formula.charge)).or_default().push(k);
+            let base = if r.formula.charge != 0 { strip_charge(&r.base) } else { r.base.as_str() };
+            by_name.entry((base.to_string(), r.formula.charge)).or_default().push(k);
+            // NASA qualifies isomers after a comma (`C4H10,n-butane`): the qualifier is a name too.
+            if let Some((_, alias)) = base.split_once(',') {
+                if alias.len() >= 3 && alias.starts_with(|c: char| c.is_ascii_lowercase()) && alias.chars().all(|c| c.is_ascii_alphanumeric() || c == '-') {
+                    by_name.entry((alias.to_string(), r.formula.charge)).or_default().push(k);
+                }
+            }
             by_formula.entry(r.formula.hill()).or_default().push(k);
         }
         Ok(Table { records, by_name, by_formula, provenance, source_name: source_name.to_string() })
@@ -350,8 +369,14 @@ impl Table {
     /// `ResolveError` when the species is unknown, ambiguous or written by name with no data.
     pub fn resolve(&self, spec: &SpeciesSpec) -> Result<Resolved, ResolveError> {
         let shown = spec.to_string();
-        let Some(formula) = &spec.formula else {
-            return Err(ResolveError::NameWithoutData { species: shown });
+        let charge = spec.charge();
+        let by_name = self.by_name(&spec.text, charge);
+        let formula = match &spec.formula {
+            Some(f) => f.clone(),
+            None => match by_name.first() {
+                Some(&k) => self.records[k].formula.clone(),
+                None => return Err(ResolveError::NameWithoutData { species: shown }),
+            },
         };
         if spec.phase == Some(Phase::Aqueous) {
             return Err(ResolveError::NotFound {
@@ -359,7 +384,7 @@ impl Table {
                 hint: " (no aqueous-species data is bundled; supply ΔfH° and S° for it)".into(),
             });
         }
-        let mut ids: Vec<usize> = self.by_name(&spec.text, formula.charge).to_vec();
+        let mut ids: Vec<usize> = by_name.to_vec();
         if ids.is_empty() {
             ids = self.by_formula(&formula.hill()).to_vec();
         }
@@ -377,9 +402,11 @@ impl Table {
             };
             return Err(ResolveError::NotFound { species: shown, hint });
         }
+        // NASA writes gas names in capitals (`AL`, `CL2`) and condensed ones in mixed case
+        // (`Al(cr)`): one compound, so bases are compared without case.
         let mut bases: Vec<&str> = ids.iter().map(|&k| self.records[k].base.as_str()).collect();
-        bases.sort_unstable();
-        bases.dedup();
+        bases.sort_unstable_by_key(|b| b.to_ascii_uppercase());
+        bases.dedup_by(|a, b| a.eq_ignore_ascii_case(b));
         if bases.len() > 1 {
             let mut names: Vec<String> = bases.iter().map(|b| b.to_string()).collect();
             names.sort();

@@ -1,0 +1,115 @@
+//! Reaction thermodynamics against Cantera 3.2.0 evaluating the same NASA polynomials.
+//! Reference values: `tests/reference/cantera_reactions.tsv`, written by
+//! `scripts/gen_cantera_reference.py` (pinned versions in `scripts/requirements-data.txt`).
+//! Tolerances (the data are the same, so only arithmetic may differ): 0.1 kJ/mol for ΔrH° and
+//! ΔrG°, 0.01 in log10 K; ΔrS° to 0.1 J/(mol·K).
+
+use std::collections::BTreeMap;
+use thermosieve_engine::{species, Screener, TemperatureGrid};
+
+struct Row {
+    kind: String,
+    equation: String,
+    t: f64,
+    dh: f64,
+    ds: f64,
+    dg: f64,
+    log10_k: f64,
+}
+
+fn rows() -> BTreeMap<String, Vec<Row>> {
+    let text = include_str!("reference/cantera_reactions.tsv");
+    let mut out: BTreeMap<String, Vec<Row>> = BTreeMap::new();
+    let mut lines = text.lines().filter(|l| !l.starts_with('#') && !l.trim().is_empty());
+    let header: Vec<&str> = lines.next().expect("header row").split('\t').collect();
+    let col = |name: &str| header.iter().position(|h| *h == name).unwrap_or_else(|| panic!("column {name}"));
+    let (id, kind, eq, t, dh, ds, dg, lk) = (
+        col("id"),
+        col("kind"),
+        col("equation"),
+        col("temperature_k"),
+        col("delta_h_kj_per_mol"),
+        col("delta_s_j_per_mol_k"),
+        col("delta_g_kj_per_mol"),
+        col("log10_k"),
+    );
+    for line in lines {
+        let f: Vec<&str> = line.split('\t').collect();
+        let num = |k: usize| f[k].parse::<f64>().unwrap_or_else(|_| panic!("number in {line}"));
+        out.entry(f[id].to_string()).or_default().push(Row {
+            kind: f[kind].to_string(),
+            equation: f[eq].to_string(),
+            t: num(t),
+            dh: num(dh),
+            ds: num(ds),
+            dg: num(dg),
+            log10_k: num(lk),
+        });
+    }
+    out
+}
+
+#[test]
+fn reactions_match_cantera_on_the_same_polynomials() {
+    let all = rows();
+    assert!(all.len() >= 25, "need at least 25 reactions, have {}", all.len());
+    let mut kinds: Vec<&str> = all.values().map(|r| r[0].kind.as_str()).collect();
+    kinds.sort_unstable();
+    kinds.dedup();
+    for k in ["combustion", "hydrogenation", "oxidation", "decomposition", "solids", "liquids"] {
+        assert!(kinds.contains(&k), "no {k} reactions in the reference set");
+    }
+    let mut failures = Vec::new();
+    for (id, rs) in &all {
+        assert!(rs.len() >= 3, "{id}: fewer than 3 temperatures");
+        let grid = TemperatureGrid::new(rs.iter().map(|r| r.t).collect()).expect("grid");
+        let mut screener = Screener::new(species::bundled(), grid);
+        // The reference equations are balanced as written: checking them must accept them.
+        let s = match screener.screen(&rs[0].equation) {
+            Ok(s) => s,
+            Err(e) => {
+                failures.push(format!("{id}: {e}"));
+                continue;
+            }
+        };
+        for (r, p) in rs.iter().zip(&s.points) {
+            let checks = [
+                ("dH", p.delta_h_kj_per_mol, r.dh, 0.1),
+                ("dS", p.delta_s_j_per_mol_k, r.ds, 0.1),
+                ("dG", p.delta_g_kj_per_mol, r.dg, 0.1),
+                ("log10K", p.log10_k, r.log10_k, 0.01),
+            ];
+            for (what, got, want, tol) in checks {
+                if (got - want).abs() > tol {
+                    failures.push(format!("{id} at {} K: {what} {got} vs Cantera {want}", r.t));
+                }
+            }
+            if !p.in_valid_range {
+                failures.push(format!("{id} at {} K: flagged out of range, but Cantera evaluated it in range", r.t));
+            }
+        }
+        // The same reaction with its coefficients left out must balance to the same equation.
+        let bare: String = rs[0]
+            .equation
+            .split(' ')
+            .filter(|w| w.parse::<u32>().is_err())
+            .collect::<Vec<_>>()
+            .join(" ");
+        match screener.screen(&bare) {
+            Ok(b) => assert_eq!(b.balanced_equation, s.balanced_equation, "{id}: balancing {bare}"),
+            Err(e) => failures.push(format!("{id}: balancing {bare}: {e}")),
+        }
+    }
+    assert!(failures.is_empty(), "{} mismatches:\n{}", failures.len(), failures.join("\n"));
+}
+
+#[test]
+fn formation_enthalpies_against_codata_key_values() {
+    // CODATA Key Values for Thermodynamics (Cox, Wagman & Medvedev, 1989), from memory:
+    // ΔfH°(H2O, l, 298.15 K) = −285.830 ± 0.040 kJ/mol; ΔfH°(CO2, g) = −393.51 ± 0.13 kJ/mol.
+    let mut s = Screener::new(species::bundled(), TemperatureGrid::new(vec![298.15]).unwrap());
+    let water = s.screen("H2(g) + 1/2 O2(g) -> H2O(l)").unwrap();
+    assert!((water.standard.delta_h_kj_per_mol - -285.830).abs() < 0.040, "{}", water.standard.delta_h_kj_per_mol);
+    let co2 = s.screen("C(gr) + O2(g) -> CO2(g)").unwrap();
+    assert!((co2.standard.delta_h_kj_per_mol - -393.51).abs() < 0.13, "{}", co2.standard.delta_h_kj_per_mol);
+}

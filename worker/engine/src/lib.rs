@@ -13,6 +13,8 @@
 //! - [`equation`]: equations, arrows and written coefficients.
 //! - [`balance`]: the element/charge matrix and its exact null space.
 //! - [`species`]: the bundled data table, polynomial models and species resolution.
+//! - [`smiles`]: SMILES structures: molecular graphs, formulas and canonical identity.
+//! - [`joback`]: Joback & Reid group-contribution estimates for species without data.
 //! - [`thermo`]: temperature grids and reaction properties (ΔrH°, ΔrS°, ΔrG°, log10 K).
 //! - [`screen`]: one reaction end to end, with a species cache for batches.
 
@@ -20,8 +22,10 @@ pub mod balance;
 pub mod elements;
 pub mod equation;
 pub mod formula;
+pub mod joback;
 pub mod rational;
 pub mod screen;
+pub mod smiles;
 pub mod species;
 pub mod thermo;
 

@@ -86,6 +86,8 @@ pub enum Origin {
     Tabulated { record: String, note: String },
     /// Values supplied with the request.
     Supplied,
+    /// Estimated from the structure by a group-contribution method (see `joback`).
+    Estimated { method: String },
 }
 
 /// One record of a data table.
@@ -191,6 +193,7 @@ impl Resolved {
                 Origin::Tabulated { record, note } if note.is_empty() => format!("{} [{record}]", table.source_name),
                 Origin::Tabulated { record, note } => format!("{} [{record}; {note}]", table.source_name),
                 Origin::Supplied => "values supplied with the request".to_string(),
+                Origin::Estimated { method } => format!("estimated: {method}"),
             })
             .collect();
         parts.join(" + ")
@@ -214,6 +217,8 @@ pub enum ResolveError {
     Ambiguous { species: String, candidates: Vec<String>, advice: &'static str },
     #[error("{species} is written by name but a name alone gives no formula; supply its formula with its values")]
     NameWithoutData { species: String },
+    #[error("no data for {species}: not in the bundled table, and it cannot be estimated: {reason}")]
+    NotEstimable { species: String, reason: String },
 }
 
 /// The bundled data, indexed.

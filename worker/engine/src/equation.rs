@@ -4,6 +4,10 @@
 //! decimals (`0.5 O2`) or fractions (`1/2 O2(g)`); a space after the coefficient is optional
 //! (`2H2O`). Species on one side are separated by a `+` with a space before it, or by a `+` written
 //! directly before an upper-case letter or bracket (`H2+O2`); any other `+` is a charge (`NH4+ + OH-`).
+//!
+//! Reaction SMILES (`CCO.O=O>>CC(=O)O.O`, `reactants>agents>products`): recognised by a `>` that is
+//! not the head of an arrow (`->`, `=>`, `<=>`); each `.`-separated component is one species
+//! (the SMILES are read by the caller, see [`crate::structures`]); agents are recorded, not balanced.
 
 use crate::formula::{found_at, parse_species, SpeciesSpec, SyntaxError};
 use crate::rational::Rational;
@@ -169,6 +173,61 @@ pub struct RawEquation<'a> {
     pub reactants: Vec<RawTerm<'a>>,
     pub products: Vec<RawTerm<'a>>,
     pub arrow: Arrow,
+    /// How the species are written: formula tokens or SMILES.
+    pub notation: Notation,
+    /// Agents of a reaction SMILES (`r>agents>p`): recorded, not part of the balance.
+    pub agents: Vec<RawTerm<'a>>,
+}
+
+/// How an equation writes its species.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Notation {
+    Formula,
+    Smiles,
+}
+
+/// True when `s` is a reaction SMILES: it holds a `>` that does not end `->`, `=>` or `<=>`.
+pub fn is_reaction_smiles(s: &str) -> bool {
+    let b = s.as_bytes();
+    (0..b.len()).any(|i| b[i] == b'>' && (i == 0 || !matches!(b[i - 1], b'-' | b'=')))
+}
+
+/// Cut a reaction SMILES into reactants, agents and products (each `.`-separated component one
+/// species, no coefficients).
+fn split_reaction_smiles(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
+    let gts: Vec<usize> = s.match_indices('>').map(|(i, _)| i).collect();
+    if gts.len() != 2 {
+        let at = gts.get(2).copied().unwrap_or(s.len());
+        return Err(SyntaxError::Unexpected { position: at, expected: "a reaction SMILES with exactly two '>' (reactants>>products or reactants>agents>products)", found: format!("{} '>'", gts.len()) });
+    }
+    let part = |from: usize, to: usize, what: &'static str, required: bool| -> Result<Vec<RawTerm<'_>>, SyntaxError> {
+        let text = &s[from..to];
+        if text.trim().is_empty() {
+            if required {
+                return Err(SyntaxError::Unexpected { position: from, expected: what, found: "nothing".into() });
+            }
+            return Ok(Vec::new());
+        }
+        let mut out = Vec::new();
+        let mut start = from;
+        for piece in text.split('.') {
+            let lead = piece.len() - piece.trim_start().len();
+            let t = piece.trim();
+            if t.is_empty() {
+                return Err(SyntaxError::Unexpected { position: start, expected: what, found: "an empty component between '.'".into() });
+            }
+            out.push(RawTerm { coefficient: None, text: t, position: start + lead });
+            start += piece.len() + 1;
+        }
+        Ok(out)
+    };
+    let reactants = part(0, gts[0], "a reactant SMILES", true)?;
+    let agents = part(gts[0] + 1, gts[1], "an agent SMILES", false)?;
+    let products = part(gts[1] + 1, s.len(), "a product SMILES", true)?;
+    if reactants.len() + products.len() + agents.len() > MAX_TERMS {
+        return Err(SyntaxError::Limit { position: 0, what: "species terms per equation", limit: MAX_TERMS as u64 });
+    }
+    Ok(RawEquation { reactants, products, arrow: Arrow::Forward, notation: Notation::Smiles, agents })
 }
 
 fn split_side<'a>(s: &'a str, base: usize, side: &'static str, out: &mut Vec<RawTerm<'a>>) -> Result<(), SyntaxError> {
@@ -199,12 +258,8 @@ pub fn split_equation(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
     if s.len() > MAX_EQUATION_BYTES {
         return Err(SyntaxError::Limit { position: 0, what: "equation length in bytes", limit: MAX_EQUATION_BYTES as u64 });
     }
-    if let Some(p) = s.find(">>") {
-        return Err(SyntaxError::Unexpected {
-            position: p,
-            expected: "a formula equation (reaction SMILES are not supported by this engine version)",
-            found: "'>>'".into(),
-        });
+    if is_reaction_smiles(s) {
+        return split_reaction_smiles(s);
     }
     let (at, len, arrow) = find_arrow(s)?;
     let mut reactants = Vec::new();
@@ -214,7 +269,7 @@ pub fn split_equation(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
     if reactants.len() + products.len() > MAX_TERMS {
         return Err(SyntaxError::Limit { position: 0, what: "species terms per equation", limit: MAX_TERMS as u64 });
     }
-    Ok(RawEquation { reactants, products, arrow })
+    Ok(RawEquation { reactants, products, arrow, notation: Notation::Formula, agents: Vec::new() })
 }
 
 /// Parse a whole equation, species included.
@@ -223,6 +278,9 @@ pub fn split_equation(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
 /// `SyntaxError` with the byte position and what was expected there.
 pub fn parse_equation(s: &str) -> Result<Equation, SyntaxError> {
     let raw = split_equation(s)?;
+    if raw.notation == Notation::Smiles {
+        return Err(SyntaxError::Unexpected { position: 0, expected: "a formula equation (read reaction SMILES with split_equation and the structures module)", found: "a reaction SMILES".into() });
+    }
     let term = |t: &RawTerm| -> Result<Term, SyntaxError> {
         Ok(Term { coefficient: t.coefficient, species: parse_species(t.text, t.position)?, position: t.position })
     };
@@ -274,6 +332,25 @@ mod tests {
         assert_eq!(e, SyntaxError::UnknownElement { position: 17, symbol: "Q".into() });
         let e = parse_equation("CCO>>CC=O").unwrap_err();
         assert!(e.to_string().contains("SMILES"), "{e}");
+    }
+
+    #[test]
+    fn reaction_smiles_are_cut_into_species() {
+        let r = split_equation("CCO.O=O>>CC(=O)O.O").unwrap();
+        assert_eq!(r.notation, Notation::Smiles);
+        let t: Vec<(&str, usize)> = r.reactants.iter().chain(&r.products).map(|t| (t.text, t.position)).collect();
+        assert_eq!(t, [("CCO", 0), ("O=O", 4), ("CC(=O)O", 9), ("O", 17)]);
+        let r = split_equation("C=C.[H][H]>[Pd]>CC").unwrap();
+        assert_eq!(r.agents.iter().map(|t| t.text).collect::<Vec<_>>(), ["[Pd]"]);
+        assert_eq!(r.products[0].position, 16);
+        assert!(split_equation(">>CC").is_err());
+        assert!(split_equation("CC>>").is_err());
+        assert!(split_equation("CC>>C>C").is_err());
+        assert!(split_equation("CC..C>>CCC").is_err());
+        // Arrows of formula equations are not reaction SMILES.
+        assert_eq!(split_equation("H2 + O2 -> H2O").unwrap().notation, Notation::Formula);
+        assert_eq!(split_equation("N2O4 <=> 2 NO2").unwrap().notation, Notation::Formula);
+        assert_eq!(split_equation("H2 + O2 => H2O").unwrap().notation, Notation::Formula);
     }
 
     #[test]

@@ -15,6 +15,7 @@
 //! - [`species`]: the bundled data table, polynomial models and species resolution.
 //! - [`smiles`]: SMILES structures: molecular graphs, formulas and canonical identity.
 //! - [`joback`]: Joback & Reid group-contribution estimates for species without data.
+//! - [`structures`]: SMILES species in equations: bundled structures and estimation.
 //! - [`thermo`]: temperature grids and reaction properties (ΔrH°, ΔrS°, ΔrG°, log10 K).
 //! - [`screen`]: one reaction end to end, with a species cache for batches.
 
@@ -27,6 +28,7 @@ pub mod rational;
 pub mod screen;
 pub mod smiles;
 pub mod species;
+pub mod structures;
 pub mod thermo;
 
 pub use screen::{Screened, ScreenError, Screener};

@@ -4,10 +4,17 @@
 //!
 //! A [`Screener`] holds the grid and a cache of resolved species with their states already
 //! evaluated at the grid temperatures, so a batch pays for each species' polynomials once.
+//!
+//! Reaction SMILES take their species' phase from the screener's default phase (the case's
+//! `phase` column); SMILES species are resolved by [`crate::structures::resolve_smiles`] and
+//! merged by canonical structure, so `OCC` and `C(O)C` are one species.
 
 use crate::balance::{self, Balance, BalanceError, Column, Outcome, Side};
-use crate::equation::{split_equation, Arrow, RawTerm};
+use crate::equation::{split_equation, Arrow, Notation, RawTerm};
 use crate::formula::{parse_species, SpeciesSpec, SyntaxError};
+use crate::smiles::{Molecule, SmilesError};
+use crate::species::Origin;
+use crate::structures::{self, DefaultPhase, SmilesSpeciesError, Structures};
 use crate::rational::Rational;
 use crate::species::{from_supplied, Resolved, ResolveError, State, SuppliedSpecies, Table, T_REF_K};
 use crate::thermo::{self, ladder_k, TemperatureGrid, ThermoPoint};
@@ -23,6 +30,8 @@ pub enum ScreenError {
     Species { position: usize, error: ResolveError },
     #[error("{0}")]
     Balance(#[from] BalanceError),
+    #[error("{0}")]
+    Smiles(#[from] SmilesError),
 }
 
 /// A resolved species with its states precomputed for the screener's grid.
@@ -60,6 +69,10 @@ pub struct Screened {
     /// Temperatures over which every species' data is valid.
     pub valid_range_k: (f64, f64),
     pub notes: Vec<String>,
+    /// How many of `species` were estimated (any [`Origin::Estimated`] in their data).
+    pub estimated_species: usize,
+    /// Agents of a reaction SMILES as written (not balanced).
+    pub agents: Vec<String>,
 }
 
 /// Screens reactions against one data table and one temperature grid.
@@ -68,11 +81,80 @@ pub struct Screener<'t> {
     grid: TemperatureGrid,
     supplied: HashMap<String, SuppliedSpecies>,
     cache: HashMap<String, Result<Arc<Prepared>, ResolveError>>,
+    /// Phase of SMILES species (a SMILES carries none).
+    default_phase: DefaultPhase,
+    structures: &'static Structures,
+    /// SMILES species by (canonical key, phase asked): one species however it is written.
+    by_structure: HashMap<(String, DefaultPhase), Arc<Prepared>>,
 }
 
 impl<'t> Screener<'t> {
     pub fn new(table: &'t Table, grid: TemperatureGrid) -> Screener<'t> {
-        Screener { table, grid, supplied: HashMap::new(), cache: HashMap::new() }
+        Screener {
+            table,
+            grid,
+            supplied: HashMap::new(),
+            cache: HashMap::new(),
+            default_phase: DefaultPhase::Standard,
+            structures: structures::bundled(),
+            by_structure: HashMap::new(),
+        }
+    }
+
+    /// The phase SMILES species take from now on (the case's `phase`; `Standard` by default).
+    pub fn set_default_phase(&mut self, phase: DefaultPhase) {
+        self.default_phase = phase;
+    }
+
+    pub fn default_phase(&self) -> DefaultPhase {
+        self.default_phase
+    }
+
+    /// Screen one reaction with SMILES species in `phase` (formula species keep their tags).
+    ///
+    /// # Errors
+    /// As [`Screener::screen`].
+    pub fn screen_with(&mut self, equation: &str, phase: DefaultPhase) -> Result<Screened, ScreenError> {
+        let before = std::mem::replace(&mut self.default_phase, phase);
+        let out = self.screen(equation);
+        self.default_phase = before;
+        out
+    }
+
+    /// A SMILES species, from the cache when seen before (by text, then by structure).
+    ///
+    /// # Errors
+    /// `ScreenError::Smiles` for a SMILES that does not parse (with its byte position),
+    /// `ScreenError::Species` when it has no data and cannot be estimated.
+    pub fn smiles_species(&mut self, text: &str, position: usize) -> Result<Arc<Prepared>, ScreenError> {
+        let cache_key = format!("{}\u{1}{text}", self.default_phase.name());
+        if let Some(hit) = self.cache.get(&cache_key) {
+            return hit.clone().map_err(|error| ScreenError::Species { position, error });
+        }
+        let result = if let Some(v) = self.supplied.get(text) {
+            let m = Molecule::parse(text, position)?;
+            let spec = SpeciesSpec { text: text.to_string(), formula: Some(m.formula()), phase: Some(v.phase), form: None };
+            Ok(Arc::new(self.prepare(from_supplied(&spec, v))))
+        } else {
+            match structures::resolve_smiles(self.table, self.structures, text, position, self.default_phase) {
+                Ok(s) => {
+                    let k = (s.key, self.default_phase);
+                    match self.by_structure.get(&k) {
+                        Some(p) => Ok(p.clone()),
+                        None => {
+                            let p = Arc::new(self.prepare(s.resolved));
+                            self.by_structure.insert(k, p.clone());
+                            Ok(p)
+                        }
+                    }
+                }
+                // Parse errors depend on the position, so they are not cached.
+                Err(SmilesSpeciesError::Syntax(e)) => return Err(e.into()),
+                Err(SmilesSpeciesError::Resolve(e)) => Err(e),
+            }
+        };
+        self.cache.insert(cache_key, result.clone());
+        result.map_err(|error| ScreenError::Species { position, error })
     }
 
     pub fn grid(&self) -> &TemperatureGrid {
@@ -87,6 +169,7 @@ impl<'t> Screener<'t> {
     /// equations, e.g. `INT7(l)` (matched against the text with its phase tag).
     pub fn supply(&mut self, key: &str, values: SuppliedSpecies) {
         self.cache.clear();
+        self.by_structure.clear();
         self.supplied.insert(key.to_string(), values);
     }
 
@@ -137,7 +220,10 @@ impl<'t> Screener<'t> {
         let sides: [(&[RawTerm], Side); 2] = [(&raw.reactants, Side::Reactant), (&raw.products, Side::Product)];
         for (terms, side) in sides {
             for t in terms {
-                let p = self.species(t.text, t.position)?;
+                let p = match raw.notation {
+                    Notation::Formula => self.species(t.text, t.position)?,
+                    Notation::Smiles => self.smiles_species(t.text, t.position)?,
+                };
                 let c = t.coefficient.unwrap_or(Rational::ONE);
                 let c = if side == Side::Reactant { c.checked_neg().map_err(|_| BalanceError::Overflow)? } else { c };
                 match distinct.iter_mut().find(|d| d.0.resolved.label == p.resolved.label) {
@@ -184,7 +270,13 @@ impl<'t> Screener<'t> {
         for s in &species {
             notes.extend(s.species.resolved.notes.iter().cloned());
         }
-        Ok(self.evaluate(species, raw.arrow, outcome, notes))
+        let agents: Vec<String> = raw.agents.iter().map(|t| t.text.to_string()).collect();
+        if !agents.is_empty() {
+            notes.push(format!("agents recorded, not balanced: {}", agents.join(", ")));
+        }
+        let mut out = self.evaluate(species, raw.arrow, outcome, notes);
+        out.agents = agents;
+        Ok(out)
     }
 
     fn evaluate(&self, species: Vec<SpeciesTerm>, arrow: Arrow, outcome: Outcome, notes: Vec<String>) -> Screened {
@@ -215,8 +307,10 @@ impl<'t> Screener<'t> {
             delta_g_zero_k,
             delta_h_uncertainty_kj_per_mol: sq.map(f64::sqrt),
             valid_range_k: (lo, hi),
+            estimated_species: species.iter().filter(|s| s.species.resolved.origin.iter().any(|o| matches!(o, Origin::Estimated { .. }))).count(),
             species,
             notes,
+            agents: Vec::new(),
         }
     }
 

@@ -1,0 +1,442 @@
+//! SMILES species in equations: which data a structure resolves to.
+//!
+//! Order, after values supplied with the request (the screener checks those first):
+//! 1. a bundled NASA record with the same structure (canonical key), in the phase asked for;
+//! 2. a bundled record with the same formula, only when no record of that formula has a known
+//!    structure and the formula names one compound (noted: it could be an isomer);
+//! 3. a Joback & Reid estimate from the structure (see [`crate::joback`]); a liquid asked for
+//!    where the table holds only the gas is the tabulated gas with an estimated vaporization.
+//!
+//! The bundled structures are `data/structures.tsv`, written by `scripts/gen_structures.py`:
+//! NASA names with a SMILES each, checked there with RDKit (its formula equals the record's
+//! composition); the engine indexes them by its own canonical key when first used.
+
+use crate::elements::Z;
+use crate::formula::{Phase, SpeciesSpec};
+use crate::joback::{self, Estimate};
+use crate::smiles::Molecule;
+use crate::species::{Origin, ResolveError, Resolved, Table, T_REF_K};
+use std::collections::HashMap;
+use std::sync::OnceLock;
+
+/// The phase a SMILES species takes when the case does not say (a SMILES carries no phase).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Default)]
+pub enum DefaultPhase {
+    Gas,
+    Liquid,
+    Solid,
+    /// The stable phase at 298.15 K and 1 bar, as for untagged formulas.
+    #[default]
+    Standard,
+}
+
+impl DefaultPhase {
+    /// `gas`, `liquid`, `solid` or `standard` (also `g`, `l`, `s`).
+    pub fn parse(s: &str) -> Option<DefaultPhase> {
+        Some(match s.trim().to_ascii_lowercase().as_str() {
+            "gas" | "g" => DefaultPhase::Gas,
+            "liquid" | "l" => DefaultPhase::Liquid,
+            "solid" | "s" => DefaultPhase::Solid,
+            "standard" | "" => DefaultPhase::Standard,
+            _ => return None,
+        })
+    }
+
+    pub fn phase(self) -> Option<Phase> {
+        match self {
+            DefaultPhase::Gas => Some(Phase::Gas),
+            DefaultPhase::Liquid => Some(Phase::Liquid),
+            DefaultPhase::Solid => Some(Phase::Solid),
+            DefaultPhase::Standard => None,
+        }
+    }
+
+    pub fn name(self) -> &'static str {
+        match self {
+            DefaultPhase::Gas => "gas",
+            DefaultPhase::Liquid => "liquid",
+            DefaultPhase::Solid => "solid",
+            DefaultPhase::Standard => "standard",
+        }
+    }
+}
+
+/// Bundled structures of table records, indexed by canonical key.
+pub struct Structures {
+    by_key: HashMap<String, Vec<String>>,
+    /// Base names (as in the table) that have a structure.
+    named: HashMap<String, String>,
+    /// Header comment of the data file.
+    pub provenance: String,
+}
+
+const STRUCTURES_TSV: &str = include_str!("../data/structures.tsv");
+
+/// The bundled structures, parsed on first use.
+pub fn bundled() -> &'static Structures {
+    static S: OnceLock<Structures> = OnceLock::new();
+    S.get_or_init(|| Structures::from_tsv(STRUCTURES_TSV).unwrap_or_else(|e| panic!("{e}")))
+}
+
+impl Structures {
+    /// Parse the `structures.tsv` layout: `name`, `smiles` columns (others are checks).
+    ///
+    /// # Errors
+    /// A message naming the line for a row that does not parse.
+    pub fn from_tsv(tsv: &str) -> Result<Structures, String> {
+        let mut provenance = String::new();
+        let mut header: Option<Vec<&str>> = None;
+        let mut by_key: HashMap<String, Vec<String>> = HashMap::new();
+        let mut named = HashMap::new();
+        for (i, line) in tsv.lines().enumerate() {
+            if let Some(c) = line.strip_prefix('#') {
+                provenance.push_str(c.trim());
+                provenance.push('\n');
+                continue;
+            }
+            if line.trim().is_empty() {
+                continue;
+            }
+            let f: Vec<&str> = line.split('\t').collect();
+            let Some(h) = &header else {
+                header = Some(f);
+                continue;
+            };
+            let col = |name: &str| -> Result<&str, String> {
+                let k = h
+                    .iter()
+                    .position(|c| *c == name)
+                    .ok_or_else(|| format!("structures.tsv: no column {name}"))?;
+                f.get(k)
+                    .copied()
+                    .ok_or_else(|| format!("structures.tsv line {}: missing {name}", i + 1))
+            };
+            let (name, smiles) = (col("name")?, col("smiles")?);
+            let m = Molecule::parse(smiles, 0)
+                .map_err(|e| format!("structures.tsv line {}: {e}", i + 1))?;
+            let key = m.canonical_key();
+            by_key
+                .entry(key.clone())
+                .or_default()
+                .push(name.to_string());
+            named.insert(name.to_string(), key);
+        }
+        Ok(Structures {
+            by_key,
+            named,
+            provenance,
+        })
+    }
+
+    /// Table base names whose structure has this canonical key.
+    pub fn names_for(&self, key: &str) -> &[String] {
+        self.by_key.get(key).map_or(&[], Vec::as_slice)
+    }
+
+    /// Canonical key of a table base name, when it has a bundled structure.
+    pub fn key_of(&self, name: &str) -> Option<&str> {
+        self.named.get(name).map(String::as_str)
+    }
+
+    pub fn len(&self) -> usize {
+        self.named.len()
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.named.is_empty()
+    }
+}
+
+/// Records holding each element's standard reference state, and atoms per formula unit: the
+/// entropies S°(298.15 K) that turn a Joback ΔfG° into S°.
+const REFERENCE_STATES: [(Z, &str, f64); 9] = [
+    (6, "C(gr)", 1.0),
+    (1, "H2", 2.0),
+    (8, "O2", 2.0),
+    (7, "N2", 2.0),
+    (16, "S(cr1)", 1.0),
+    (17, "CL2", 2.0),
+    (9, "F2", 2.0),
+    (35, "Br2(L)", 2.0),
+    (53, "I2(cr)", 2.0),
+];
+
+/// S°(298.15 K) per atom of element `z` in its reference state, J/(mol·K), from the table's
+/// records (C(gr), H2(g), O2(g), N2(g), S(cr1) rhombic, Cl2(g), F2(g), Br2(l), I2(cr)).
+pub fn element_entropy(table: &Table, z: Z) -> Option<f64> {
+    let &(_, record, atoms) = REFERENCE_STATES.iter().find(|r| r.0 == z)?;
+    let r = table.records.iter().find(|r| r.name == record)?;
+    let seg = r.segments.iter().find(|s| s.covers(T_REF_K))?;
+    let (_, s_r) = seg.h_rt_s_r(T_REF_K, T_REF_K.ln());
+    Some(s_r * crate::species::R / atoms)
+}
+
+/// A SMILES species resolved, with its canonical key (the screener merges species by it).
+pub struct SmilesSpecies {
+    pub resolved: Resolved,
+    pub key: String,
+}
+
+/// Why a SMILES species could not be resolved.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+pub enum SmilesSpeciesError {
+    #[error("{0}")]
+    Syntax(#[from] crate::smiles::SmilesError),
+    #[error("{0}")]
+    Resolve(#[from] ResolveError),
+}
+
+/// Resolve one SMILES species (bundled record by structure, by formula, or estimate).
+///
+/// # Errors
+/// [`SmilesSpeciesError`] when the SMILES does not parse (with its byte position) or the species
+/// has no data and cannot be estimated.
+pub fn resolve_smiles(
+    table: &Table,
+    structures: &Structures,
+    smiles: &str,
+    position: usize,
+    phase: DefaultPhase,
+) -> Result<SmilesSpecies, SmilesSpeciesError> {
+    let m = Molecule::parse(smiles, position)?;
+    let key = m.canonical_key();
+    let formula = m.formula();
+    let mut notes = Vec::new();
+    let spec_for = |name: &str, phase: Option<Phase>| SpeciesSpec {
+        text: name.to_string(),
+        formula: Some(formula.clone()),
+        phase,
+        form: None,
+    };
+    // 1. By structure.
+    let names = structures.names_for(&key);
+    for name in names {
+        match table.resolve(&spec_for(name, phase.phase())) {
+            Ok(mut r) => {
+                // A table with only the gas of a compound that is liquid at 298.15 K: for the
+                // standard phase, take the liquid from the gas plus an estimated vaporization.
+                let liquid_listed = names
+                    .iter()
+                    .any(|n| table.resolve(&spec_for(n, Some(Phase::Liquid))).is_ok());
+                if phase == DefaultPhase::Standard && r.phase == Phase::Gas && !liquid_listed {
+                    if let Ok(e) = Estimate::of(&m) {
+                        if e.tb_k > T_REF_K {
+                            return Ok(SmilesSpecies {
+                                resolved: liquid_from_gas(&r, &e, name)?,
+                                key,
+                            });
+                        }
+                    }
+                }
+                r.notes.retain(|n| !n.contains("has no phase tag"));
+                r.notes
+                    .push(format!("{smiles}: bundled record {name} by structure"));
+                return Ok(SmilesSpecies { resolved: r, key });
+            }
+            Err(ResolveError::NotFound { .. }) => {}
+            Err(e) => return Err(e.into()),
+        }
+    }
+    if phase == DefaultPhase::Liquid {
+        if let Some((name, gas)) = names.iter().find_map(|n| {
+            table
+                .resolve(&spec_for(n, Some(Phase::Gas)))
+                .ok()
+                .map(|g| (n, g))
+        }) {
+            let e = Estimate::of(&m).map_err(|e| ResolveError::NotEstimable {
+                species: format!("{smiles}(l)"),
+                reason: e.to_string(),
+            })?;
+            return Ok(SmilesSpecies {
+                resolved: liquid_from_gas(&gas, &e, name)?,
+                key,
+            });
+        }
+    }
+    if let Some(name) = names.first() {
+        notes.push(format!(
+            "{smiles}: the bundled table has {name} but not as {}",
+            phase.name()
+        ));
+    }
+    // 2. By formula, only where no record of this formula has a known structure.
+    let hill = formula.hill();
+    let ids = table.by_formula(&hill);
+    if !ids.is_empty() && names.is_empty() {
+        let mut bases: Vec<&str> = ids
+            .iter()
+            .map(|&k| table.records[k].base.as_str())
+            .collect();
+        bases.sort_unstable_by_key(|b| b.to_ascii_uppercase());
+        bases.dedup_by(|a, b| a.eq_ignore_ascii_case(b));
+        let any_known = bases.iter().any(|b| structures.key_of(b).is_some());
+        if bases.len() == 1 && !any_known {
+            if let Ok(mut r) = table.resolve(&spec_for(bases[0], phase.phase())) {
+                r.notes.retain(|n| !n.contains("has no phase tag"));
+                r.notes.push(format!("{smiles}: matched bundled record {} by formula {hill} only (the table gives no structure; it could be an isomer)", bases[0]));
+                return Ok(SmilesSpecies { resolved: r, key });
+            }
+        }
+    }
+    // 3. Estimate.
+    let shown = format!(
+        "{smiles}({})",
+        phase.phase().map_or("standard", |p| p.tag())
+    );
+    let e = Estimate::of(&m).map_err(|e| ResolveError::NotEstimable {
+        species: shown.clone(),
+        reason: e.to_string(),
+    })?;
+    let entropy = |z: Z| element_entropy(table, z);
+    let mut r = e
+        .resolved(smiles, &formula, phase.phase(), &entropy)
+        .map_err(|e| ResolveError::NotEstimable {
+            species: shown,
+            reason: e.to_string(),
+        })?;
+    notes.append(&mut r.notes);
+    r.notes = notes;
+    Ok(SmilesSpecies { resolved: r, key })
+}
+
+/// The liquid from a tabulated gas and an estimated vaporization at 298.15 K.
+fn liquid_from_gas(gas: &Resolved, e: &Estimate, name: &str) -> Result<Resolved, ResolveError> {
+    let label = format!("{name}(l)");
+    let v = e.vaporization().map_err(|err| ResolveError::NotEstimable {
+        species: label.clone(),
+        reason: err.to_string(),
+    })?;
+    let ln_t = T_REF_K.ln();
+    let st = gas.state(T_REF_K, ln_t);
+    let seg = gas
+        .segments
+        .iter()
+        .find(|s| s.covers(T_REF_K))
+        .or(gas.segments.first())
+        .expect("a resolved species has segments");
+    let cp_gas = seg.cp_over_r(T_REF_K) * crate::species::R;
+    let (liquid, cp_l) = v.liquid_segment(st.h_j_per_mol / 1000.0, st.s_j_per_mol_k, cp_gas);
+    let mut origin = gas.origin.clone();
+    origin.push(Origin::Estimated { method: format!("vaporization from {}: Watson (0.38) and Clausius–Clapeyron from the estimated Tb, Rowlinson–Bondi liquid Cp", joback::METHOD) });
+    let sigma = (gas.dhf_uncertainty_kj_per_mol.unwrap_or(0.0).powi(2)
+        + joback::DHVAP_SIGMA_KJ_PER_MOL.powi(2))
+    .sqrt();
+    Ok(Resolved {
+        label,
+        formula: gas.formula.clone(),
+        phase: Phase::Liquid,
+        segments: vec![liquid],
+        origin,
+        dhf_uncertainty_kj_per_mol: Some(sigma),
+        notes: vec![format!(
+            "{name}(l): the bundled table has only the gas; liquid = gas − estimated vaporization at 298.15 K (ΔvapH {:.1} kJ/mol, p_sat {:.3} bar, estimated Tb {:.0} K), liquid Cp {cp_l:.0} J/mol/K held constant",
+            v.dhvap_298_kj_per_mol, v.p_sat_298_bar, e.tb_k
+        )],
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::species::bundled as table;
+
+    fn resolve(s: &str, p: DefaultPhase) -> Resolved {
+        resolve_smiles(table(), bundled(), s, 0, p)
+            .unwrap_or_else(|e| panic!("{s}: {e}"))
+            .resolved
+    }
+
+    fn dhf(r: &Resolved) -> f64 {
+        r.state(T_REF_K, T_REF_K.ln()).h_j_per_mol / 1000.0
+    }
+
+    #[test]
+    fn structures_file_parses_and_names_table_records() {
+        let s = bundled();
+        assert!(s.len() >= 50, "{}", s.len());
+        let t = table();
+        for names in s.by_key.values() {
+            for n in names {
+                assert!(
+                    !t.by_name(n, 0).is_empty() || n.ends_with(['+', '-']),
+                    "{n} is not a table record"
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn tabulated_records_are_found_by_structure() {
+        // NASA record names from data/nasa_species.tsv.
+        let r = resolve("OCC", DefaultPhase::Gas);
+        assert!(
+            matches!(&r.origin[0], Origin::Tabulated { record, .. } if record == "C2H5OH"),
+            "{:?}",
+            r.origin
+        );
+        let r2 = resolve("C(O)C", DefaultPhase::Gas);
+        assert_eq!(r.label, r2.label);
+        let r = resolve("COC", DefaultPhase::Gas);
+        assert!(matches!(&r.origin[0], Origin::Tabulated { record, .. } if record == "CH3OCH3"));
+        let r = resolve("c1ccccc1", DefaultPhase::Liquid);
+        assert!(
+            matches!(&r.origin[0], Origin::Tabulated { record, .. } if record == "C6H6(L)"),
+            "{:?}",
+            r.origin
+        );
+        let r = resolve("CCCC", DefaultPhase::Gas);
+        assert!(
+            matches!(&r.origin[0], Origin::Tabulated { record, .. } if record == "C4H10,n-butane")
+        );
+        let r = resolve("CC(C)C", DefaultPhase::Gas);
+        assert!(
+            matches!(&r.origin[0], Origin::Tabulated { record, .. } if record == "C4H10,isobutane")
+        );
+    }
+
+    #[test]
+    fn unknown_structures_are_estimated_with_uncertainty() {
+        let r = resolve("CCCCCCCCCCCC(=O)OCC", DefaultPhase::Gas);
+        assert!(matches!(&r.origin[0], Origin::Estimated { .. }));
+        assert!(r.dhf_uncertainty_kj_per_mol.unwrap() > 10.0);
+        let r = resolve("CC(C)(C)OC", DefaultPhase::Standard);
+        assert_eq!(r.phase, Phase::Liquid, "MTBE boils at 328 K");
+        assert!(resolve_smiles(table(), bundled(), "CS(=O)C", 0, DefaultPhase::Gas).is_err());
+        assert!(resolve_smiles(table(), bundled(), "CCO", 0, DefaultPhase::Solid).is_err());
+    }
+
+    #[test]
+    fn liquid_from_tabulated_gas() {
+        // Ethanol: the NASA table has only the gas (ΔfH°(g) −234.8 kJ/mol). Experimental liquid
+        // ΔfH° −277.5 kJ/mol and S° 160.7 J/mol/K (NIST Chemistry WebBook, ethanol condensed
+        // phase, memory); the estimated vaporization should land within 10 kJ/mol and 15 J/mol/K.
+        let r = resolve("CCO", DefaultPhase::Liquid);
+        assert_eq!(r.phase, Phase::Liquid);
+        assert!((dhf(&r) + 277.5).abs() < 10.0, "{}", dhf(&r));
+        let s = r.state(T_REF_K, T_REF_K.ln()).s_j_per_mol_k;
+        assert!((s - 160.7).abs() < 15.0, "{s}");
+        let std = resolve("CCO", DefaultPhase::Standard);
+        assert_eq!(std.phase, Phase::Liquid);
+    }
+
+    #[test]
+    fn element_entropies_from_the_table() {
+        // CODATA key values (Cox, Wagman & Medvedev 1989): C(gr) 5.74, H2 130.68/2, O2 205.152/2,
+        // N2 191.61/2, S(rhombic) 32.054, Cl2 223.081/2, Br2(l) 152.21/2, I2(cr) 116.14/2.
+        let t = table();
+        for (z, s) in [
+            (6, 5.74),
+            (1, 65.34),
+            (8, 102.576),
+            (7, 95.805),
+            (16, 32.054),
+            (17, 111.54),
+            (35, 76.105),
+            (53, 58.07),
+        ] {
+            let v = element_entropy(t, z).unwrap();
+            assert!((v - s).abs() < 0.15, "{z}: {v}");
+        }
+    }
+}

@@ -544,6 +544,8 @@ pub struct Groups {
 /// (combined in quadrature with the others).
 #[derive(Clone, Debug, PartialEq)]
 pub struct WeakSpot {
+    /// Occurrences of one kind add linearly; kinds add in quadrature.
+    pub kind: &'static str,
     pub what: String,
     pub sigma_kj_per_mol: f64,
 }
@@ -617,8 +619,9 @@ impl Assign<'_> {
         self.counts[group - 1] += 1;
     }
 
-    fn weak(&mut self, what: impl Into<String>, sigma: f64) {
+    fn weak(&mut self, kind: &'static str, what: impl Into<String>, sigma: f64) {
         self.weak.push(WeakSpot {
+            kind,
             what: what.into(),
             sigma_kj_per_mol: sigma,
         });
@@ -713,8 +716,9 @@ impl Assign<'_> {
             } else if let (Some(o), 0) = (ether, a.hydrogens) {
                 if self.claimed[o] {
                     self.weak(
+                        "approximation",
                         "an anhydride: its second C=O is taken as a ketone group",
-                        20.0,
+                        40.0,
                     );
                     self.add(if a.in_ring { g::R_CO } else { g::CO });
                 } else {
@@ -723,7 +727,7 @@ impl Assign<'_> {
                 }
             } else if a.hydrogens == 1 {
                 if ether.is_some() {
-                    self.weak("a formate ester: taken as O=CH- plus -O-", 20.0);
+                    self.weak("approximation", "a formate ester: taken as O=CH- plus -O-", 40.0);
                 }
                 self.add(g::CHO);
             } else if a.hydrogens == 2 {
@@ -873,108 +877,99 @@ impl Assign<'_> {
         Ok(())
     }
 
+    /// The engine's rules for where the method is weak (see the module documentation). Each
+    /// occurrence adds its σ linearly to others of its kind (a group value that is off is off
+    /// the same way every time it appears); kinds combine in quadrature.
     fn weak_spots(&mut self) {
         let m = self.m;
-        let heavy = m.heavy_atom_count();
-        if heavy <= 3 {
-            self.weak(
-                "a very small molecule (3 heavy atoms or fewer): group additivity is poorest here",
-                base_sigma_kj_per_mol(),
-            );
+        let n = m.atoms.len();
+        let is_halogen = |z: Z| matches!(z, 9 | 17 | 35 | 53);
+        if m.heavy_atom_count() <= 3 {
+            self.weak("small", "a very small molecule (3 heavy atoms or fewer)", 40.0);
         }
-        // Strained rings: the ring groups carry no ring strain (cyclopropane ≈ 115 kJ/mol).
-        let mut small = [0usize; 2];
-        for k in 0..m.bonds.len() {
-            if let Some(size) = m.small_ring_through(k, 4) {
-                small[size - 3] += 1;
+        // Rings: strain is not in the ring groups (cyclopropane ≈ 115 kJ/mol), unsaturation in a
+        // small ring still less; aliphatic rings are fitted loosely.
+        for ring in m.rings(8) {
+            let double_inside = m.bonds.iter().any(|b| b.kekule_order >= 2 && ring.binary_search(&b.a).is_ok() && ring.binary_search(&b.b).is_ok());
+            let triple_inside = m.bonds.iter().any(|b| b.kekule_order == 3 && ring.binary_search(&b.a).is_ok() && ring.binary_search(&b.b).is_ok());
+            let aromatic = ring.iter().all(|&i| m.atoms[i].aromatic);
+            match (ring.len(), double_inside) {
+                (3, true) => self.weak("strain", "an unsaturated three-membered ring", 120.0),
+                (3, false) => self.weak("strain", "a three-membered ring", 40.0),
+                (4, true) => self.weak("strain", "an unsaturated four-membered ring", 80.0),
+                (4, false) => self.weak("strain", "a four-membered ring", 40.0),
+                _ => {}
+            }
+            if triple_inside {
+                self.weak("strain", "a triple bond in a ring", 150.0);
+            }
+            if aromatic && ring.iter().any(|&i| m.atoms[i].element != 6) {
+                self.weak("heteroaromatic", "an aromatic ring with a heteroatom (aromaticity is not a group)", 15.0);
+            } else if !aromatic {
+                self.weak("aliphatic ring", "a non-aromatic ring", 15.0);
             }
         }
-        // Each 3-ring has 3 bonds of size 3; a 4-ring has 4 bonds of size 4.
-        let rings3 = small[0] / 3;
-        let rings4 = small[1] / 4;
-        for _ in 0..rings3.max(usize::from(small[0] > 0)) {
-            self.weak(
-                "a three-membered ring (strain not in the ring groups)",
-                40.0,
-            );
-        }
-        for _ in 0..rings4.max(usize::from(small[1] > 0)) {
-            self.weak("a four-membered ring (strain not in the ring groups)", 40.0);
-        }
-        let mut fused = 0;
-        let mut polyhalo = 0;
-        let mut hetero_aromatic = false;
-        for i in 0..m.atoms.len() {
-            let ring_bonds = m.neighbours(i).filter(|&(_, b)| m.bonds[b].in_ring).count();
-            if ring_bonds >= 3 {
-                fused += 1;
+        for i in 0..n {
+            let a = &m.atoms[i];
+            let ring_bonds: Vec<usize> = m.neighbours(i).filter(|&(_, b)| m.bonds[b].in_ring).map(|x| x.1).collect();
+            if ring_bonds.len() >= 3 {
+                let smallest = ring_bonds.iter().filter_map(|&b| m.ring_path(b, 8)).map(|r| r.len()).min().unwrap_or(8);
+                if smallest <= 5 {
+                    self.weak("fusion", "a fused or bridged atom of a small ring", 40.0);
+                } else {
+                    self.weak("fusion", "a ring-fusion atom", 8.0);
+                }
             }
-            let halogens = m
-                .neighbours(i)
-                .filter(|&(n, _)| matches!(m.atoms[n].element, 9 | 17 | 35 | 53))
-                .count();
-            if m.atoms[i].element == 6 && halogens >= 2 {
-                polyhalo += 1;
+            if a.element == 9 {
+                self.weak("fluorine", "a fluorine (fluorocarbons are fitted poorly)", 15.0);
             }
-            hetero_aromatic |= m.atoms[i].aromatic && m.atoms[i].element != 6;
+            let heavy_halogens = m.neighbours(i).filter(|&(w, _)| matches!(m.atoms[w].element, 17 | 35 | 53)).count();
+            let halogens = m.neighbours(i).filter(|&(w, _)| is_halogen(m.atoms[w].element)).count();
+            if a.element == 6 && halogens >= 2 && heavy_halogens >= 1 {
+                for _ in 1..halogens.min(heavy_halogens + 1) {
+                    self.weak("polyhalogen", "one more Cl, Br or I on a carbon (no interaction terms)", 20.0);
+                }
+            }
+            let triple = m.neighbours(i).any(|(_, b)| m.bonds[b].kekule_order == 3);
+            if a.element == 6 && triple {
+                let odd_neighbour = m.neighbours(i).any(|(w, b)| {
+                    let wa = &m.atoms[w];
+                    m.bonds[b].kekule_order != 3 && (wa.element != 6 || m.neighbours(w).any(|(_, b2)| m.bonds[b2].kekule_order == 3 || (m.bonds[b2].kekule_order == 2 && b2 != b && m.neighbours(w).filter(|&(_, b3)| m.bonds[b3].kekule_order == 2).count() == 2)))
+                });
+                if odd_neighbour {
+                    self.weak("substituted alkyne", "a triple-bonded carbon on a heteroatom or another triple bond", 50.0);
+                }
+            }
+            if a.element == 8 && m.neighbours(i).any(|(w, _)| m.atoms[w].element == 8) {
+                self.weak("peroxide", "an O-O bond (no peroxide group)", 50.0);
+            }
         }
-        for _ in 0..fused {
-            self.weak(
-                "a ring-fusion atom (fused and bridged rings are outside the fit)",
-                8.0,
-            );
+        // Carbonyl carbons next to each other or carrying a halogen.
+        let carbonyl = |i: usize| m.atoms[i].element == 6 && m.neighbours(i).any(|(w, b)| m.bonds[b].kekule_order == 2 && m.atoms[w].element == 8 && m.degree(w) == 1);
+        for b in &m.bonds {
+            if carbonyl(b.a) && carbonyl(b.b) {
+                self.weak("adjacent carbonyls", "two carbonyl groups bonded to each other", 30.0);
+            }
         }
-        for _ in 0..polyhalo {
-            self.weak(
-                "a carbon bearing two or more halogens (no interaction terms)",
-                20.0,
-            );
-        }
-        if hetero_aromatic {
-            self.weak(
-                "an aromatic ring with a heteroatom (aromaticity is not a group)",
-                10.0,
-            );
+        for i in 0..n {
+            if carbonyl(i) && m.neighbours(i).any(|(w, _)| is_halogen(m.atoms[w].element)) {
+                self.weak("acyl halide", "an acyl halide", 25.0);
+            }
         }
         let polar: usize = [
-            g::OH_ALCOHOL,
-            g::OH_PHENOL,
-            g::O,
-            g::R_O,
-            g::CO,
-            g::R_CO,
-            g::CHO,
-            g::COOH,
-            g::COO,
-            g::EQ_O,
-            g::NH2,
-            g::NH,
-            g::R_NH,
-            g::N,
-            g::EQ_N,
-            g::R_EQ_N,
-            g::EQ_NH,
-            g::CN,
-            g::NO2,
-            g::SH,
-            g::S,
-            g::R_S,
+            g::OH_ALCOHOL, g::OH_PHENOL, g::O, g::R_O, g::CO, g::R_CO, g::CHO, g::COOH, g::COO, g::EQ_O, g::NH2, g::NH,
+            g::R_NH, g::N, g::EQ_N, g::R_EQ_N, g::EQ_NH, g::CN, g::NO2, g::SH, g::S, g::R_S,
         ]
         .iter()
         .map(|&k| self.counts[k - 1] as usize)
         .sum();
         for _ in 1..polar {
-            self.weak("one more polar group (no group-interaction terms)", 5.0);
+            self.weak("polar", "one more polar group (no group-interaction terms)", 5.0);
         }
         for k in [g::EQ_C_EQ, g::R_C, g::EQ_N, g::EQ_NH] {
             for _ in 0..self.counts[k - 1] {
-                self.weak(
-                    format!(
-                        "group {} (few compounds behind its value)",
-                        GROUPS[k - 1].name
-                    ),
-                    10.0,
-                );
+                let sigma = if k == g::EQ_C_EQ { 30.0 } else { 10.0 };
+                self.weak("rare group", format!("group {} (few compounds behind its value)", GROUPS[k - 1].name), sigma);
             }
         }
     }
@@ -1096,13 +1091,14 @@ impl Groups {
     /// and every weak spot in quadrature.
     pub fn dhf_sigma_kj_per_mol(&self) -> f64 {
         let base = base_sigma_kj_per_mol();
-        (base * base
-            + self
-                .weak_spots
-                .iter()
-                .map(|w| w.sigma_kj_per_mol.powi(2))
-                .sum::<f64>())
-        .sqrt()
+        let mut by_kind: Vec<(&str, f64)> = Vec::new();
+        for w in &self.weak_spots {
+            match by_kind.iter_mut().find(|k| k.0 == w.kind) {
+                Some(k) => k.1 += w.sigma_kj_per_mol,
+                None => by_kind.push((w.kind, w.sigma_kj_per_mol)),
+            }
+        }
+        (base * base + by_kind.iter().map(|k| k.1 * k.1).sum::<f64>()).sqrt()
     }
 
     /// (group name, count) of the groups present, in table order.

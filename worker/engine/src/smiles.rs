@@ -807,16 +807,7 @@ impl Molecule {
         if !candidate {
             return;
         }
-        let mut rings: Vec<Vec<usize>> = Vec::new();
-        for k in 0..self.bonds.len() {
-            let Some(mut ring) = self.ring_path(k, 8) else {
-                continue;
-            };
-            ring.sort_unstable();
-            if !rings.contains(&ring) {
-                rings.push(ring);
-            }
-        }
+        let rings = self.rings(8);
         // Fused rings: a ring whose double bond leaves it into a ring already found aromatic
         // (naphthalene's Kekulé form) is judged after that ring, so repeat until nothing changes.
         let mut done = vec![false; rings.len()];
@@ -871,8 +862,24 @@ impl Molecule {
         electrons % 4 == 2
     }
 
+    /// The smallest ring (at most `max_size` atoms) through each ring bond, without repeats;
+    /// each ring as its sorted atom indices.
+    pub fn rings(&self, max_size: usize) -> Vec<Vec<usize>> {
+        let mut rings: Vec<Vec<usize>> = Vec::new();
+        for k in 0..self.bonds.len() {
+            let Some(mut ring) = self.ring_path(k, max_size) else {
+                continue;
+            };
+            ring.sort_unstable();
+            if !rings.contains(&ring) {
+                rings.push(ring);
+            }
+        }
+        rings
+    }
+
     /// Atoms of the smallest ring (at most `max_size` atoms) through bond `k`.
-    fn ring_path(&self, k: usize, max_size: usize) -> Option<Vec<usize>> {
+    pub fn ring_path(&self, k: usize, max_size: usize) -> Option<Vec<usize>> {
         let b = self.bonds[k];
         if !b.in_ring {
             return None;

@@ -2,7 +2,7 @@
 """Reference Joback estimates from `thermo` (its Joback class, RDKit-driven SMARTS fragmentation).
 
 Molecules: SMILES from `chemicals`' bundled 'chemical identifiers pubchem small.tsv' with only
-C, H, N, O, S, F, Cl, Br, I, neutral, closed-shell, one component, 2 to 40 heavy atoms, for which
+C (required), H, N, O, S, F, Cl, Br, I, neutral, closed-shell, one component, 2 to 40 heavy atoms, for which
 thermo's fragmentation reports status 'OK' (every heavy atom in exactly one group) and every
 property below has a value. Group counts are thermo's (`Joback(...).counts`, 1-based group
 numbers as in Poling et al. Table 2-2). Values: ΔfH°(g), ΔfG°(g) (kJ/mol), Tb, Tc with the Joback
@@ -37,6 +37,8 @@ def main():
         smi = f[4]
         mol = Chem.MolFromSmiles(smi)
         if mol is None or "." in smi or not 2 <= mol.GetNumHeavyAtoms() <= 40:
+            continue
+        if all(a.GetSymbol() != "C" for a in mol.GetAtoms()):
             continue
         if any(a.GetSymbol() not in ALLOWED or a.GetFormalCharge() != 0 and a.GetSymbol() not in ("N", "O") for a in mol.GetAtoms()):
             continue

@@ -727,7 +727,11 @@ impl Assign<'_> {
                 }
             } else if a.hydrogens == 1 {
                 if ether.is_some() {
-                    self.weak("approximation", "a formate ester: taken as O=CH- plus -O-", 40.0);
+                    self.weak(
+                        "approximation",
+                        "a formate ester: taken as O=CH- plus -O-",
+                        40.0,
+                    );
                 }
                 self.add(g::CHO);
             } else if a.hydrogens == 2 {
@@ -885,13 +889,25 @@ impl Assign<'_> {
         let n = m.atoms.len();
         let is_halogen = |z: Z| matches!(z, 9 | 17 | 35 | 53);
         if m.heavy_atom_count() <= 3 {
-            self.weak("small", "a very small molecule (3 heavy atoms or fewer)", 40.0);
+            self.weak(
+                "small",
+                "a very small molecule (3 heavy atoms or fewer)",
+                40.0,
+            );
         }
         // Rings: strain is not in the ring groups (cyclopropane ≈ 115 kJ/mol), unsaturation in a
         // small ring still less; aliphatic rings are fitted loosely.
         for ring in m.rings(8) {
-            let double_inside = m.bonds.iter().any(|b| b.kekule_order >= 2 && ring.binary_search(&b.a).is_ok() && ring.binary_search(&b.b).is_ok());
-            let triple_inside = m.bonds.iter().any(|b| b.kekule_order == 3 && ring.binary_search(&b.a).is_ok() && ring.binary_search(&b.b).is_ok());
+            let double_inside = m.bonds.iter().any(|b| {
+                b.kekule_order >= 2
+                    && ring.binary_search(&b.a).is_ok()
+                    && ring.binary_search(&b.b).is_ok()
+            });
+            let triple_inside = m.bonds.iter().any(|b| {
+                b.kekule_order == 3
+                    && ring.binary_search(&b.a).is_ok()
+                    && ring.binary_search(&b.b).is_ok()
+            });
             let aromatic = ring.iter().all(|&i| m.atoms[i].aromatic);
             match (ring.len(), double_inside) {
                 (3, true) => self.weak("strain", "an unsaturated three-membered ring", 120.0),
@@ -904,16 +920,29 @@ impl Assign<'_> {
                 self.weak("strain", "a triple bond in a ring", 150.0);
             }
             if aromatic && ring.iter().any(|&i| m.atoms[i].element != 6) {
-                self.weak("heteroaromatic", "an aromatic ring with a heteroatom (aromaticity is not a group)", 15.0);
+                self.weak(
+                    "heteroaromatic",
+                    "an aromatic ring with a heteroatom (aromaticity is not a group)",
+                    15.0,
+                );
             } else if !aromatic {
                 self.weak("aliphatic ring", "a non-aromatic ring", 15.0);
             }
         }
         for i in 0..n {
             let a = &m.atoms[i];
-            let ring_bonds: Vec<usize> = m.neighbours(i).filter(|&(_, b)| m.bonds[b].in_ring).map(|x| x.1).collect();
+            let ring_bonds: Vec<usize> = m
+                .neighbours(i)
+                .filter(|&(_, b)| m.bonds[b].in_ring)
+                .map(|x| x.1)
+                .collect();
             if ring_bonds.len() >= 3 {
-                let smallest = ring_bonds.iter().filter_map(|&b| m.ring_path(b, 8)).map(|r| r.len()).min().unwrap_or(8);
+                let smallest = ring_bonds
+                    .iter()
+                    .filter_map(|&b| m.ring_path(b, 8))
+                    .map(|r| r.len())
+                    .min()
+                    .unwrap_or(8);
                 if smallest <= 5 {
                     self.weak("fusion", "a fused or bridged atom of a small ring", 40.0);
                 } else {
@@ -921,23 +950,51 @@ impl Assign<'_> {
                 }
             }
             if a.element == 9 {
-                self.weak("fluorine", "a fluorine (fluorocarbons are fitted poorly)", 15.0);
+                self.weak(
+                    "fluorine",
+                    "a fluorine (fluorocarbons are fitted poorly)",
+                    15.0,
+                );
             }
-            let heavy_halogens = m.neighbours(i).filter(|&(w, _)| matches!(m.atoms[w].element, 17 | 35 | 53)).count();
-            let halogens = m.neighbours(i).filter(|&(w, _)| is_halogen(m.atoms[w].element)).count();
+            let heavy_halogens = m
+                .neighbours(i)
+                .filter(|&(w, _)| matches!(m.atoms[w].element, 17 | 35 | 53))
+                .count();
+            let halogens = m
+                .neighbours(i)
+                .filter(|&(w, _)| is_halogen(m.atoms[w].element))
+                .count();
             if a.element == 6 && halogens >= 2 && heavy_halogens >= 1 {
                 for _ in 1..halogens.min(heavy_halogens + 1) {
-                    self.weak("polyhalogen", "one more Cl, Br or I on a carbon (no interaction terms)", 20.0);
+                    self.weak(
+                        "polyhalogen",
+                        "one more Cl, Br or I on a carbon (no interaction terms)",
+                        20.0,
+                    );
                 }
             }
             let triple = m.neighbours(i).any(|(_, b)| m.bonds[b].kekule_order == 3);
             if a.element == 6 && triple {
                 let odd_neighbour = m.neighbours(i).any(|(w, b)| {
                     let wa = &m.atoms[w];
-                    m.bonds[b].kekule_order != 3 && (wa.element != 6 || m.neighbours(w).any(|(_, b2)| m.bonds[b2].kekule_order == 3 || (m.bonds[b2].kekule_order == 2 && b2 != b && m.neighbours(w).filter(|&(_, b3)| m.bonds[b3].kekule_order == 2).count() == 2)))
+                    m.bonds[b].kekule_order != 3
+                        && (wa.element != 6
+                            || m.neighbours(w).any(|(_, b2)| {
+                                m.bonds[b2].kekule_order == 3
+                                    || (m.bonds[b2].kekule_order == 2
+                                        && b2 != b
+                                        && m.neighbours(w)
+                                            .filter(|&(_, b3)| m.bonds[b3].kekule_order == 2)
+                                            .count()
+                                            == 2)
+                            }))
                 });
                 if odd_neighbour {
-                    self.weak("substituted alkyne", "a triple-bonded carbon on a heteroatom or another triple bond", 50.0);
+                    self.weak(
+                        "substituted alkyne",
+                        "a triple-bonded carbon on a heteroatom or another triple bond",
+                        50.0,
+                    );
                 }
             }
             if a.element == 8 && m.neighbours(i).any(|(w, _)| m.atoms[w].element == 8) {
@@ -945,10 +1002,19 @@ impl Assign<'_> {
             }
         }
         // Carbonyl carbons next to each other or carrying a halogen.
-        let carbonyl = |i: usize| m.atoms[i].element == 6 && m.neighbours(i).any(|(w, b)| m.bonds[b].kekule_order == 2 && m.atoms[w].element == 8 && m.degree(w) == 1);
+        let carbonyl = |i: usize| {
+            m.atoms[i].element == 6
+                && m.neighbours(i).any(|(w, b)| {
+                    m.bonds[b].kekule_order == 2 && m.atoms[w].element == 8 && m.degree(w) == 1
+                })
+        };
         for b in &m.bonds {
             if carbonyl(b.a) && carbonyl(b.b) {
-                self.weak("adjacent carbonyls", "two carbonyl groups bonded to each other", 30.0);
+                self.weak(
+                    "adjacent carbonyls",
+                    "two carbonyl groups bonded to each other",
+                    30.0,
+                );
             }
         }
         for i in 0..n {
@@ -957,19 +1023,50 @@ impl Assign<'_> {
             }
         }
         let polar: usize = [
-            g::OH_ALCOHOL, g::OH_PHENOL, g::O, g::R_O, g::CO, g::R_CO, g::CHO, g::COOH, g::COO, g::EQ_O, g::NH2, g::NH,
-            g::R_NH, g::N, g::EQ_N, g::R_EQ_N, g::EQ_NH, g::CN, g::NO2, g::SH, g::S, g::R_S,
+            g::OH_ALCOHOL,
+            g::OH_PHENOL,
+            g::O,
+            g::R_O,
+            g::CO,
+            g::R_CO,
+            g::CHO,
+            g::COOH,
+            g::COO,
+            g::EQ_O,
+            g::NH2,
+            g::NH,
+            g::R_NH,
+            g::N,
+            g::EQ_N,
+            g::R_EQ_N,
+            g::EQ_NH,
+            g::CN,
+            g::NO2,
+            g::SH,
+            g::S,
+            g::R_S,
         ]
         .iter()
         .map(|&k| self.counts[k - 1] as usize)
         .sum();
         for _ in 1..polar {
-            self.weak("polar", "one more polar group (no group-interaction terms)", 5.0);
+            self.weak(
+                "polar",
+                "one more polar group (no group-interaction terms)",
+                5.0,
+            );
         }
         for k in [g::EQ_C_EQ, g::R_C, g::EQ_N, g::EQ_NH] {
             for _ in 0..self.counts[k - 1] {
                 let sigma = if k == g::EQ_C_EQ { 30.0 } else { 10.0 };
-                self.weak("rare group", format!("group {} (few compounds behind its value)", GROUPS[k - 1].name), sigma);
+                self.weak(
+                    "rare group",
+                    format!(
+                        "group {} (few compounds behind its value)",
+                        GROUPS[k - 1].name
+                    ),
+                    sigma,
+                );
             }
         }
     }
@@ -991,6 +1088,11 @@ impl Groups {
         if m.formula().charge != 0 {
             return Err(JobackError::NotAMolecule(
                 "this structure has a net charge".into(),
+            ));
+        }
+        if m.atoms.iter().any(|a| a.isotope.is_some()) {
+            return Err(JobackError::NotAMolecule(
+                "isotope labels are not covered by the group values".into(),
             ));
         }
         if m.atoms.iter().any(|a| a.element == 1) {

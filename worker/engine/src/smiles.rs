@@ -490,16 +490,17 @@ impl Parser<'_> {
                             })
                         }
                         Some(open) => {
-                            let order =
-                                match (open.bond, written.map(|b| b.0)) {
-                                    (Some(a), Some(b)) if a != b => return err(
+                            let order = match (open.bond, written.map(|b| b.0)) {
+                                (Some(a), Some(b)) if a != b => {
+                                    return err(
                                         at,
                                         format!(
                                             "ring bond {n} is written with two different orders"
                                         ),
-                                    ),
-                                    (a, b) => a.or(b),
-                                };
+                                    )
+                                }
+                                (a, b) => a.or(b),
+                            };
                             self.add_bond(open.atom, p, order, at)?;
                         }
                     }
@@ -571,6 +572,7 @@ impl Molecule {
         m.build_adjacency();
         m.kekulize()?;
         m.implicit_hydrogens();
+        m.charge_separate();
         m.fold_explicit_hydrogens();
         m.perceive_rings();
         m.perceive_aromaticity();
@@ -690,6 +692,39 @@ impl Molecule {
                 self.atoms[i].hydrogens = h as u8;
             }
             self.atoms[i].valence = (sum + self.atoms[i].hydrogens as u32).min(255) as u8;
+        }
+    }
+
+    /// Write hypervalent N and halogen oxides charge-separated, as RDKit's sanitization does, so
+    /// both spellings share one graph: a neutral five-valent N with `=O` becomes `[N+][O-]`
+    /// (`CN(=O)=O` reads as `C[N+](=O)[O-]`), and each `=O` on Cl, Br or I becomes `[X+][O-]`
+    /// (`OCl(=O)(=O)=O` reads as `O[Cl+3]([O-])([O-])[O-]`).
+    fn charge_separate(&mut self) {
+        for i in 0..self.atoms.len() {
+            let a = &self.atoms[i];
+            let convert_all = match a.element {
+                7 if a.charge == 0 && a.valence == 5 => false,
+                17 | 35 | 53 if a.charge == 0 && a.valence > 1 => true,
+                _ => continue,
+            };
+            let oxo: Vec<(usize, usize)> = self
+                .neighbours(i)
+                .filter(|&(w, b)| {
+                    self.bonds[b].kekule_order == 2
+                        && self.atoms[w].element == 8
+                        && self.atoms[w].charge == 0
+                        && self.degree(w) == 1
+                        && self.atoms[w].hydrogens == 0
+                })
+                .collect();
+            for &(w, b) in oxo.iter().take(if convert_all { oxo.len() } else { 1 }) {
+                self.bonds[b].kekule_order = 1;
+                self.bonds[b].order = BondOrder::Single;
+                self.atoms[w].charge = -1;
+                self.atoms[w].valence -= 1;
+                self.atoms[i].charge += 1;
+                self.atoms[i].valence -= 1;
+            }
         }
     }
 
@@ -1545,6 +1580,10 @@ mod tests {
         assert_eq!(hill("[H]C([H])([H])[H]"), "CH4");
         assert_eq!(hill("[C@TH1H](F)(Cl)Br"), "CHBrClF");
         assert_eq!(hill("[CH3]"), "CH3");
+        // Hypervalent spellings are charge-separated (as RDKit sanitizes them): one graph.
+        assert_eq!(key("CN(=O)=O"), key("C[N+](=O)[O-]"));
+        assert_eq!(key("OCl(=O)(=O)=O"), key("O[Cl+3]([O-])([O-])[O-]"));
+        assert_eq!(hill("CN(=O)=O"), "CH3NO2");
         let m = Molecule::parse("[13CH3:7][OH]", 0).unwrap();
         assert_eq!(
             (m.atoms[0].isotope, m.atoms[0].class, m.atoms[0].hydrogens),

@@ -9,12 +9,21 @@
 //!
 //! Both print the mean absolute error (MAE) and the 2σ coverage (`cargo test -- --nocapture`).
 
-mod reference_common;
-use reference_common::Tsv;
+mod common;
+use common::Tsv;
 use thermosieve_engine::joback::Estimate;
 use thermosieve_engine::smiles::Molecule;
 
-const RULE_SETTING: [&str; 8] = ["C1CC1", "ClC(Cl)(Cl)Cl", "c1ccccc1", "c1ccc2ccccc2c1", "c1ccoc1", "c1ccncc1", "c1ccsc1", "c1cc[nH]c1"];
+const RULE_SETTING: [&str; 8] = [
+    "C1CC1",
+    "ClC(Cl)(Cl)Cl",
+    "c1ccccc1",
+    "c1ccc2ccccc2c1",
+    "c1ccoc1",
+    "c1ccncc1",
+    "c1ccsc1",
+    "c1cc[nH]c1",
+];
 
 struct Stats {
     n: usize,
@@ -27,9 +36,15 @@ struct Stats {
 fn compare(text: &str) -> Stats {
     let t = Tsv::parse(text);
     let (smi, name, hf) = (t.col("smiles"), t.col("name"), t.col("dhf_gas_kj_per_mol"));
-    let excluded: Vec<String> = RULE_SETTING.iter().map(|s| Molecule::parse(s, 0).unwrap().canonical_key()).collect();
+    let excluded: Vec<String> = RULE_SETTING
+        .iter()
+        .map(|s| Molecule::parse(s, 0).unwrap().canonical_key())
+        .collect();
     let (mut n, mut abs_sum, mut inside, mut skipped) = (0usize, 0.0, 0usize, 0usize);
-    let mut lines = vec![format!("{:<40} {:>9} {:>9} {:>8} {:>6}", "molecule", "exp", "Joback", "error", "σ")];
+    let mut lines = vec![format!(
+        "{:<40} {:>9} {:>9} {:>8} {:>6}",
+        "molecule", "exp", "Joback", "error", "σ"
+    )];
     for r in &t.rows {
         let Ok(m) = Molecule::parse(&r[smi], 0) else {
             skipped += 1;
@@ -49,9 +64,23 @@ fn compare(text: &str) -> Stats {
         abs_sum += err.abs();
         let ok = err.abs() <= 2.0 * sigma;
         inside += usize::from(ok);
-        lines.push(format!("{:<40} {:>9.1} {:>9.1} {:>8.1} {:>6.1}{}", r[name], exp, e.dhf_gas_kj_per_mol, err, sigma, if ok { "" } else { "  outside 2σ" }));
+        lines.push(format!(
+            "{:<40} {:>9.1} {:>9.1} {:>8.1} {:>6.1}{}",
+            r[name],
+            exp,
+            e.dhf_gas_kj_per_mol,
+            err,
+            sigma,
+            if ok { "" } else { "  outside 2σ" }
+        ));
     }
-    Stats { n, skipped, mae: abs_sum / n as f64, coverage: inside as f64 / n as f64, table: lines.join("\n") }
+    Stats {
+        n,
+        skipped,
+        mae: abs_sum / n as f64,
+        coverage: inside as f64 / n as f64,
+        table: lines.join("\n"),
+    }
 }
 
 #[test]
@@ -68,5 +97,10 @@ fn held_out_set_crc_inside_two_sigma() {
     println!("{}", s.table);
     println!("Joback vs CRC Handbook (held out): {} molecules ({} not estimable), MAE {:.1} kJ/mol, inside 2σ {:.2}", s.n, s.skipped, s.mae, s.coverage);
     assert!(s.n >= 50, "only {} molecules compared", s.n);
-    assert!(s.coverage >= 0.80, "2σ coverage {:.2} (MAE {:.1} kJ/mol)", s.coverage, s.mae);
+    assert!(
+        s.coverage >= 0.80,
+        "2σ coverage {:.2} (MAE {:.1} kJ/mol)",
+        s.coverage,
+        s.mae
+    );
 }

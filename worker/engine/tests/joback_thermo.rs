@@ -4,8 +4,8 @@
 //! `scripts/requirements-structures.txt`). Same group table, so: identical group counts and
 //! ΔfH° within 0.1 kJ/mol; ΔfG° within 0.1 kJ/mol, Tb and Tc within 0.01 K, Cp within 0.01 J/mol/K.
 
-mod reference_common;
-use reference_common::Tsv;
+mod common;
+use common::Tsv;
 use thermosieve_engine::joback::Estimate;
 use thermosieve_engine::smiles::Molecule;
 
@@ -13,21 +13,45 @@ use thermosieve_engine::smiles::Molecule;
 fn joback_matches_thermo() {
     let t = Tsv::parse(include_str!("reference/joback_thermo.tsv"));
     let c = |n: &str| t.col(n);
-    let (smi, groups, hf, gf, tb, tc, cp298, cp500) = (c("smiles"), c("groups"), c("dhf_gas_kj_per_mol"), c("dgf_gas_kj_per_mol"), c("tb_k"), c("tc_k"), c("cp_298_j_per_mol_k"), c("cp_500_j_per_mol_k"));
+    let (smi, groups, hf, gf, tb, tc, cp298, cp500) = (
+        c("smiles"),
+        c("groups"),
+        c("dhf_gas_kj_per_mol"),
+        c("dgf_gas_kj_per_mol"),
+        c("tb_k"),
+        c("tc_k"),
+        c("cp_298_j_per_mol_k"),
+        c("cp_500_j_per_mol_k"),
+    );
     assert!(t.rows.len() >= 100, "{} molecules", t.rows.len());
     let mut failures = Vec::new();
     for r in &t.rows {
         let num = |k: usize| r[k].parse::<f64>().unwrap();
-        let e = match Molecule::parse(&r[smi], 0).map_err(|e| e.to_string()).and_then(|m| Estimate::of(&m).map_err(|e| e.to_string())) {
+        let e = match Molecule::parse(&r[smi], 0)
+            .map_err(|e| e.to_string())
+            .and_then(|m| Estimate::of(&m).map_err(|e| e.to_string()))
+        {
             Ok(e) => e,
             Err(e) => {
                 failures.push(format!("{}: {e}", r[smi]));
                 continue;
             }
         };
-        let ours: Vec<String> = e.groups.counts.iter().enumerate().filter(|(_, &n)| n > 0).map(|(k, n)| format!("{}:{n}", k + 1)).collect();
+        let ours: Vec<String> = e
+            .groups
+            .counts
+            .iter()
+            .enumerate()
+            .filter(|(_, &n)| n > 0)
+            .map(|(k, n)| format!("{}:{n}", k + 1))
+            .collect();
         if ours.join(",") != r[groups] {
-            failures.push(format!("{}: groups {} vs thermo {}", r[smi], ours.join(","), r[groups]));
+            failures.push(format!(
+                "{}: groups {} vs thermo {}",
+                r[smi],
+                ours.join(","),
+                r[groups]
+            ));
             continue;
         }
         let checks = [
@@ -44,5 +68,11 @@ fn joback_matches_thermo() {
             }
         }
     }
-    assert!(failures.is_empty(), "{} of {} failed:\n{}", failures.len(), t.rows.len(), failures.join("\n"));
+    assert!(
+        failures.is_empty(),
+        "{} of {} failed:\n{}",
+        failures.len(),
+        t.rows.len(),
+        failures.join("\n")
+    );
 }

@@ -33,6 +33,8 @@ pub struct Prepared {
     at_grid: Vec<State>,
     /// States at [`ladder_k`] temperatures, for the ΔrG° = 0 search.
     at_ladder: Vec<State>,
+    /// Where the phase as written stops being stable at 1 bar (boiling, melting), if inside its data.
+    pub transition_k: Option<f64>,
 }
 
 /// One species of a screened reaction with its stoichiometric number (negative for reactants).
@@ -96,6 +98,10 @@ impl<'t> Screener<'t> {
             at_ref: eval(T_REF_K),
             at_grid: self.grid.temperatures_k().iter().map(|&t| eval(t)).collect(),
             at_ladder: ladder_k().map(eval).collect(),
+            transition_k: {
+                let (lo, hi) = resolved.range_k();
+                resolved.transition_k(lo.max(T_REF_K), hi)
+            },
             resolved,
         }
     }
@@ -181,8 +187,15 @@ impl<'t> Screener<'t> {
             .zip(coefficients)
             .map(|(((p, _, _, _), &side), c)| SpeciesTerm { species: p, nu: if side == Side::Reactant { c.checked_neg().unwrap_or(c) } else { c } })
             .collect();
+        let grid_max = self.grid.temperatures_k().iter().copied().fold(T_REF_K, f64::max);
         for s in &species {
             notes.extend(s.species.resolved.notes.iter().cloned());
+            if let Some(t) = s.species.transition_k.filter(|&t| t < grid_max) {
+                notes.push(format!(
+                    "{} is not the stable phase above {t:.1} K at 1 bar (it boils or melts there): points above are flagged",
+                    s.species.resolved.label
+                ));
+            }
         }
         Ok(self.evaluate(species, raw.arrow, outcome, notes))
     }

@@ -70,7 +70,12 @@ impl Segment {
 pub struct State {
     pub h_j_per_mol: f64,
     pub s_j_per_mol_k: f64,
+    /// Inside the range the data covers.
     pub in_range: bool,
+    /// False when another phase of the compound has a lower Gibbs energy here at 1 bar (a liquid
+    /// above its boiling point, a solid above its melting point): the phase as written is not
+    /// the stable one, and results that use it are flagged.
+    pub stable: bool,
 }
 
 impl State {
@@ -146,6 +151,9 @@ pub struct Resolved {
     pub dhf_uncertainty_kj_per_mol: Option<f64>,
     /// Things the user should know about how this species was resolved.
     pub notes: Vec<String>,
+    /// Segments of the compound's other phases that could be more stable (gas for a liquid;
+    /// liquid and gas for a solid), to detect boiling and melting inside a grid.
+    pub rivals: Vec<Segment>,
 }
 
 impl Resolved {
@@ -172,7 +180,36 @@ impl Resolved {
                 (h, s, false)
             }
         };
-        State { h_j_per_mol: h * R * t, s_j_per_mol_k: s * R, in_range }
+        let own_g = h - s;
+        let stable = !self.rivals.iter().filter(|r| r.covers(t)).any(|r| {
+            let (rh, rs) = r.h_rt_s_r(t, ln_t);
+            rh - rs < own_g - 1e-9
+        });
+        State { h_j_per_mol: h * R * t, s_j_per_mol_k: s * R, in_range, stable }
+    }
+
+    /// Lowest temperature in `[lo, hi]` above which the phase as written stops being the stable
+    /// one (boiling or melting at 1 bar), to 0.01 K; `None` when it stays stable.
+    pub fn transition_k(&self, lo: f64, hi: f64) -> Option<f64> {
+        if self.rivals.is_empty() {
+            return None;
+        }
+        let stable = |t: f64| self.state(t, t.ln()).stable;
+        let steps = 200;
+        let mut prev = lo;
+        for k in 1..=steps {
+            let t = lo + (hi - lo) * k as f64 / steps as f64;
+            if stable(prev) && !stable(t) {
+                let (mut a, mut b) = (prev, t);
+                while b - a > 0.01 {
+                    let m = 0.5 * (a + b);
+                    if stable(m) { a = m } else { b = m }
+                }
+                return Some(0.5 * (a + b));
+            }
+            prev = t;
+        }
+        None
     }
 
     /// Lowest and highest temperature any segment covers.
@@ -182,18 +219,22 @@ impl Resolved {
         (lo, hi)
     }
 
-    /// One line naming the data behind this species.
+    /// One line naming the data behind this species: the source, then each record used.
     pub fn source_line(&self, table: &Table) -> String {
-        let parts: Vec<String> = self
-            .origin
-            .iter()
-            .map(|o| match o {
-                Origin::Tabulated { record, note } if note.is_empty() => format!("{} [{record}]", table.source_name),
-                Origin::Tabulated { record, note } => format!("{} [{record}; {note}]", table.source_name),
-                Origin::Supplied => "values supplied with the request".to_string(),
-            })
-            .collect();
-        parts.join(" + ")
+        let mut tabulated = Vec::new();
+        let mut supplied = false;
+        for o in &self.origin {
+            match o {
+                Origin::Tabulated { record, note } if note.is_empty() => tabulated.push(record.clone()),
+                Origin::Tabulated { record, note } => tabulated.push(format!("{record} ({note})")),
+                Origin::Supplied => supplied = true,
+            }
+        }
+        match (supplied, tabulated.is_empty()) {
+            (true, _) => "values supplied with the request".to_string(),
+            (false, false) => format!("{}: {}", table.source_name, tabulated.join("; ")),
+            (false, true) => table.source_name.clone(),
+        }
     }
 }
 
@@ -440,6 +481,17 @@ impl Table {
             (p, None) => format!("{}({})", spec.text_with_charge(), p.tag()),
         };
         let recs: Vec<&Record> = ids.iter().map(|&k| &self.records[k]).collect();
+        let rival_phases: &[Phase] = match phase {
+            Phase::Liquid => &[Phase::Gas],
+            Phase::Solid => &[Phase::Liquid, Phase::Gas],
+            Phase::Gas | Phase::Aqueous => &[],
+        };
+        let rivals: Vec<Segment> = all
+            .iter()
+            .map(|&k| &self.records[k])
+            .filter(|r| rival_phases.contains(&r.phase) && r.base.eq_ignore_ascii_case(&recs[0].base))
+            .flat_map(|r| r.segments.iter().copied())
+            .collect();
         Ok(Resolved {
             label,
             formula: recs[0].formula.clone(),
@@ -448,6 +500,7 @@ impl Table {
             origin: recs.iter().map(|r| Origin::Tabulated { record: r.name.clone(), note: r.note.clone() }).collect(),
             dhf_uncertainty_kj_per_mol: recs[0].dhf_uncertainty_kj_per_mol,
             notes,
+            rivals,
         })
     }
 
@@ -498,6 +551,7 @@ pub fn from_supplied(spec: &SpeciesSpec, v: &SuppliedSpecies) -> Resolved {
         origin: vec![Origin::Supplied],
         dhf_uncertainty_kj_per_mol: v.dhf_uncertainty_kj_per_mol,
         notes,
+        rivals: Vec::new(),
     }
 }
 

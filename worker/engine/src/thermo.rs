@@ -68,7 +68,8 @@ pub struct ThermoPoint {
     pub delta_s_j_per_mol_k: f64,
     pub delta_g_kj_per_mol: f64,
     pub log10_k: f64,
-    /// False when any species is outside the range its data is valid for (values extrapolated).
+    /// False when any species is outside the range its data is valid for (values extrapolated),
+    /// or is past a phase change (a liquid above its boiling point at 1 bar).
     pub in_valid_range: bool,
 }
 
@@ -78,7 +79,7 @@ pub fn point<'a>(t: f64, terms: impl Iterator<Item = (f64, &'a State)>) -> Therm
     for (nu, s) in terms {
         dh += nu * s.h_j_per_mol;
         ds += nu * s.s_j_per_mol_k;
-        ok &= s.in_range;
+        ok &= s.in_range && s.stable;
     }
     let dg = dh - t * ds;
     ThermoPoint {

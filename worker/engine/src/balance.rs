@@ -94,32 +94,41 @@ fn rows(columns: &[Column]) -> (Vec<Z>, bool) {
     (zs, columns.iter().any(|c| c.formula.charge != 0))
 }
 
-fn matrix(columns: &[Column]) -> (Vec<Vec<i128>>, Vec<String>) {
+fn matrix(columns: &[Column]) -> Vec<Vec<i128>> {
     let (zs, charged) = rows(columns);
     let mut m: Vec<Vec<i128>> = zs
         .iter()
         .map(|&z| columns.iter().map(|c| c.side.sign() * c.formula.count(z) as i128).collect())
         .collect();
-    let mut keys: Vec<String> = zs.iter().map(|&z| elements::symbol(z).to_string()).collect();
     if charged {
         m.push(columns.iter().map(|c| c.side.sign() * c.formula.charge as i128).collect());
-        keys.push("charge".into());
     }
-    (m, keys)
+    m
 }
 
 /// Products minus reactants per row for the given positive coefficients.
 fn residual(columns: &[Column], coefficients: &[Rational]) -> Result<Vec<(String, Rational)>, BalanceError> {
-    let (m, keys) = matrix(columns);
+    let ov = |_| BalanceError::Overflow;
+    let (zs, charged) = rows(columns);
     let mut out = Vec::new();
-    for (row, key) in m.iter().zip(keys) {
+    let mut row_sum = |amount: &dyn Fn(&Column) -> i128| -> Result<Rational, BalanceError> {
         let mut sum = Rational::ZERO;
-        for (&a, &c) in row.iter().zip(coefficients) {
-            let term = Rational::integer(a).checked_mul(c).map_err(|_| BalanceError::Overflow)?;
-            sum = sum.checked_add(term).map_err(|_| BalanceError::Overflow)?;
+        for (c, &k) in columns.iter().zip(coefficients) {
+            let a = Rational::integer(c.side.sign() * amount(c));
+            sum = sum.checked_add(a.checked_mul(k).map_err(ov)?).map_err(ov)?;
         }
+        Ok(sum)
+    };
+    for &z in &zs {
+        let sum = row_sum(&|c: &Column| c.formula.count(z) as i128)?;
         if !sum.is_zero() {
-            out.push((key, sum));
+            out.push((elements::symbol(z).to_string(), sum));
+        }
+    }
+    if charged {
+        let sum = row_sum(&|c: &Column| c.formula.charge as i128)?;
+        if !sum.is_zero() {
+            out.push(("charge".to_string(), sum));
         }
     }
     Ok(out)
@@ -216,7 +225,7 @@ pub fn balance(columns: &[Column]) -> Result<Balance, BalanceError> {
     if residual(columns, &ones)?.is_empty() {
         return Ok(Balance { outcome: Outcome::AlreadyBalanced, coefficients: ones });
     }
-    let (mut m, _) = matrix(columns);
+    let mut m = matrix(columns);
     let n = columns.len();
     let pivots = row_reduce(&mut m, n)?;
     let free: Vec<usize> = (0..n).filter(|c| !pivots.contains(c)).collect();

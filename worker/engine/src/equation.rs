@@ -62,6 +62,11 @@ fn find_arrow(s: &str) -> Result<(usize, usize, Arrow), SyntaxError> {
     let b = s.as_bytes();
     let mut i = 0;
     while i < b.len() {
+        // Every arrow starts with one of these bytes (0xE2 leads → and ⇌ in UTF-8).
+        if !matches!(b[i], b'-' | b'=' | b'<' | 0xE2) {
+            i += 1;
+            continue;
+        }
         let hit = ARROWS.iter().find(|(a, _)| s[i..].starts_with(a));
         if let Some(&(a, kind)) = hit {
             if found.is_some() {

@@ -10,9 +10,30 @@ use crate::equation::{split_equation, Arrow, RawTerm};
 use crate::formula::{parse_species, SpeciesSpec, SyntaxError};
 use crate::rational::Rational;
 use crate::species::{from_supplied, Resolved, ResolveError, State, SuppliedSpecies, Table, T_REF_K};
-use crate::thermo::{self, ladder_k, TemperatureGrid, ThermoPoint};
+use crate::thermo::{self, TemperatureGrid, ThermoPoint, LADDER};
 use std::collections::HashMap;
+use std::hash::{BuildHasherDefault, Hasher};
 use std::sync::Arc;
+
+/// FNV-1a: species texts are short, and SipHash's DoS resistance buys nothing for a cache the
+/// caller fills from its own batch.
+#[derive(Default)]
+struct Fnv(u64);
+
+impl Hasher for Fnv {
+    fn write(&mut self, bytes: &[u8]) {
+        let mut h = if self.0 == 0 { 0xcbf2_9ce4_8422_2325 } else { self.0 };
+        for &b in bytes {
+            h = (h ^ b as u64).wrapping_mul(0x0100_0000_01b3);
+        }
+        self.0 = h;
+    }
+    fn finish(&self) -> u64 {
+        self.0
+    }
+}
+
+type SpeciesCache = HashMap<String, Result<Arc<Prepared>, ResolveError>, BuildHasherDefault<Fnv>>;
 
 /// Why one reaction could not be screened. Each error is about this case only.
 #[derive(Clone, Debug, PartialEq, thiserror::Error)]
@@ -31,8 +52,8 @@ pub struct Prepared {
     pub resolved: Resolved,
     at_ref: State,
     at_grid: Vec<State>,
-    /// States at [`ladder_k`] temperatures, for the ΔrG° = 0 search.
-    at_ladder: Vec<State>,
+    /// Gibbs energy (J/mol) at the [`LADDER`] temperatures, for the ΔrG° = 0 search.
+    g_ladder: [f64; LADDER.count],
     /// Where the phase as written stops being stable at 1 bar (boiling, melting), if inside its data.
     pub transition_k: Option<f64>,
 }
@@ -69,12 +90,12 @@ pub struct Screener<'t> {
     table: &'t Table,
     grid: TemperatureGrid,
     supplied: HashMap<String, SuppliedSpecies>,
-    cache: HashMap<String, Result<Arc<Prepared>, ResolveError>>,
+    cache: SpeciesCache,
 }
 
 impl<'t> Screener<'t> {
     pub fn new(table: &'t Table, grid: TemperatureGrid) -> Screener<'t> {
-        Screener { table, grid, supplied: HashMap::new(), cache: HashMap::new() }
+        Screener { table, grid, supplied: HashMap::new(), cache: SpeciesCache::default() }
     }
 
     pub fn grid(&self) -> &TemperatureGrid {
@@ -97,7 +118,10 @@ impl<'t> Screener<'t> {
         Prepared {
             at_ref: eval(T_REF_K),
             at_grid: self.grid.temperatures_k().iter().map(|&t| eval(t)).collect(),
-            at_ladder: ladder_k().map(eval).collect(),
+            g_ladder: std::array::from_fn(|i| {
+                let t = LADDER.t(i);
+                eval(t).g_j_per_mol(t)
+            }),
             transition_k: {
                 let (lo, hi) = resolved.range_k();
                 resolved.transition_k(lo.max(T_REF_K), hi)
@@ -233,43 +257,58 @@ impl<'t> Screener<'t> {
         }
     }
 
+    /// Sample ΔrG° from the species' cached ladder values (50 K steps) and at 298.15 K, inside the
+    /// span all species' data cover, then refine the first sign change by direct evaluation.
     fn delta_g_zero(&self, species: &[SpeciesTerm], nus: &[f64], lo: f64, hi: f64) -> Option<f64> {
-        let dg_at = |states: &dyn Fn(&Prepared) -> State, t: f64| -> f64 {
-            nus.iter().zip(species).map(|(n, s)| n * states(&s.species).g_j_per_mol(t)).sum()
-        };
-        let refs: Vec<(f64, &Resolved)> = nus.iter().zip(species).map(|(&n, s)| (n, &s.species.resolved)).collect();
-        let direct = |t: f64| dg_at(&|p: &Prepared| p.resolved.state(t, t.ln()), t);
-        let mut samples = Vec::with_capacity(120);
-        samples.push((lo, direct(lo)));
-        for (i, t) in ladder_k().enumerate() {
-            if t > lo && t < hi {
-                samples.push((t, dg_at(&|p: &Prepared| p.at_ladder[i], t)));
+        let (first, last) = LADDER.indices_within(lo, hi)?;
+        // Species-major accumulation: one pass per species over contiguous values.
+        let mut acc = [0.0f64; LADDER.count];
+        for (n, s) in nus.iter().zip(species) {
+            for (a, g) in acc[first..=last].iter_mut().zip(&s.species.g_ladder[first..=last]) {
+                *a += n * g;
             }
         }
-        samples.push((hi, direct(hi)));
+        let mut samples: Vec<(f64, f64)> = Vec::with_capacity(last - first + 2);
+        let g_ref: f64 = nus.iter().zip(species).map(|(n, s)| n * s.species.at_ref.g_j_per_mol(T_REF_K)).sum();
+        let mut ref_pending = (lo..=hi).contains(&T_REF_K);
+        for (i, &g) in acc.iter().enumerate().take(last + 1).skip(first) {
+            let t = LADDER.t(i);
+            if ref_pending && t > T_REF_K {
+                samples.push((T_REF_K, g_ref));
+                ref_pending = false;
+            }
+            samples.push((t, g));
+        }
+        if ref_pending {
+            samples.push((T_REF_K, g_ref));
+        }
+        let refs: Vec<(f64, &Resolved)> = nus.iter().zip(species).map(|(&n, s)| (n, &s.species.resolved)).collect();
         thermo::delta_g_zero_k(&refs, &samples)
     }
 }
 
 fn write_equation(species: &[SpeciesTerm], arrow: Arrow) -> String {
-    let side = |reactant: bool| -> String {
-        let parts: Vec<String> = species
-            .iter()
-            .filter(|s| (s.nu.signum() < 0) == reactant)
-            .map(|s| {
-                let c = if reactant { s.nu.checked_neg().unwrap_or(s.nu) } else { s.nu };
-                if c == Rational::ONE {
-                    s.species.resolved.label.clone()
-                } else {
-                    format!("{c} {}", s.species.resolved.label)
-                }
-            })
-            .collect();
-        parts.join(" + ")
-    };
-    let a = match arrow {
-        Arrow::Forward => "->",
-        Arrow::Equilibrium => "<=>",
-    };
-    format!("{} {a} {}", side(true), side(false))
+    use std::fmt::Write as _;
+    let mut out = String::with_capacity(64);
+    for reactant in [true, false] {
+        if !reactant {
+            out.push_str(match arrow {
+                Arrow::Forward => " -> ",
+                Arrow::Equilibrium => " <=> ",
+            });
+        }
+        let mut first = true;
+        for s in species.iter().filter(|s| (s.nu.signum() < 0) == reactant) {
+            if !first {
+                out.push_str(" + ");
+            }
+            first = false;
+            let c = if reactant { s.nu.checked_neg().unwrap_or(s.nu) } else { s.nu };
+            if c != Rational::ONE {
+                let _ = write!(out, "{c} ");
+            }
+            out.push_str(&s.species.resolved.label);
+        }
+    }
+    out
 }

@@ -268,20 +268,38 @@ impl<'t> Screener<'t> {
                 *a += n * g;
             }
         }
-        let mut samples: Vec<(f64, f64)> = Vec::with_capacity(last - first + 2);
         let g_ref: f64 = nus.iter().zip(species).map(|(n, s)| n * s.species.at_ref.g_j_per_mol(T_REF_K)).sum();
-        let mut ref_pending = (lo..=hi).contains(&T_REF_K);
+        let with_ref = (lo..=hi).contains(&T_REF_K);
+        // Walk the samples in temperature order (298.15 K slotted in) to the first sign change.
+        let mut prev: Option<(f64, f64)> = None;
+        let mut bracket = None;
+        let mut ref_pending = with_ref;
         for (i, &g) in acc.iter().enumerate().take(last + 1).skip(first) {
             let t = LADDER.t(i);
+            let mut visit = |p: (f64, f64)| {
+                if bracket.is_none() {
+                    if let Some(q) = prev {
+                        if q.1 == 0.0 || q.1.signum() != p.1.signum() {
+                            bracket = Some([q, p]);
+                        }
+                    }
+                    prev = Some(p);
+                }
+            };
             if ref_pending && t > T_REF_K {
-                samples.push((T_REF_K, g_ref));
+                visit((T_REF_K, g_ref));
                 ref_pending = false;
             }
-            samples.push((t, g));
+            visit((t, g));
         }
-        if ref_pending {
-            samples.push((T_REF_K, g_ref));
+        if ref_pending && bracket.is_none() {
+            if let Some(q) = prev {
+                if q.1 == 0.0 || q.1.signum() != g_ref.signum() {
+                    bracket = Some([q, (T_REF_K, g_ref)]);
+                }
+            }
         }
+        let samples = bracket?;
         let refs: Vec<(f64, &Resolved)> = nus.iter().zip(species).map(|(&n, s)| (n, &s.species.resolved)).collect();
         thermo::delta_g_zero_k(&refs, &samples)
     }

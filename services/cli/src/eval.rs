@@ -21,7 +21,11 @@ pub struct EvalArgs {
 pub const EXIT_REJECTED: u8 = 3;
 
 pub fn run(args: &EvalArgs) -> ExitCode {
-    let grid = match args.temperatures_k.clone().map_or(Ok(TemperatureGrid::default_process()), TemperatureGrid::new) {
+    let grid = match args
+        .temperatures_k
+        .clone()
+        .map_or(Ok(TemperatureGrid::default_process()), TemperatureGrid::new)
+    {
         Ok(g) => g,
         Err(e) => {
             eprintln!("error: --temperatures-k: {e}");
@@ -86,11 +90,19 @@ pub fn render(s: &Screened, table: &species::Table) -> String {
             let _ = writeln!(o, "ΔrG° = 0 at {t:.1} K ({:.1} °C)", t - 273.15);
         }
         None => {
-            let _ = writeln!(o, "ΔrG° keeps one sign from {:.0} to {:.0} K (the span every species' data covers)", s.valid_range_k.0, s.valid_range_k.1);
+            let _ = writeln!(
+                o,
+                "ΔrG° keeps one sign from {:.0} to {:.0} K (the span every species' data covers)",
+                s.valid_range_k.0, s.valid_range_k.1
+            );
         }
     }
     let _ = writeln!(o);
-    let _ = writeln!(o, "{:>10} {:>9} {:>12} {:>14} {:>12} {:>10}  data", "T / K", "T / °C", "ΔrH° kJ/mol", "ΔrS° J/(mol·K)", "ΔrG° kJ/mol", "log10 K");
+    let _ = writeln!(
+        o,
+        "{:>10} {:>9} {:>12} {:>14} {:>12} {:>10}  data",
+        "T / K", "T / °C", "ΔrH° kJ/mol", "ΔrS° J/(mol·K)", "ΔrG° kJ/mol", "log10 K"
+    );
     for p in &s.points {
         let _ = writeln!(
             o,
@@ -101,7 +113,11 @@ pub fn render(s: &Screened, table: &species::Table) -> String {
             p.delta_s_j_per_mol_k,
             p.delta_g_kj_per_mol,
             p.log10_k,
-            if p.in_valid_range { "in range" } else { "FLAGGED: a species is outside its data range or past a phase change" }
+            if p.in_valid_range {
+                "in range"
+            } else {
+                "FLAGGED: a species is outside its data range or past a phase change"
+            }
         );
     }
     let _ = writeln!(o);
@@ -109,7 +125,13 @@ pub fn render(s: &Screened, table: &species::Table) -> String {
     for t in &s.species {
         let r = &t.species.resolved;
         let (lo, hi) = r.range_k();
-        let _ = writeln!(o, "  {:<16} ν = {:>6}  valid {lo:.2}–{hi:.0} K  {}", r.label, t.nu.to_string(), r.source_line(table));
+        let _ = writeln!(
+            o,
+            "  {:<16} ν = {:>6}  valid {lo:.2}–{hi:.0} K  {}",
+            r.label,
+            t.nu.to_string(),
+            r.source_line(table)
+        );
     }
     if !s.notes.is_empty() {
         let _ = writeln!(o);

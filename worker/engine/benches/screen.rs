@@ -50,7 +50,9 @@ fn bench(c: &mut Criterion) {
     });
     g.finish();
     c.bench_function("bundled_table_parse", |b| {
-        b.iter(|| black_box(species::Table::from_tsv(black_box(include_str!("../data/nasa_species.tsv")), "bench").map(|t| t.records.len())))
+        b.iter(|| {
+            black_box(species::Table::from_tsv(black_box(include_str!("../data/nasa_species.tsv")), "bench").map(|t| t.records.len()))
+        })
     });
 }
 

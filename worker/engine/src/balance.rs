@@ -73,7 +73,11 @@ fn describe_residual(r: &[(String, Rational)]) -> String {
     let parts: Vec<String> = r
         .iter()
         .map(|(k, v)| {
-            let side = if v.signum() > 0 { "more on the product side" } else { "more on the reactant side" };
+            let side = if v.signum() > 0 {
+                "more on the product side"
+            } else {
+                "more on the reactant side"
+            };
             let abs = if v.signum() < 0 { v.checked_neg().unwrap_or(*v) } else { *v };
             format!("{k}: {abs} {side}")
         })
@@ -111,7 +115,7 @@ fn residual(columns: &[Column], coefficients: &[Rational]) -> Result<Vec<(String
     let ov = |_| BalanceError::Overflow;
     let (zs, charged) = rows(columns);
     let mut out = Vec::new();
-    let mut row_sum = |amount: &dyn Fn(&Column) -> i128| -> Result<Rational, BalanceError> {
+    let row_sum = |amount: &dyn Fn(&Column) -> i128| -> Result<Rational, BalanceError> {
         let mut sum = Rational::ZERO;
         for (c, &k) in columns.iter().zip(coefficients) {
             let a = Rational::integer(c.side.sign() * amount(c));
@@ -141,7 +145,10 @@ fn residual(columns: &[Column], coefficients: &[Rational]) -> Result<Vec<(String
 pub fn check(columns: &[Column], coefficients: &[Rational]) -> Result<Balance, BalanceError> {
     let r = residual(columns, coefficients)?;
     if r.is_empty() {
-        Ok(Balance { outcome: Outcome::AlreadyBalanced, coefficients: coefficients.to_vec() })
+        Ok(Balance {
+            outcome: Outcome::AlreadyBalanced,
+            coefficients: coefficients.to_vec(),
+        })
     } else {
         Err(BalanceError::NotBalanced { residual: r })
     }
@@ -153,7 +160,9 @@ fn row_reduce(m: &mut Vec<Vec<i128>>, ncols: usize) -> Result<Vec<usize>, Balanc
     let mut pivots = Vec::new();
     let mut r = 0;
     for col in 0..ncols {
-        let Some(p) = (r..m.len()).find(|&i| m[i][col] != 0) else { continue };
+        let Some(p) = (r..m.len()).find(|&i| m[i][col] != 0) else {
+            continue;
+        };
         m.swap(r, p);
         for i in 0..m.len() {
             if i == r || m[i][col] == 0 {
@@ -163,9 +172,14 @@ fn row_reduce(m: &mut Vec<Vec<i128>>, ncols: usize) -> Result<Vec<usize>, Balanc
             let g = gcd_i128(a, b);
             let (fa, fb) = (a / g, b / g);
             let mut row_gcd = 0;
-            for j in 0..ncols {
-                let v = m[i][j].checked_mul(fa).ok_or_else(ov)?.checked_sub(m[r][j].checked_mul(fb).ok_or_else(ov)?).ok_or_else(ov)?;
-                m[i][j] = v;
+            let pivot_row = m[r].clone();
+            for (x, &p) in m[i].iter_mut().zip(&pivot_row) {
+                let v = x
+                    .checked_mul(fa)
+                    .ok_or_else(ov)?
+                    .checked_sub(p.checked_mul(fb).ok_or_else(ov)?)
+                    .ok_or_else(ov)?;
+                *x = v;
                 row_gcd = gcd_i128(row_gcd, v);
             }
             if row_gcd > 1 {
@@ -209,7 +223,13 @@ fn write_reaction(columns: &[Column], x: &[i128]) -> String {
             .iter()
             .zip(x)
             .filter(|(_, &v)| v != 0 && (v > 0) == positive)
-            .map(|(c, &v)| if v.abs() == 1 { c.label.to_string() } else { format!("{} {}", v.abs(), c.label) })
+            .map(|(c, &v)| {
+                if v.abs() == 1 {
+                    c.label.to_string()
+                } else {
+                    format!("{} {}", v.abs(), c.label)
+                }
+            })
             .collect();
         parts.join(" + ")
     };
@@ -223,14 +243,19 @@ fn write_reaction(columns: &[Column], x: &[i128]) -> String {
 pub fn balance(columns: &[Column]) -> Result<Balance, BalanceError> {
     let ones = vec![Rational::ONE; columns.len()];
     if residual(columns, &ones)?.is_empty() {
-        return Ok(Balance { outcome: Outcome::AlreadyBalanced, coefficients: ones });
+        return Ok(Balance {
+            outcome: Outcome::AlreadyBalanced,
+            coefficients: ones,
+        });
     }
     let mut m = matrix(columns);
     let n = columns.len();
     let pivots = row_reduce(&mut m, n)?;
     let free: Vec<usize> = (0..n).filter(|c| !pivots.contains(c)).collect();
     match free.len() {
-        0 => Err(BalanceError::Impossible { reason: "no coefficients conserve every element and the charge".into() }),
+        0 => Err(BalanceError::Impossible {
+            reason: "no coefficients conserve every element and the charge".into(),
+        }),
         1 => {
             let mut x = null_vector(&m, &pivots, &free, 0, n)?;
             if x.iter().all(|&v| v <= 0) {
@@ -238,7 +263,9 @@ pub fn balance(columns: &[Column]) -> Result<Balance, BalanceError> {
             }
             let zero: Vec<&str> = columns.iter().zip(&x).filter(|(_, &v)| v == 0).map(|(c, _)| c.label).collect();
             if !zero.is_empty() {
-                return Err(BalanceError::Impossible { reason: format!("{} cannot take part (its coefficient would be 0)", zero.join(", ")) });
+                return Err(BalanceError::Impossible {
+                    reason: format!("{} cannot take part (its coefficient would be 0)", zero.join(", ")),
+                });
             }
             let wrong: Vec<&str> = columns.iter().zip(&x).filter(|(_, &v)| v < 0).map(|(c, _)| c.label).collect();
             if !wrong.is_empty() {
@@ -246,7 +273,10 @@ pub fn balance(columns: &[Column]) -> Result<Balance, BalanceError> {
                     reason: format!("{} would have to be on the other side of the arrow", wrong.join(", ")),
                 });
             }
-            Ok(Balance { outcome: Outcome::Balanced, coefficients: x.into_iter().map(Rational::integer).collect() })
+            Ok(Balance {
+                outcome: Outcome::Balanced,
+                coefficients: x.into_iter().map(Rational::integer).collect(),
+            })
         }
         k => {
             let mut basis = Vec::with_capacity(k);
@@ -280,7 +310,13 @@ mod tests {
 
     fn run(reactants: &[&str], products: &[&str]) -> Result<Balance, BalanceError> {
         let (l, f, s) = cols(reactants, products);
-        let c: Vec<Column> = (0..l.len()).map(|i| Column { label: &l[i], formula: &f[i], side: s[i] }).collect();
+        let c: Vec<Column> = (0..l.len())
+            .map(|i| Column {
+                label: &l[i],
+                formula: &f[i],
+                side: s[i],
+            })
+            .collect();
         balance(&c)
     }
 
@@ -292,9 +328,15 @@ mod tests {
     fn classic_equations() {
         assert_eq!(ints(&run(&["Al", "Fe2O3"], &["Al2O3", "Fe"]).unwrap()), [2, 1, 1, 2]);
         assert_eq!(ints(&run(&["C3H8", "O2"], &["CO2", "H2O"]).unwrap()), [1, 5, 3, 4]);
-        assert_eq!(ints(&run(&["KMnO4", "HCl"], &["KCl", "MnCl2", "H2O", "Cl2"]).unwrap()), [2, 16, 2, 2, 8, 5]);
+        assert_eq!(
+            ints(&run(&["KMnO4", "HCl"], &["KCl", "MnCl2", "H2O", "Cl2"]).unwrap()),
+            [2, 16, 2, 2, 8, 5]
+        );
         // Charge row: MnO4- + Fe+2 + H+ -> Mn+2 + Fe+3 + H2O
-        assert_eq!(ints(&run(&["MnO4-", "Fe+2", "H+"], &["Mn+2", "Fe+3", "H2O"]).unwrap()), [1, 5, 8, 1, 5, 4]);
+        assert_eq!(
+            ints(&run(&["MnO4-", "Fe+2", "H+"], &["Mn+2", "Fe+3", "H2O"]).unwrap()),
+            [1, 5, 8, 1, 5, 4]
+        );
         assert_eq!(ints(&run(&["Fe+3", "e-"], &["Fe+2"]).unwrap()), [1, 1, 1]);
         assert_eq!(run(&["CO", "H2O"], &["CO2", "H2"]).unwrap().outcome, Outcome::AlreadyBalanced);
     }
@@ -311,11 +353,22 @@ mod tests {
     #[test]
     fn written_coefficients_are_checked_not_changed() {
         let (l, f, s) = cols(&["H2", "O2"], &["H2O"]);
-        let c: Vec<Column> = (0..3).map(|i| Column { label: &l[i], formula: &f[i], side: s[i] }).collect();
+        let c: Vec<Column> = (0..3)
+            .map(|i| Column {
+                label: &l[i],
+                formula: &f[i],
+                side: s[i],
+            })
+            .collect();
         let ok = check(&c, &[Rational::integer(2), Rational::ONE, Rational::integer(2)]).unwrap();
         assert_eq!(ok.outcome, Outcome::AlreadyBalanced);
         let e = check(&c, &[Rational::ONE, Rational::ONE, Rational::ONE]).unwrap_err();
-        assert_eq!(e, BalanceError::NotBalanced { residual: vec![("O".into(), Rational::integer(-1))] });
+        assert_eq!(
+            e,
+            BalanceError::NotBalanced {
+                residual: vec![("O".into(), Rational::integer(-1))]
+            }
+        );
         assert!(e.to_string().contains("O: 1 more on the reactant side"), "{e}");
     }
 }

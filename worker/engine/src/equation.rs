@@ -70,7 +70,11 @@ fn find_arrow(s: &str) -> Result<(usize, usize, Arrow), SyntaxError> {
         let hit = ARROWS.iter().find(|(a, _)| s[i..].starts_with(a));
         if let Some(&(a, kind)) = hit {
             if found.is_some() {
-                return Err(SyntaxError::Unexpected { position: i, expected: "only one arrow", found: format!("a second arrow '{a}'") });
+                return Err(SyntaxError::Unexpected {
+                    position: i,
+                    expected: "only one arrow",
+                    found: format!("a second arrow '{a}'"),
+                });
             }
             found = Some((i, a.len(), kind));
             i += a.len();
@@ -78,7 +82,11 @@ fn find_arrow(s: &str) -> Result<(usize, usize, Arrow), SyntaxError> {
             i += s[i..].chars().next().map_or(1, char::len_utf8);
         }
     }
-    found.ok_or(SyntaxError::Unexpected { position: s.len(), expected: "an arrow: ->, =>, = or <=>", found: "end of input".into() })
+    found.ok_or(SyntaxError::Unexpected {
+        position: s.len(),
+        expected: "an arrow: ->, =>, = or <=>",
+        found: "end of input".into(),
+    })
 }
 
 /// Split one side into `(offset, text)` terms.
@@ -118,7 +126,11 @@ fn parse_coefficient(t: &str, base: usize) -> Result<(Option<Rational>, usize), 
     if whole.is_empty() {
         return Ok((None, 0));
     }
-    let limit = |pos: usize| SyntaxError::Limit { position: base + pos, what: "coefficient", limit: MAX_COEFFICIENT as u64 };
+    let limit = |pos: usize| SyntaxError::Limit {
+        position: base + pos,
+        what: "coefficient",
+        limit: MAX_COEFFICIENT as u64,
+    };
     let parse_int = |r: std::ops::Range<usize>| -> Result<i128, SyntaxError> {
         let v = &t[r.clone()];
         if v.len() > 7 {
@@ -136,7 +148,11 @@ fn parse_coefficient(t: &str, base: usize) -> Result<(Option<Rational>, usize), 
         i += 1;
         let frac = digits(&mut i);
         if frac.len() > MAX_DECIMALS {
-            return Err(SyntaxError::Limit { position: base + frac.start, what: "decimal places in a coefficient", limit: MAX_DECIMALS as u64 });
+            return Err(SyntaxError::Limit {
+                position: base + frac.start,
+                what: "decimal places in a coefficient",
+                limit: MAX_DECIMALS as u64,
+            });
         }
         let f: i128 = t[frac.clone()].parse().map_err(|_| limit(frac.start))?;
         den = 10i128.pow(frac.len() as u32);
@@ -145,12 +161,20 @@ fn parse_coefficient(t: &str, base: usize) -> Result<(Option<Rational>, usize), 
         i += 1;
         let d = digits(&mut i);
         if d.is_empty() {
-            return Err(SyntaxError::Unexpected { position: base + i, expected: "a denominator after '/'", found: found_at(t, i) });
+            return Err(SyntaxError::Unexpected {
+                position: base + i,
+                expected: "a denominator after '/'",
+                found: found_at(t, i),
+            });
         }
         den = parse_int(d)?;
     }
     if num == 0 || den == 0 {
-        return Err(SyntaxError::Unexpected { position: base, expected: "a positive coefficient", found: format!("'{}'", &t[..i]) });
+        return Err(SyntaxError::Unexpected {
+            position: base,
+            expected: "a positive coefficient",
+            found: format!("'{}'", &t[..i]),
+        });
     }
     let r = Rational::new(num, den).map_err(|_| limit(0))?;
     while i < b.len() && b[i].is_ascii_whitespace() {
@@ -182,15 +206,31 @@ fn split_side<'a>(s: &'a str, base: usize, side: &'static str, out: &mut Vec<Raw
         let t = raw.trim();
         let at = off + lead;
         if t.is_empty() {
-            return Err(SyntaxError::Unexpected { position: at, expected: side, found: "nothing".into() });
+            return Err(SyntaxError::Unexpected {
+                position: at,
+                expected: side,
+                found: "nothing".into(),
+            });
         }
         let (coefficient, used) = parse_coefficient(t, at)?;
         if used == t.len() {
-            return Err(SyntaxError::Unexpected { position: at + used, expected: "a species after the coefficient", found: "nothing".into() });
+            return Err(SyntaxError::Unexpected {
+                position: at + used,
+                expected: "a species after the coefficient",
+                found: "nothing".into(),
+            });
         }
-        out.push(RawTerm { coefficient, text: &t[used..], position: at + used });
+        out.push(RawTerm {
+            coefficient,
+            text: &t[used..],
+            position: at + used,
+        });
         if out.len() > MAX_TERMS {
-            return Err(SyntaxError::Limit { position: at, what: "species terms per equation", limit: MAX_TERMS as u64 });
+            return Err(SyntaxError::Limit {
+                position: at,
+                what: "species terms per equation",
+                limit: MAX_TERMS as u64,
+            });
         }
     }
     Ok(())
@@ -202,7 +242,11 @@ fn split_side<'a>(s: &'a str, base: usize, side: &'static str, out: &mut Vec<Raw
 /// `SyntaxError` with the byte position and what was expected there.
 pub fn split_equation(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
     if s.len() > MAX_EQUATION_BYTES {
-        return Err(SyntaxError::Limit { position: 0, what: "equation length in bytes", limit: MAX_EQUATION_BYTES as u64 });
+        return Err(SyntaxError::Limit {
+            position: 0,
+            what: "equation length in bytes",
+            limit: MAX_EQUATION_BYTES as u64,
+        });
     }
     if let Some(p) = s.find(">>") {
         return Err(SyntaxError::Unexpected {
@@ -217,9 +261,17 @@ pub fn split_equation(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
     let mut products = Vec::new();
     split_side(&s[at + len..], at + len, "a product", &mut products)?;
     if reactants.len() + products.len() > MAX_TERMS {
-        return Err(SyntaxError::Limit { position: 0, what: "species terms per equation", limit: MAX_TERMS as u64 });
+        return Err(SyntaxError::Limit {
+            position: 0,
+            what: "species terms per equation",
+            limit: MAX_TERMS as u64,
+        });
     }
-    Ok(RawEquation { reactants, products, arrow })
+    Ok(RawEquation {
+        reactants,
+        products,
+        arrow,
+    })
 }
 
 /// Parse a whole equation, species included.
@@ -229,7 +281,11 @@ pub fn split_equation(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
 pub fn parse_equation(s: &str) -> Result<Equation, SyntaxError> {
     let raw = split_equation(s)?;
     let term = |t: &RawTerm| -> Result<Term, SyntaxError> {
-        Ok(Term { coefficient: t.coefficient, species: parse_species(t.text, t.position)?, position: t.position })
+        Ok(Term {
+            coefficient: t.coefficient,
+            species: parse_species(t.text, t.position)?,
+            position: t.position,
+        })
     };
     Ok(Equation {
         reactants: raw.reactants.iter().map(term).collect::<Result<_, _>>()?,
@@ -276,7 +332,13 @@ mod tests {
         let e = parse_equation("H2 +  -> H2").unwrap_err();
         assert!(e.to_string().contains("expected a reactant"), "{e}");
         let e = parse_equation("2 H2 + O2 -> 2 H2Q").unwrap_err();
-        assert_eq!(e, SyntaxError::UnknownElement { position: 17, symbol: "Q".into() });
+        assert_eq!(
+            e,
+            SyntaxError::UnknownElement {
+                position: 17,
+                symbol: "Q".into()
+            }
+        );
         let e = parse_equation("CCO>>CC=O").unwrap_err();
         assert!(e.to_string().contains("SMILES"), "{e}");
     }
@@ -288,7 +350,13 @@ mod tests {
         let long = format!("{} -> H2", vec!["H2"; 3000].join(" + "));
         assert!(matches!(parse_equation(&long), Err(SyntaxError::Limit { .. })));
         let many = format!("{} -> H2", vec!["H2"; 41].join(" + "));
-        assert!(matches!(parse_equation(&many), Err(SyntaxError::Limit { what: "species terms per equation", .. })));
+        assert!(matches!(
+            parse_equation(&many),
+            Err(SyntaxError::Limit {
+                what: "species terms per equation",
+                ..
+            })
+        ));
         let e = parse_equation("0.0000001 H2 -> H2").unwrap_err();
         assert!(matches!(e, SyntaxError::Limit { .. }), "{e}");
     }

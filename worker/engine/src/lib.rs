@@ -25,7 +25,7 @@ pub mod screen;
 pub mod species;
 pub mod thermo;
 
-pub use screen::{Screened, ScreenError, Screener};
+pub use screen::{ScreenError, Screened, Screener};
 pub use thermo::TemperatureGrid;
 
 /// Engine version, written into every result.

@@ -98,7 +98,10 @@ impl Rational {
 
     pub fn checked_add(self, o: Rational) -> Result<Rational, Overflow> {
         if self.den == 1 && o.den == 1 {
-            return Ok(Rational { num: self.num.checked_add(o.num).ok_or(Overflow)?, den: 1 });
+            return Ok(Rational {
+                num: self.num.checked_add(o.num).ok_or(Overflow)?,
+                den: 1,
+            });
         }
         let g = gcd(self.den, o.den).max(1);
         let l = (self.den / g).checked_mul(o.den).ok_or(Overflow)?;
@@ -112,12 +115,18 @@ impl Rational {
     }
 
     pub fn checked_neg(self) -> Result<Rational, Overflow> {
-        Ok(Rational { num: self.num.checked_neg().ok_or(Overflow)?, den: self.den })
+        Ok(Rational {
+            num: self.num.checked_neg().ok_or(Overflow)?,
+            den: self.den,
+        })
     }
 
     pub fn checked_mul(self, o: Rational) -> Result<Rational, Overflow> {
         if self.den == 1 && o.den == 1 {
-            return Ok(Rational { num: self.num.checked_mul(o.num).ok_or(Overflow)?, den: 1 });
+            return Ok(Rational {
+                num: self.num.checked_mul(o.num).ok_or(Overflow)?,
+                den: 1,
+            });
         }
         // Cross-reduce first so intermediate products stay small.
         let g1 = gcd(self.num, o.den).max(1);

@@ -9,7 +9,7 @@ use crate::balance::{self, Balance, BalanceError, Column, Outcome, Side};
 use crate::equation::{split_equation, Arrow, RawTerm};
 use crate::formula::{parse_species, SpeciesSpec, SyntaxError};
 use crate::rational::Rational;
-use crate::species::{from_supplied, Resolved, ResolveError, State, SuppliedSpecies, Table, T_REF_K};
+use crate::species::{from_supplied, ResolveError, Resolved, State, SuppliedSpecies, Table, T_REF_K};
 use crate::thermo::{self, TemperatureGrid, ThermoPoint, LADDER};
 use std::collections::HashMap;
 use std::hash::{BuildHasherDefault, Hasher};
@@ -95,7 +95,12 @@ pub struct Screener<'t> {
 
 impl<'t> Screener<'t> {
     pub fn new(table: &'t Table, grid: TemperatureGrid) -> Screener<'t> {
-        Screener { table, grid, supplied: HashMap::new(), cache: SpeciesCache::default() }
+        Screener {
+            table,
+            grid,
+            supplied: HashMap::new(),
+            cache: SpeciesCache::default(),
+        }
     }
 
     pub fn grid(&self) -> &TemperatureGrid {
@@ -169,11 +174,19 @@ impl<'t> Screener<'t> {
             for t in terms {
                 let p = self.species(t.text, t.position)?;
                 let c = t.coefficient.unwrap_or(Rational::ONE);
-                let c = if side == Side::Reactant { c.checked_neg().map_err(|_| BalanceError::Overflow)? } else { c };
+                let c = if side == Side::Reactant {
+                    c.checked_neg().map_err(|_| BalanceError::Overflow)?
+                } else {
+                    c
+                };
                 match distinct.iter_mut().find(|d| d.0.resolved.label == p.resolved.label) {
                     Some(d) => {
                         d.1 = d.1.checked_add(c).map_err(|_| BalanceError::Overflow)?;
-                        if side == Side::Reactant { d.2 = true } else { d.3 = true }
+                        if side == Side::Reactant {
+                            d.2 = true
+                        } else {
+                            d.3 = true
+                        }
                     }
                     None => distinct.push((p, c, side == Side::Reactant, side == Side::Product)),
                 }
@@ -191,16 +204,29 @@ impl<'t> Screener<'t> {
             distinct.retain(|d| !(d.2 && d.3));
         }
         if distinct.is_empty() {
-            return Err(BalanceError::Impossible { reason: "nothing is left once species on both sides cancel".into() }.into());
+            return Err(BalanceError::Impossible {
+                reason: "nothing is left once species on both sides cancel".into(),
+            }
+            .into());
         }
-        let sides: Vec<Side> = distinct.iter().map(|d| if d.1.signum() < 0 { Side::Reactant } else { Side::Product }).collect();
+        let sides: Vec<Side> = distinct
+            .iter()
+            .map(|d| if d.1.signum() < 0 { Side::Reactant } else { Side::Product })
+            .collect();
         let columns: Vec<Column> = distinct
             .iter()
             .zip(&sides)
-            .map(|(d, &side)| Column { label: &d.0.resolved.label, formula: &d.0.resolved.formula, side })
+            .map(|(d, &side)| Column {
+                label: &d.0.resolved.label,
+                formula: &d.0.resolved.formula,
+                side,
+            })
             .collect();
         let Balance { outcome, coefficients } = if written {
-            let abs: Vec<Rational> = distinct.iter().map(|d| if d.1.signum() < 0 { d.1.checked_neg().unwrap_or(d.1) } else { d.1 }).collect();
+            let abs: Vec<Rational> = distinct
+                .iter()
+                .map(|d| if d.1.signum() < 0 { d.1.checked_neg().unwrap_or(d.1) } else { d.1 })
+                .collect();
             balance::check(&columns, &abs)?
         } else {
             balance::balance(&columns)?
@@ -209,7 +235,10 @@ impl<'t> Screener<'t> {
             .into_iter()
             .zip(&sides)
             .zip(coefficients)
-            .map(|(((p, _, _, _), &side), c)| SpeciesTerm { species: p, nu: if side == Side::Reactant { c.checked_neg().unwrap_or(c) } else { c } })
+            .map(|(((p, _, _, _), &side), c)| SpeciesTerm {
+                species: p,
+                nu: if side == Side::Reactant { c.checked_neg().unwrap_or(c) } else { c },
+            })
             .collect();
         let grid_max = self.grid.temperatures_k().iter().copied().fold(T_REF_K, f64::max);
         for s in &species {
@@ -228,7 +257,12 @@ impl<'t> Screener<'t> {
         let nus: Vec<f64> = species.iter().map(|s| s.nu.to_f64()).collect();
         let standard = thermo::point(T_REF_K, nus.iter().zip(&species).map(|(&n, s)| (n, &s.species.at_ref)));
         let points = (0..self.grid.temperatures_k().len())
-            .map(|i| thermo::point(self.grid.temperatures_k()[i], nus.iter().zip(&species).map(|(&n, s)| (n, &s.species.at_grid[i]))))
+            .map(|i| {
+                thermo::point(
+                    self.grid.temperatures_k()[i],
+                    nus.iter().zip(&species).map(|(&n, s)| (n, &s.species.at_grid[i])),
+                )
+            })
             .collect();
         let (mut lo, mut hi) = (f64::NEG_INFINITY, f64::INFINITY);
         for s in &species {
@@ -268,7 +302,11 @@ impl<'t> Screener<'t> {
                 *a += n * g;
             }
         }
-        let g_ref: f64 = nus.iter().zip(species).map(|(n, s)| n * s.species.at_ref.g_j_per_mol(T_REF_K)).sum();
+        let g_ref: f64 = nus
+            .iter()
+            .zip(species)
+            .map(|(n, s)| n * s.species.at_ref.g_j_per_mol(T_REF_K))
+            .sum();
         let with_ref = (lo..=hi).contains(&T_REF_K);
         // Walk the samples in temperature order (298.15 K slotted in) to the first sign change.
         let mut prev: Option<(f64, f64)> = None;

@@ -46,14 +46,23 @@ impl Segment {
     pub fn h_rt_s_r(&self, t: f64, ln_t: f64) -> (f64, f64) {
         let a = &self.a;
         let inv = 1.0 / t;
-        let h = -a[0] * inv * inv + a[1] * ln_t * inv + a[2] + t * (a[3] / 2.0 + t * (a[4] / 3.0 + t * (a[5] / 4.0 + t * a[6] / 5.0))) + a[7] * inv;
-        let s = -a[0] * inv * inv / 2.0 - a[1] * inv + a[2] * ln_t + t * (a[3] + t * (a[4] / 2.0 + t * (a[5] / 3.0 + t * a[6] / 4.0))) + a[8];
+        let h = -a[0] * inv * inv
+            + a[1] * ln_t * inv
+            + a[2]
+            + t * (a[3] / 2.0 + t * (a[4] / 3.0 + t * (a[5] / 4.0 + t * a[6] / 5.0)))
+            + a[7] * inv;
+        let s =
+            -a[0] * inv * inv / 2.0 - a[1] * inv + a[2] * ln_t + t * (a[3] + t * (a[4] / 2.0 + t * (a[5] / 3.0 + t * a[6] / 4.0))) + a[8];
         (h, s)
     }
 
     /// NASA 7-coefficient data (a1..a5 of Cp/R, a6 for H, a7 for S) in 9-coefficient form.
     pub fn from_nasa7(t_min_k: f64, t_max_k: f64, c: &[f64; 7]) -> Segment {
-        Segment { t_min_k, t_max_k, a: [0.0, 0.0, c[0], c[1], c[2], c[3], c[4], c[5], c[6]] }
+        Segment {
+            t_min_k,
+            t_max_k,
+            a: [0.0, 0.0, c[0], c[1], c[2], c[3], c[4], c[5], c[6]],
+        }
     }
 
     /// A constant heat capacity fixed to ΔfH° and S° at 298.15 K.
@@ -61,7 +70,11 @@ impl Segment {
         let a3 = cp_j_per_mol_k / R;
         let b1 = dhf_kj_per_mol * 1000.0 / R - a3 * T_REF_K;
         let b2 = s_j_per_mol_k / R - a3 * T_REF_K.ln();
-        Segment { t_min_k, t_max_k, a: [0.0, 0.0, a3, 0.0, 0.0, 0.0, 0.0, b1, b2] }
+        Segment {
+            t_min_k,
+            t_max_k,
+            a: [0.0, 0.0, a3, 0.0, 0.0, 0.0, 0.0, b1, b2],
+        }
     }
 }
 
@@ -185,7 +198,12 @@ impl Resolved {
             let (rh, rs) = r.h_rt_s_r(t, ln_t);
             rh - rs < own_g - 1e-9
         });
-        State { h_j_per_mol: h * R * t, s_j_per_mol_k: s * R, in_range, stable }
+        State {
+            h_j_per_mol: h * R * t,
+            s_j_per_mol_k: s * R,
+            in_range,
+            stable,
+        }
     }
 
     /// Lowest temperature in `[lo, hi]` above which the phase as written stops being the stable
@@ -203,7 +221,11 @@ impl Resolved {
                 let (mut a, mut b) = (prev, t);
                 while b - a > 0.01 {
                     let m = 0.5 * (a + b);
-                    if stable(m) { a = m } else { b = m }
+                    if stable(m) {
+                        a = m
+                    } else {
+                        b = m
+                    }
                 }
                 return Some(0.5 * (a + b));
             }
@@ -252,7 +274,11 @@ pub enum ResolveError {
     #[error("no data for {species}: not in the bundled table{hint}")]
     NotFound { species: String, hint: String },
     #[error("{species} is ambiguous: it matches {}; {advice}", candidates.join(", "))]
-    Ambiguous { species: String, candidates: Vec<String>, advice: &'static str },
+    Ambiguous {
+        species: String,
+        candidates: Vec<String>,
+        advice: &'static str,
+    },
     #[error("{species} is written by name but a name alone gives no formula; supply its formula with its values")]
     NameWithoutData { species: String },
 }
@@ -349,9 +375,17 @@ impl Table {
             };
             let mut segments = Vec::new();
             for seg in col("segments")?.split(';') {
-                let v: Vec<f64> = seg.split(',').map(|x| x.trim().parse::<f64>()).collect::<Result<_, _>>().map_err(|_| err("segment number"))?;
+                let v: Vec<f64> = seg
+                    .split(',')
+                    .map(|x| x.trim().parse::<f64>())
+                    .collect::<Result<_, _>>()
+                    .map_err(|_| err("segment number"))?;
                 let s = match (nasa7, v.len()) {
-                    (false, 11) => Segment { t_min_k: v[0], t_max_k: v[1], a: v[2..11].try_into().map_err(|_| err("segment"))? },
+                    (false, 11) => Segment {
+                        t_min_k: v[0],
+                        t_max_k: v[1],
+                        a: v[2..11].try_into().map_err(|_| err("segment"))?,
+                    },
                     (true, 9) => Segment::from_nasa7(v[0], v[1], &v[2..9].try_into().map_err(|_| err("segment"))?),
                     _ => return Err(err("segment length")),
                 };
@@ -381,17 +415,30 @@ impl Table {
         let mut by_name: HashMap<(String, i32), Vec<usize>> = HashMap::new();
         let mut by_formula: HashMap<String, Vec<usize>> = HashMap::new();
         for (k, r) in records.iter().enumerate() {
-            let base = if r.formula.charge != 0 { strip_charge(&r.base) } else { r.base.as_str() };
+            let base = if r.formula.charge != 0 {
+                strip_charge(&r.base)
+            } else {
+                r.base.as_str()
+            };
             by_name.entry((base.to_string(), r.formula.charge)).or_default().push(k);
             // NASA qualifies isomers after a comma (`C4H10,n-butane`): the qualifier is a name too.
             if let Some((_, alias)) = base.split_once(',') {
-                if alias.len() >= 3 && alias.starts_with(|c: char| c.is_ascii_lowercase()) && alias.chars().all(|c| c.is_ascii_alphanumeric() || c == '-') {
+                if alias.len() >= 3
+                    && alias.starts_with(|c: char| c.is_ascii_lowercase())
+                    && alias.chars().all(|c| c.is_ascii_alphanumeric() || c == '-')
+                {
                     by_name.entry((alias.to_string(), r.formula.charge)).or_default().push(k);
                 }
             }
             by_formula.entry(r.formula.hill()).or_default().push(k);
         }
-        Ok(Table { records, by_name, by_formula, provenance, source_name: source_name.to_string() })
+        Ok(Table {
+            records,
+            by_name,
+            by_formula,
+            provenance,
+            source_name: source_name.to_string(),
+        })
     }
 
     /// Records whose base name is `name` with this charge.
@@ -451,14 +498,22 @@ impl Table {
         if bases.len() > 1 {
             let mut names: Vec<String> = bases.iter().map(|b| b.to_string()).collect();
             names.sort();
-            return Err(ResolveError::Ambiguous { species: shown, candidates: names, advice: "write the one you mean by its name" });
+            return Err(ResolveError::Ambiguous {
+                species: shown,
+                candidates: names,
+                advice: "write the one you mean by its name",
+            });
         }
         let mut notes = Vec::new();
         let phase = match spec.phase {
             Some(p) => p,
             None => {
                 let p = self.stable_phase_at_298(&ids);
-                notes.push(format!("{} has no phase tag: the stable phase at 298.15 K ({}) is used", spec.text, p.tag()));
+                notes.push(format!(
+                    "{} has no phase tag: the stable phase at 298.15 K ({}) is used",
+                    spec.text,
+                    p.tag()
+                ));
                 p
             }
         };
@@ -497,7 +552,13 @@ impl Table {
             formula: recs[0].formula.clone(),
             phase,
             segments: recs.iter().flat_map(|r| r.segments.iter().copied()).collect(),
-            origin: recs.iter().map(|r| Origin::Tabulated { record: r.name.clone(), note: r.note.clone() }).collect(),
+            origin: recs
+                .iter()
+                .map(|r| Origin::Tabulated {
+                    record: r.name.clone(),
+                    note: r.note.clone(),
+                })
+                .collect(),
             dhf_uncertainty_kj_per_mol: recs[0].dhf_uncertainty_kj_per_mol,
             notes,
             rivals,
@@ -541,7 +602,9 @@ pub fn from_supplied(spec: &SpeciesSpec, v: &SuppliedSpecies) -> Resolved {
     };
     let mut notes = Vec::new();
     if v.cp_j_per_mol_k.is_none() {
-        notes.push(format!("{spec}: no heat capacity supplied; its Cp is taken as 0 away from 298.15 K (flagged)"));
+        notes.push(format!(
+            "{spec}: no heat capacity supplied; its Cp is taken as 0 away from 298.15 K (flagged)"
+        ));
     }
     Resolved {
         label: format!("{}({})", spec.text_with_charge(), v.phase.tag()),

@@ -63,7 +63,11 @@ pub struct Ladder {
 }
 
 /// 200 K to 6000 K in 50 K steps.
-pub const LADDER: Ladder = Ladder { start_k: 200.0, step_k: 50.0, count: 117 };
+pub const LADDER: Ladder = Ladder {
+    start_k: 200.0,
+    step_k: 50.0,
+    count: 117,
+};
 
 impl Ladder {
     pub fn t(&self, i: usize) -> f64 {

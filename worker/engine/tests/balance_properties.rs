@@ -7,8 +7,8 @@ use thermosieve_engine::formula::{parse_species, Formula};
 use thermosieve_engine::rational::Rational;
 
 const POOL: [&str; 24] = [
-    "H2", "O2", "H2O", "CO", "CO2", "CH4", "C2H6", "C3H8", "N2", "NH3", "NO", "NO2", "HNO3", "Fe", "Fe2O3", "Fe3O4", "Al",
-    "Al2O3", "H+", "OH-", "Fe+2", "Fe+3", "e-", "MnO4-",
+    "H2", "O2", "H2O", "CO", "CO2", "CH4", "C2H6", "C3H8", "N2", "NH3", "NO", "NO2", "HNO3", "Fe", "Fe2O3", "Fe3O4", "Al", "Al2O3", "H+",
+    "OH-", "Fe+2", "Fe+3", "e-", "MnO4-",
 ];
 
 fn formula(s: &str) -> Formula {
@@ -22,7 +22,8 @@ fn conserved(cols: &[Column], coefficients: &[Rational]) -> bool {
     let net = |amount: &dyn Fn(&Formula) -> i128| -> Rational {
         cols.iter().zip(coefficients).fold(Rational::ZERO, |acc, (c, k)| {
             let sign = if c.side == Side::Product { 1 } else { -1 };
-            acc.checked_add(Rational::integer(sign * amount(c.formula)).checked_mul(*k).unwrap()).unwrap()
+            acc.checked_add(Rational::integer(sign * amount(c.formula)).checked_mul(*k).unwrap())
+                .unwrap()
         })
     };
     zs.iter().all(|&z| net(&|f| f.count(z) as i128).is_zero()) && net(&|f| f.charge as i128).is_zero()
@@ -71,7 +72,11 @@ fn known_reactions_balance_and_conserve() {
         let fs: Vec<Formula> = r.iter().chain(p).map(|s| formula(s)).collect();
         let labels: Vec<&str> = r.iter().chain(p).copied().collect();
         let cols: Vec<Column> = (0..fs.len())
-            .map(|i| Column { label: labels[i], formula: &fs[i], side: if i < r.len() { Side::Reactant } else { Side::Product } })
+            .map(|i| Column {
+                label: labels[i],
+                formula: &fs[i],
+                side: if i < r.len() { Side::Reactant } else { Side::Product },
+            })
             .collect();
         let b = balance::balance(&cols).unwrap();
         let got: Vec<i128> = b.coefficients.iter().map(|c| c.numer()).collect();
@@ -103,7 +108,11 @@ fn exhaustive_small_sets_conserve_and_some_balance() {
             let cols: Vec<Column> = set
                 .iter()
                 .enumerate()
-                .map(|(i, &k)| Column { label: POOL[k], formula: &fs[k], side: if i < split { Side::Reactant } else { Side::Product } })
+                .map(|(i, &k)| Column {
+                    label: POOL[k],
+                    formula: &fs[k],
+                    side: if i < split { Side::Reactant } else { Side::Product },
+                })
                 .collect();
             if let Ok(b) = balance::balance(&cols) {
                 balanced += 1;

@@ -88,7 +88,10 @@ fn reactions_match_cantera_on_the_same_polynomials() {
             // point, so a flag is expected exactly there.
             let past_transition = s.species.iter().any(|sp| sp.species.transition_k.is_some_and(|tt| tt < r.t));
             if p.in_valid_range == past_transition {
-                failures.push(format!("{id} at {} K: in_valid_range = {} but past a phase change = {past_transition}", r.t, p.in_valid_range));
+                failures.push(format!(
+                    "{id} at {} K: in_valid_range = {} but past a phase change = {past_transition}",
+                    r.t, p.in_valid_range
+                ));
             }
         }
         // The same reaction with its coefficients left out must balance to the same equation.
@@ -112,7 +115,15 @@ fn formation_enthalpies_against_codata_key_values() {
     // ΔfH°(H2O, l, 298.15 K) = −285.830 ± 0.040 kJ/mol; ΔfH°(CO2, g) = −393.51 ± 0.13 kJ/mol.
     let mut s = Screener::new(species::bundled(), TemperatureGrid::new(vec![298.15]).unwrap());
     let water = s.screen("H2(g) + 1/2 O2(g) -> H2O(l)").unwrap();
-    assert!((water.standard.delta_h_kj_per_mol - -285.830).abs() < 0.040, "{}", water.standard.delta_h_kj_per_mol);
+    assert!(
+        (water.standard.delta_h_kj_per_mol - -285.830).abs() < 0.040,
+        "{}",
+        water.standard.delta_h_kj_per_mol
+    );
     let co2 = s.screen("C(gr) + O2(g) -> CO2(g)").unwrap();
-    assert!((co2.standard.delta_h_kj_per_mol - -393.51).abs() < 0.13, "{}", co2.standard.delta_h_kj_per_mol);
+    assert!(
+        (co2.standard.delta_h_kj_per_mol - -393.51).abs() < 0.13,
+        "{}",
+        co2.standard.delta_h_kj_per_mol
+    );
 }

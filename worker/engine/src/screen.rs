@@ -7,7 +7,7 @@
 
 use crate::balance::{self, Balance, BalanceError, Column, Outcome, Side};
 use crate::equation::{split_equation, Arrow, RawTerm};
-use crate::formula::{parse_species, SpeciesSpec, SyntaxError};
+use crate::formula::{parse_species, SyntaxError};
 use crate::rational::Rational;
 use crate::species::{from_supplied, ResolveError, Resolved, State, SuppliedSpecies, Table, T_REF_K};
 use crate::thermo::{self, TemperatureGrid, ThermoPoint, LADDER};
@@ -111,8 +111,8 @@ impl<'t> Screener<'t> {
         self.table
     }
 
-    /// Values for one species that win over the bundled table. `key` is the species as written in
-    /// equations, e.g. `INT7(l)` (matched against the text with its phase tag).
+    /// Values for one species that win over the bundled table. `key` is the species exactly as
+    /// written in equations, phase tag included, e.g. `INT7(l)`; it need not be a formula.
     pub fn supply(&mut self, key: &str, values: SuppliedSpecies) {
         self.cache.clear();
         self.supplied.insert(key.to_string(), values);
@@ -135,13 +135,6 @@ impl<'t> Screener<'t> {
         }
     }
 
-    fn resolve_spec(&self, spec: &SpeciesSpec, written: &str) -> Result<Resolved, ResolveError> {
-        if let Some(v) = self.supplied.get(written).or_else(|| self.supplied.get(&spec.to_string())) {
-            return Ok(from_supplied(spec, v));
-        }
-        self.table.resolve(spec)
-    }
-
     /// The species a written token resolves to, from the cache when seen before.
     ///
     /// # Errors
@@ -150,9 +143,13 @@ impl<'t> Screener<'t> {
         if let Some(hit) = self.cache.get(text) {
             return hit.clone().map_err(|error| ScreenError::Species { position, error });
         }
-        // Parse errors depend on the position, so they are not cached.
-        let spec = parse_species(text, position)?;
-        let result = self.resolve_spec(&spec, text).map(|r| Arc::new(self.prepare(r)));
+        // Supplied values are matched on the text as written, which need not be a formula.
+        let result = match self.supplied.get(text) {
+            Some(v) => Ok(from_supplied(text, v)),
+            // Parse errors depend on the position, so they are not cached.
+            None => self.table.resolve(&parse_species(text, position)?),
+        };
+        let result = result.map(|r| Arc::new(self.prepare(r)));
         self.cache.insert(text.to_string(), result.clone());
         result.map_err(|error| ScreenError::Species { position, error })
     }

@@ -303,6 +303,20 @@ pub fn bundled() -> &'static Table {
     TABLE.get_or_init(|| Table::from_tsv(NASA_TSV, SOURCE_NAME).unwrap_or_else(|e| panic!("{e}")))
 }
 
+/// Whether a polymorph asked for (`a` alpha, `b` beta, `c` gamma, `d` delta, `gr` graphite)
+/// names a record's tag. NASA labels polymorphs by letters, by `cr1`/`cr2` (sulfur) or by Roman
+/// and Arabic numerals in order of increasing temperature.
+fn form_matches(form: &str, tag: &str) -> bool {
+    let tags: &[&str] = match form {
+        "a" => &["a", "cr1", "I", "1"],
+        "b" => &["b", "cr2", "II", "2", "b,c"],
+        "c" => &["c", "III", "3", "b,c"],
+        "d" => &["d", "IV"],
+        other => return other == tag,
+    };
+    tags.contains(&tag)
+}
+
 fn parse_composition(s: &str, charge: i32) -> Result<Formula, String> {
     let mut text = String::new();
     for part in s.split_whitespace() {
@@ -479,7 +493,7 @@ impl Table {
         let all = ids.clone();
         ids.retain(|&k| {
             let r = &self.records[k];
-            spec.phase.is_none_or(|p| p == r.phase) && spec.form.as_ref().is_none_or(|f| *f == r.tag)
+            spec.phase.is_none_or(|p| p == r.phase) && spec.form.as_ref().is_none_or(|f| form_matches(f, &r.tag))
         });
         if ids.is_empty() {
             let hint = if all.is_empty() {
@@ -594,8 +608,8 @@ impl SpeciesSpec {
     }
 }
 
-/// Build a resolved species from supplied values.
-pub fn from_supplied(spec: &SpeciesSpec, v: &SuppliedSpecies) -> Resolved {
+/// Build a resolved species from supplied values; `label` is the species as written.
+pub fn from_supplied(label: &str, v: &SuppliedSpecies) -> Resolved {
     let (cp, lo, hi) = match v.cp_j_per_mol_k {
         Some(cp) => (cp, v.t_min_k, v.t_max_k),
         None => (0.0, T_REF_K, T_REF_K),
@@ -603,11 +617,11 @@ pub fn from_supplied(spec: &SpeciesSpec, v: &SuppliedSpecies) -> Resolved {
     let mut notes = Vec::new();
     if v.cp_j_per_mol_k.is_none() {
         notes.push(format!(
-            "{spec}: no heat capacity supplied; its Cp is taken as 0 away from 298.15 K (flagged)"
+            "{label}: no heat capacity supplied; its Cp is taken as 0 away from 298.15 K (flagged)"
         ));
     }
     Resolved {
-        label: format!("{}({})", spec.text_with_charge(), v.phase.tag()),
+        label: label.to_string(),
         formula: v.formula.clone(),
         phase: v.phase,
         segments: vec![Segment::constant_cp(lo, hi, v.dhf_kj_per_mol, v.s_j_per_mol_k, cp)],

@@ -60,6 +60,7 @@ fn reactions_match_cantera_on_the_same_polynomials() {
         assert!(kinds.contains(&k), "no {k} reactions in the reference set");
     }
     let mut failures = Vec::new();
+    let mut crossings = 0;
     for (id, rs) in &all {
         assert!(rs.len() >= 3, "{id}: fewer than 3 temperatures");
         let grid = TemperatureGrid::new(rs.iter().map(|r| r.t).collect()).expect("grid");
@@ -94,6 +95,18 @@ fn reactions_match_cantera_on_the_same_polynomials() {
                 ));
             }
         }
+        // Where Cantera's ΔrG° changes sign between two reference temperatures (and not before),
+        // the engine's ΔrG° = 0 temperature must lie between them.
+        if let Some(w) = rs.windows(2).find(|w| w[0].dg.signum() != w[1].dg.signum()) {
+            crossings += 1;
+            match s.delta_g_zero_k {
+                Some(t0) if t0 >= w[0].t && t0 <= w[1].t => {}
+                other => failures.push(format!(
+                    "{id}: ΔrG° = 0 at {other:?}, Cantera's sign changes between {} and {} K",
+                    w[0].t, w[1].t
+                )),
+            }
+        }
         // The same reaction with its coefficients left out must balance to the same equation.
         let bare: String = rs[0]
             .equation
@@ -107,6 +120,7 @@ fn reactions_match_cantera_on_the_same_polynomials() {
         }
     }
     assert!(failures.is_empty(), "{} mismatches:\n{}", failures.len(), failures.join("\n"));
+    assert!(crossings >= 3, "only {crossings} reference reactions change the sign of ΔrG°");
 }
 
 #[test]
@@ -126,4 +140,23 @@ fn formation_enthalpies_against_codata_key_values() {
         "{}",
         co2.standard.delta_h_kj_per_mol
     );
+}
+
+#[test]
+fn boiling_points_from_the_data() {
+    // Normal boiling points (from memory): water 373.12 K at 1 atm, 372.76 K at 1 bar (IAPWS-95);
+    // bromine 332.0 K (CRC Handbook). The data's liquid/gas pair must put ΔrG° = 0 there, and the
+    // liquid's phase change must be found at the same temperature.
+    let mut s = Screener::new(species::bundled(), TemperatureGrid::new(vec![298.15, 400.0]).unwrap());
+    for (eq, want, tol) in [("H2O(l) -> H2O(g)", 372.76, 1.0), ("Br2(l) -> Br2(g)", 332.0, 1.5)] {
+        let r = s.screen(eq).unwrap();
+        let t0 = r.delta_g_zero_k.expect("a crossing");
+        assert!((t0 - want).abs() < tol, "{eq}: {t0}");
+        let tb = r.species[0].species.transition_k.expect("the liquid boils");
+        assert!((tb - t0).abs() < 0.05, "{eq}: transition {tb} vs ΔrG° = 0 at {t0}");
+        assert!(
+            r.points[0].in_valid_range && !r.points[1].in_valid_range,
+            "{eq}: 400 K must be flagged"
+        );
+    }
 }

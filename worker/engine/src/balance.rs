@@ -85,57 +85,84 @@ fn describe_residual(r: &[(String, Rational)]) -> String {
     parts.join(", ")
 }
 
-/// Row keys of the matrix: every element present, then charge when any species is charged.
-fn rows(columns: &[Column]) -> (Vec<Z>, bool) {
-    let mut zs: Vec<Z> = Vec::with_capacity(8);
-    for c in columns {
-        for &(z, _) in &c.formula.atoms {
-            if let Err(k) = zs.binary_search(&z) {
-                zs.insert(k, z);
+/// The element-by-species matrix (a charge row last when any species is charged), row-major,
+/// entries signed: negative for reactants.
+struct Matrix {
+    keys: Vec<Z>,
+    charged: bool,
+    cols: usize,
+    a: Vec<i128>,
+}
+
+impl Matrix {
+    fn new(columns: &[Column]) -> Matrix {
+        let mut keys: Vec<Z> = Vec::with_capacity(8);
+        for c in columns {
+            for &(z, _) in &c.formula.atoms {
+                if let Err(k) = keys.binary_search(&z) {
+                    keys.insert(k, z);
+                }
             }
         }
+        let charged = columns.iter().any(|c| c.formula.charge != 0);
+        let cols = columns.len();
+        let mut a = Vec::with_capacity((keys.len() + 1) * cols);
+        for &z in &keys {
+            a.extend(columns.iter().map(|c| c.side.sign() * c.formula.count(z) as i128));
+        }
+        if charged {
+            a.extend(columns.iter().map(|c| c.side.sign() * c.formula.charge as i128));
+        }
+        Matrix { keys, charged, cols, a }
     }
-    (zs, columns.iter().any(|c| c.formula.charge != 0))
-}
 
-fn matrix(columns: &[Column]) -> Vec<Vec<i128>> {
-    let (zs, charged) = rows(columns);
-    let mut m: Vec<Vec<i128>> = zs
-        .iter()
-        .map(|&z| columns.iter().map(|c| c.side.sign() * c.formula.count(z) as i128).collect())
-        .collect();
-    if charged {
-        m.push(columns.iter().map(|c| c.side.sign() * c.formula.charge as i128).collect());
+    fn rows(&self) -> usize {
+        self.keys.len() + usize::from(self.charged)
     }
-    m
-}
 
-/// Products minus reactants per row for the given positive coefficients.
-fn residual(columns: &[Column], coefficients: &[Rational]) -> Result<Vec<(String, Rational)>, BalanceError> {
-    let ov = |_| BalanceError::Overflow;
-    let (zs, charged) = rows(columns);
-    let mut out = Vec::new();
-    let row_sum = |amount: &dyn Fn(&Column) -> i128| -> Result<Rational, BalanceError> {
-        let mut sum = Rational::ZERO;
-        for (c, &k) in columns.iter().zip(coefficients) {
-            let a = Rational::integer(c.side.sign() * amount(c));
-            sum = sum.checked_add(a.checked_mul(k).map_err(ov)?).map_err(ov)?;
-        }
-        Ok(sum)
-    };
-    for &z in &zs {
-        let sum = row_sum(&|c: &Column| c.formula.count(z) as i128)?;
-        if !sum.is_zero() {
-            out.push((elements::symbol(z).to_string(), sum));
+    fn row(&self, i: usize) -> &[i128] {
+        &self.a[i * self.cols..(i + 1) * self.cols]
+    }
+
+    fn key(&self, i: usize) -> String {
+        match self.keys.get(i) {
+            Some(&z) => elements::symbol(z).to_string(),
+            None => "charge".to_string(),
         }
     }
-    if charged {
-        let sum = row_sum(&|c: &Column| c.formula.charge as i128)?;
-        if !sum.is_zero() {
-            out.push(("charge".to_string(), sum));
+
+    /// Products minus reactants per row for positive coefficients; only nonzero rows.
+    fn residual(&self, coefficients: &[Rational]) -> Result<Vec<(String, Rational)>, BalanceError> {
+        let ov = BalanceError::Overflow;
+        let mut out = Vec::new();
+        let integral = coefficients.iter().all(|c| c.is_integer());
+        for i in 0..self.rows() {
+            let row = self.row(i);
+            let sum = if integral {
+                let mut n: i128 = 0;
+                for (&a, k) in row.iter().zip(coefficients) {
+                    n = n.checked_add(a.checked_mul(k.numer()).ok_or(ov.clone())?).ok_or(ov.clone())?;
+                }
+                Rational::integer(n)
+            } else {
+                let mut sum = Rational::ZERO;
+                for (&a, &k) in row.iter().zip(coefficients) {
+                    let term = Rational::integer(a).checked_mul(k).map_err(|_| ov.clone())?;
+                    sum = sum.checked_add(term).map_err(|_| ov.clone())?;
+                }
+                sum
+            };
+            if !sum.is_zero() {
+                out.push((self.key(i), sum));
+            }
         }
+        Ok(out)
     }
-    Ok(out)
+
+    /// True when unit coefficients conserve every row.
+    fn balanced_with_ones(&self) -> bool {
+        (0..self.rows()).all(|i| self.row(i).iter().sum::<i128>() == 0)
+    }
 }
 
 /// Check written coefficients (one per column, all positive).
@@ -143,7 +170,7 @@ fn residual(columns: &[Column], coefficients: &[Rational]) -> Result<Vec<(String
 /// # Errors
 /// `NotBalanced` with the residual when an element or the charge is not conserved.
 pub fn check(columns: &[Column], coefficients: &[Rational]) -> Result<Balance, BalanceError> {
-    let r = residual(columns, coefficients)?;
+    let r = Matrix::new(columns).residual(coefficients)?;
     if r.is_empty() {
         Ok(Balance {
             outcome: Outcome::AlreadyBalanced,
@@ -154,61 +181,73 @@ pub fn check(columns: &[Column], coefficients: &[Rational]) -> Result<Balance, B
     }
 }
 
-/// Reduced row echelon form in integers; returns the pivot column of each nonzero row.
-fn row_reduce(m: &mut Vec<Vec<i128>>, ncols: usize) -> Result<Vec<usize>, BalanceError> {
+/// Reduced row echelon form in integers, in place; returns the pivot column of each nonzero row
+/// (rows past the last pivot are left zero).
+fn row_reduce(m: &mut Matrix) -> Result<Vec<usize>, BalanceError> {
     let ov = || BalanceError::Overflow;
-    let mut pivots = Vec::new();
+    let (rows, cols) = (m.rows(), m.cols);
+    let mut pivots = Vec::with_capacity(rows);
     let mut r = 0;
-    for col in 0..ncols {
-        let Some(p) = (r..m.len()).find(|&i| m[i][col] != 0) else {
+    for col in 0..cols {
+        let Some(p) = (r..rows).find(|&i| m.a[i * cols + col] != 0) else {
             continue;
         };
-        m.swap(r, p);
-        for i in 0..m.len() {
-            if i == r || m[i][col] == 0 {
+        if p != r {
+            for j in 0..cols {
+                m.a.swap(r * cols + j, p * cols + j);
+            }
+        }
+        for i in 0..rows {
+            if i == r || m.a[i * cols + col] == 0 {
                 continue;
             }
-            let (a, b) = (m[r][col], m[i][col]);
-            let g = gcd_i128(a, b);
-            let (fa, fb) = (a / g, b / g);
+            let (pa, pb) = (m.a[r * cols + col], m.a[i * cols + col]);
+            let g = gcd_i128(pa, pb);
+            let (fa, fb) = (pa / g, pb / g);
+            let (pivot_row, row) = if i < r {
+                let (lo, hi) = m.a.split_at_mut(r * cols);
+                (&hi[..cols], &mut lo[i * cols..(i + 1) * cols])
+            } else {
+                let (lo, hi) = m.a.split_at_mut(i * cols);
+                (&lo[r * cols..(r + 1) * cols], &mut hi[..cols])
+            };
             let mut row_gcd = 0;
-            let pivot_row = m[r].clone();
-            for (x, &p) in m[i].iter_mut().zip(&pivot_row) {
+            for (x, &pv) in row.iter_mut().zip(pivot_row) {
                 let v = x
                     .checked_mul(fa)
                     .ok_or_else(ov)?
-                    .checked_sub(p.checked_mul(fb).ok_or_else(ov)?)
+                    .checked_sub(pv.checked_mul(fb).ok_or_else(ov)?)
                     .ok_or_else(ov)?;
                 *x = v;
                 row_gcd = gcd_i128(row_gcd, v);
             }
             if row_gcd > 1 {
-                m[i].iter_mut().for_each(|v| *v /= row_gcd);
+                row.iter_mut().for_each(|v| *v /= row_gcd);
             }
         }
         pivots.push(col);
         r += 1;
-        if r == m.len() {
+        if r == rows {
             break;
         }
     }
-    m.truncate(r);
     Ok(pivots)
 }
 
-/// Integer null-space basis vector for the free column `free`, reduced to coprime entries.
-fn null_vector(m: &[Vec<i128>], pivots: &[usize], free: &[usize], which: usize, ncols: usize) -> Result<Vec<i128>, BalanceError> {
+/// Integer null-space basis vector for the free column `free[which]`, reduced to coprime entries.
+fn null_vector(m: &Matrix, pivots: &[usize], free: &[usize], which: usize) -> Result<Vec<i128>, BalanceError> {
     let ov = || BalanceError::Overflow;
     let f = free[which];
     let mut l: i128 = 1;
-    for (i, _) in pivots.iter().enumerate() {
-        let p = m[i][pivots[i]].abs();
+    for (i, &pc) in pivots.iter().enumerate() {
+        let p = m.row(i)[pc].abs();
         l = (l / gcd_i128(l, p)).checked_mul(p).ok_or_else(ov)?;
     }
-    let mut x = vec![0i128; ncols];
+    let mut x = vec![0i128; m.cols];
     x[f] = l;
     for (i, &pc) in pivots.iter().enumerate() {
-        x[pc] = (-m[i][f]).checked_mul(l / m[i][pc]).ok_or_else(ov)?;
+        let row = m.row(i);
+        x[pc] = (-row[f]).checked_mul(l / row[pc]).ok_or_else(ov)?;
     }
     let g = x.iter().fold(0, |g, &v| gcd_i128(g, v));
     if g > 1 {
@@ -241,23 +280,22 @@ fn write_reaction(columns: &[Column], x: &[i128]) -> String {
 /// # Errors
 /// `Impossible`, `Underdetermined` or `Overflow` as described on [`BalanceError`].
 pub fn balance(columns: &[Column]) -> Result<Balance, BalanceError> {
-    let ones = vec![Rational::ONE; columns.len()];
-    if residual(columns, &ones)?.is_empty() {
+    let mut m = Matrix::new(columns);
+    if m.balanced_with_ones() {
         return Ok(Balance {
             outcome: Outcome::AlreadyBalanced,
-            coefficients: ones,
+            coefficients: vec![Rational::ONE; columns.len()],
         });
     }
-    let mut m = matrix(columns);
     let n = columns.len();
-    let pivots = row_reduce(&mut m, n)?;
+    let pivots = row_reduce(&mut m)?;
     let free: Vec<usize> = (0..n).filter(|c| !pivots.contains(c)).collect();
     match free.len() {
         0 => Err(BalanceError::Impossible {
             reason: "no coefficients conserve every element and the charge".into(),
         }),
         1 => {
-            let mut x = null_vector(&m, &pivots, &free, 0, n)?;
+            let mut x = null_vector(&m, &pivots, &free, 0)?;
             if x.iter().all(|&v| v <= 0) {
                 x.iter_mut().for_each(|v| *v = -*v);
             }
@@ -281,7 +319,7 @@ pub fn balance(columns: &[Column]) -> Result<Balance, BalanceError> {
         k => {
             let mut basis = Vec::with_capacity(k);
             for i in 0..k {
-                let x = null_vector(&m, &pivots, &free, i, n)?;
+                let x = null_vector(&m, &pivots, &free, i)?;
                 basis.push(write_reaction(columns, &x));
             }
             Err(BalanceError::Underdetermined { basis })

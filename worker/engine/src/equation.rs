@@ -89,10 +89,9 @@ fn find_arrow(s: &str) -> Result<(usize, usize, Arrow), SyntaxError> {
     })
 }
 
-/// Split one side into `(offset, text)` terms.
-fn split_terms(s: &str, base: usize) -> Vec<(usize, &str)> {
+/// Call `each(offset, text)` for every term of one side.
+fn split_terms<'a>(s: &'a str, base: usize, mut each: impl FnMut(usize, &'a str) -> Result<(), SyntaxError>) -> Result<(), SyntaxError> {
     let b = s.as_bytes();
-    let mut out = Vec::new();
     let mut start = 0;
     for i in 0..b.len() {
         if b[i] != b'+' {
@@ -104,12 +103,11 @@ fn split_terms(s: &str, base: usize) -> Vec<(usize, &str)> {
         // `^+` and `^2+` are always charges.
         let in_caret = i > 0 && (b[i - 1] == b'^' || (b[i - 1].is_ascii_digit() && s[..i].contains('^')));
         if (before_space || glued_separator) && !in_caret {
-            out.push((base + start, &s[start..i]));
+            each(base + start, &s[start..i])?;
             start = i + 1;
         }
     }
-    out.push((base + start, &s[start..]));
-    out
+    each(base + start, &s[start..])
 }
 
 fn parse_coefficient(t: &str, base: usize) -> Result<(Option<Rational>, usize), SyntaxError> {
@@ -201,7 +199,7 @@ pub struct RawEquation<'a> {
 }
 
 fn split_side<'a>(s: &'a str, base: usize, side: &'static str, out: &mut Vec<RawTerm<'a>>) -> Result<(), SyntaxError> {
-    for (off, raw) in split_terms(s, base) {
+    split_terms(s, base, |off, raw| {
         let lead = raw.len() - raw.trim_start().len();
         let t = raw.trim();
         let at = off + lead;
@@ -232,8 +230,8 @@ fn split_side<'a>(s: &'a str, base: usize, side: &'static str, out: &mut Vec<Raw
                 limit: MAX_TERMS as u64,
             });
         }
-    }
-    Ok(())
+        Ok(())
+    })
 }
 
 /// Cut an equation into sides and terms, reading coefficients but not species.
@@ -256,9 +254,9 @@ pub fn split_equation(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
         });
     }
     let (at, len, arrow) = find_arrow(s)?;
-    let mut reactants = Vec::new();
+    let mut reactants = Vec::with_capacity(4);
     split_side(&s[..at], 0, "a reactant", &mut reactants)?;
-    let mut products = Vec::new();
+    let mut products = Vec::with_capacity(4);
     split_side(&s[at + len..], at + len, "a product", &mut products)?;
     if reactants.len() + products.len() > MAX_TERMS {
         return Err(SyntaxError::Limit {

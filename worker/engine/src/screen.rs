@@ -56,6 +56,8 @@ pub struct Prepared {
     g_ladder: [f64; LADDER.count],
     /// Where the phase as written stops being stable at 1 bar (boiling, melting), if inside its data.
     pub transition_k: Option<f64>,
+    /// A note for results when the grid reaches past `transition_k`.
+    grid_note: Option<String>,
 }
 
 /// One species of a screened reaction with its stoichiometric number (negative for reactants).
@@ -120,17 +122,24 @@ impl<'t> Screener<'t> {
 
     fn prepare(&self, resolved: Resolved) -> Prepared {
         let eval = |t: f64| resolved.state(t, t.ln());
+        let (lo, hi) = resolved.range_k();
+        let transition_k = resolved.transition_k(lo.max(T_REF_K), hi);
+        let grid_max = self.grid.temperatures_k().iter().copied().fold(T_REF_K, f64::max);
+        let grid_note = transition_k.filter(|&t| t < grid_max).map(|t| {
+            format!(
+                "{} is not the stable phase above {t:.1} K at 1 bar (it boils or melts there): points above are flagged",
+                resolved.label
+            )
+        });
         Prepared {
+            transition_k,
+            grid_note,
             at_ref: eval(T_REF_K),
             at_grid: self.grid.temperatures_k().iter().map(|&t| eval(t)).collect(),
             g_ladder: std::array::from_fn(|i| {
                 let t = LADDER.t(i);
                 eval(t).g_j_per_mol(t)
             }),
-            transition_k: {
-                let (lo, hi) = resolved.range_k();
-                resolved.transition_k(lo.max(T_REF_K), hi)
-            },
             resolved,
         }
     }
@@ -237,15 +246,9 @@ impl<'t> Screener<'t> {
                 nu: if side == Side::Reactant { c.checked_neg().unwrap_or(c) } else { c },
             })
             .collect();
-        let grid_max = self.grid.temperatures_k().iter().copied().fold(T_REF_K, f64::max);
         for s in &species {
             notes.extend(s.species.resolved.notes.iter().cloned());
-            if let Some(t) = s.species.transition_k.filter(|&t| t < grid_max) {
-                notes.push(format!(
-                    "{} is not the stable phase above {t:.1} K at 1 bar (it boils or melts there): points above are flagged",
-                    s.species.resolved.label
-                ));
-            }
+            notes.extend(s.species.grid_note.iter().cloned());
         }
         Ok(self.evaluate(species, raw.arrow, outcome, notes))
     }
@@ -357,11 +360,29 @@ fn write_equation(species: &[SpeciesTerm], arrow: Arrow) -> String {
             }
             first = false;
             let c = if reactant { s.nu.checked_neg().unwrap_or(s.nu) } else { s.nu };
-            if c != Rational::ONE {
+            if c.is_integer() && c != Rational::ONE {
+                push_int(&mut out, c.numer());
+                out.push(' ');
+            } else if c != Rational::ONE {
                 let _ = write!(out, "{c} ");
             }
             out.push_str(&s.species.resolved.label);
         }
     }
     out
+}
+
+/// Append a positive integer without going through `fmt` (this runs once per term per reaction).
+fn push_int(out: &mut String, mut n: i128) {
+    let mut buf = [0u8; 40];
+    let mut i = buf.len();
+    loop {
+        i -= 1;
+        buf[i] = b'0' + (n % 10) as u8;
+        n /= 10;
+        if n == 0 {
+            break;
+        }
+    }
+    out.push_str(std::str::from_utf8(&buf[i..]).unwrap_or("?"));
 }

@@ -394,7 +394,8 @@ pub struct HeatBudget {
     pub mtsr_k: f64,
     /// Root-sum-square uncertainty of ΔrH°(298.15 K) from the species, where known, kJ/mol.
     pub delta_h_uncertainty_kj_per_mol: Option<f64>,
-    /// False when a species is outside its data's valid range at the process temperature.
+    /// False when a species is outside its data's valid range at the process temperature, or is
+    /// not the stable phase there at 1 bar.
     pub in_valid_range: bool,
 }
 
@@ -683,16 +684,35 @@ pub fn evaluate(
 
     let point = point_at(screened, t);
     if !point.in_valid_range {
-        let outside: Vec<&str> = screened
+        let states: Vec<(&str, crate::species::State)> = screened
             .species
             .iter()
-            .filter(|s| !s.species.resolved.state(t, t.ln()).in_range)
-            .map(|s| s.species.resolved.label.as_str())
+            .map(|s| {
+                (
+                    s.species.resolved.label.as_str(),
+                    s.species.resolved.state(t, t.ln()),
+                )
+            })
             .collect();
-        notes.push(format!(
-            "{t} K is outside the valid range of the data for {}: values there are extrapolated",
-            outside.join(", ")
-        ));
+        let outside: Vec<&str> = states
+            .iter()
+            .filter(|s| !s.1.in_range)
+            .map(|s| s.0)
+            .collect();
+        let unstable: Vec<&str> = states.iter().filter(|s| !s.1.stable).map(|s| s.0).collect();
+        if !outside.is_empty() {
+            notes.push(format!(
+                "{t} K is outside the valid range of the data for {}: values there are extrapolated",
+                outside.join(", ")
+            ));
+        }
+        if !unstable.is_empty() {
+            notes.push(format!(
+                "at {t} K and 1 bar {} is not the stable phase (it boils or melts below {t} K): \
+                 results use the phase as written",
+                unstable.join(", ")
+            ));
+        }
     }
     let equilibrium = Equilibrium {
         temperature_k: t,

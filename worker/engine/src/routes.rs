@@ -75,8 +75,8 @@ pub struct RouteSummary {
     pub worst_class: Option<StepValue<CriticalityClass>>,
     /// Steps whose class was not assessed (missing MTT or T_D24).
     pub class_not_assessed: Vec<String>,
-    /// Steps with class ≥ 3, thermo data extrapolated at the process temperature, or estimated
-    /// species.
+    /// Steps with class ≥ 3, thermo data extrapolated (or a phase past its boiling or melting
+    /// point) at the process temperature, or estimated species.
     pub flagged_steps: Vec<FlaggedStep>,
     pub notes: Vec<String>,
     /// [`CAUTION`], carried with every result.
@@ -182,7 +182,7 @@ fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> (ScoreKey, RouteSummar
             None => class_not_assessed.push(s.case_id.to_string()),
         }
         if !p.heat.in_valid_range {
-            reasons.push("thermo data extrapolated at the process temperature".to_string());
+            reasons.push("thermo data extrapolated, or a phase past its boiling or melting point, at the process temperature".to_string());
         }
         if !p.estimated_species.is_empty() {
             reasons.push(format!(

@@ -138,88 +138,39 @@ impl ProcessConditions {
             dsc_margin_k: pick(&self.dsc_margin_k, &batch.dsc_margin_k),
             coolant_temperature_k: pick(&self.coolant_temperature_k, &batch.coolant_temperature_k),
             ua_w_per_k: pick(&self.ua_w_per_k, &batch.ua_w_per_k),
-            inert_gas_mol_per_mol_reaction: pick(
-                &self.inert_gas_mol_per_mol_reaction,
-                &batch.inert_gas_mol_per_mol_reaction,
-            ),
+            inert_gas_mol_per_mol_reaction: pick(&self.inert_gas_mol_per_mol_reaction, &batch.inert_gas_mol_per_mol_reaction),
         }
     }
 
     /// # Errors
     /// `ProcessError::Invalid` naming the first field that is not a finite number in its range.
     pub fn validate(&self) -> Result<(), ProcessError> {
-        fn check(
-            field: &'static str,
-            v: Option<f64>,
-            ok: impl Fn(f64) -> bool,
-            expected: &'static str,
-        ) -> Result<(), ProcessError> {
+        fn check(field: &'static str, v: Option<f64>, ok: impl Fn(f64) -> bool, expected: &'static str) -> Result<(), ProcessError> {
             match v {
-                Some(x) if !(x.is_finite() && ok(x)) => Err(ProcessError::Invalid {
-                    field,
-                    value: x,
-                    expected,
-                }),
+                Some(x) if !(x.is_finite() && ok(x)) => Err(ProcessError::Invalid { field, value: x, expected }),
                 _ => Ok(()),
             }
         }
         let positive = |x: f64| x > 0.0;
         let non_negative = |x: f64| x >= 0.0;
         let in_grid = |x: f64| (GRID_RANGE_K.0..=GRID_RANGE_K.1).contains(&x);
-        check(
-            "process_temperature_k",
-            self.process_temperature_k,
-            in_grid,
-            "10 to 20000 K",
-        )?;
-        check(
-            "pressure_bar",
-            self.pressure_bar,
-            positive,
-            "a positive pressure",
-        )?;
+        check("process_temperature_k", self.process_temperature_k, in_grid, "10 to 20000 K")?;
+        check("pressure_bar", self.pressure_bar, positive, "a positive pressure")?;
         match &self.scale {
             Some(Scale::MolOfReaction(n)) => check("scale_mol", Some(*n), positive, "positive")?,
-            Some(Scale::KgOfProduct { kg, .. }) => {
-                check("scale_kg", Some(*kg), positive, "positive")?
-            }
+            Some(Scale::KgOfProduct { kg, .. }) => check("scale_kg", Some(*kg), positive, "positive")?,
             None => {}
         }
-        check(
-            "reaction_mass_kg",
-            self.reaction_mass_kg,
-            positive,
-            "positive",
-        )?;
+        check("reaction_mass_kg", self.reaction_mass_kg, positive, "positive")?;
         check("cp_kj_per_kg_k", self.cp_kj_per_kg_k, positive, "positive")?;
         check("dosing_time_h", self.dosing_time_h, positive, "positive")?;
         let fraction = |x: f64| (0.0..=1.0).contains(&x);
-        check(
-            "accumulation_fraction",
-            self.accumulation_fraction,
-            fraction,
-            "0 to 1",
-        )?;
+        check("accumulation_fraction", self.accumulation_fraction, fraction, "0 to 1")?;
         check("mtt_k", self.mtt_k, positive, "a positive temperature")?;
         check("t_d24_k", self.t_d24_k, positive, "a positive temperature")?;
-        check(
-            "dsc_onset_k",
-            self.dsc_onset_k,
-            positive,
-            "a positive temperature",
-        )?;
-        check(
-            "dsc_margin_k",
-            self.dsc_margin_k,
-            non_negative,
-            "0 K or more",
-        )?;
-        check(
-            "coolant_temperature_k",
-            self.coolant_temperature_k,
-            positive,
-            "positive",
-        )?;
+        check("dsc_onset_k", self.dsc_onset_k, positive, "a positive temperature")?;
+        check("dsc_margin_k", self.dsc_margin_k, non_negative, "0 K or more")?;
+        check("coolant_temperature_k", self.coolant_temperature_k, positive, "positive")?;
         check("ua_w_per_k", self.ua_w_per_k, non_negative, "0 W/K or more")?;
         check(
             "inert_gas_mol_per_mol_reaction",
@@ -426,15 +377,9 @@ impl CriticalityClass {
                 "class 2: MTT not reached, decomposition not triggered, but T_D24 lies below MTT \
                  (hold-up at MTT could trigger it)"
             }
-            CriticalityClass::Class3 => {
-                "class 3: MTT reached (boiling or set limit is a barrier), decomposition not triggered"
-            }
-            CriticalityClass::Class4 => {
-                "class 4: MTT reached before T_D24, MTSR above T_D24: the barrier at MTT must hold"
-            }
-            CriticalityClass::Class5 => {
-                "class 5: decomposition triggered before MTT is reached: no barrier"
-            }
+            CriticalityClass::Class3 => "class 3: MTT reached (boiling or set limit is a barrier), decomposition not triggered",
+            CriticalityClass::Class4 => "class 4: MTT reached before T_D24, MTSR above T_D24: the barrier at MTT must hold",
+            CriticalityClass::Class5 => "class 5: decomposition triggered before MTT is reached: no barrier",
         }
     }
 }
@@ -561,10 +506,7 @@ fn is_estimated(origin: &[Origin]) -> bool {
 /// # Errors
 /// `ProcessError` when a condition is out of range or the scale names a species that is not a
 /// product of the reaction.
-pub fn evaluate(
-    screened: &Screened,
-    conditions: &ProcessConditions,
-) -> Result<CaseProcess, ProcessError> {
+pub fn evaluate(screened: &Screened, conditions: &ProcessConditions) -> Result<CaseProcess, ProcessError> {
     conditions.validate()?;
     let mut assumed = Vec::new();
     let mut notes = Vec::new();
@@ -581,18 +523,14 @@ pub fn evaluate(
     let p = match conditions.pressure_bar {
         Some(p) => p,
         None => {
-            assumed.push(format!(
-                "pressure_bar = {DEFAULT_PRESSURE_BAR} (atmospheric, common practice)"
-            ));
+            assumed.push(format!("pressure_bar = {DEFAULT_PRESSURE_BAR} (atmospheric, common practice)"));
             DEFAULT_PRESSURE_BAR
         }
     };
     let scale = match &conditions.scale {
         Some(s) => s.clone(),
         None => {
-            assumed.push(format!(
-                "scale = {DEFAULT_SCALE_MOL} mol of reaction (1 kmol, common practice)"
-            ));
+            assumed.push(format!("scale = {DEFAULT_SCALE_MOL} mol of reaction (1 kmol, common practice)"));
             Scale::MolOfReaction(DEFAULT_SCALE_MOL)
         }
     };
@@ -620,25 +558,19 @@ pub fn evaluate(
     let operation = match conditions.operation {
         Some(o) => o,
         None => {
-            assumed
-                .push("operation = batch (all reactants charged at once: X_acc = 1)".to_string());
+            assumed.push("operation = batch (all reactants charged at once: X_acc = 1)".to_string());
             Operation::Batch
         }
     };
     let accumulation_fraction = match (operation, conditions.accumulation_fraction) {
         (Operation::Batch, Some(x)) if x < 1.0 => {
-            notes.push(format!(
-                "accumulation_fraction = {x} ignored for a batch process (X_acc = 1)"
-            ));
+            notes.push(format!("accumulation_fraction = {x} ignored for a batch process (X_acc = 1)"));
             1.0
         }
         (Operation::Batch, _) => 1.0,
         (Operation::SemiBatch, Some(x)) => x,
         (Operation::SemiBatch, None) => {
-            assumed.push(
-                "accumulation_fraction = 1 (no accumulation measured: worst case, all dosed material unreacted)"
-                    .to_string(),
-            );
+            assumed.push("accumulation_fraction = 1 (no accumulation measured: worst case, all dosed material unreacted)".to_string());
             1.0
         }
     };
@@ -656,9 +588,7 @@ pub fn evaluate(
             };
             (
                 Some(onset - margin),
-                Some(format!(
-                    "DSC onset {onset} K − {margin} K margin (common practice, no source)"
-                )),
+                Some(format!("DSC onset {onset} K − {margin} K margin (common practice, no source)")),
             )
         }
         (None, None) => (None, None),
@@ -687,18 +617,9 @@ pub fn evaluate(
         let states: Vec<(&str, crate::species::State)> = screened
             .species
             .iter()
-            .map(|s| {
-                (
-                    s.species.resolved.label.as_str(),
-                    s.species.resolved.state(t, t.ln()),
-                )
-            })
+            .map(|s| (s.species.resolved.label.as_str(), s.species.resolved.state(t, t.ln())))
             .collect();
-        let outside: Vec<&str> = states
-            .iter()
-            .filter(|s| !s.1.in_range)
-            .map(|s| s.0)
-            .collect();
+        let outside: Vec<&str> = states.iter().filter(|s| !s.1.in_range).map(|s| s.0).collect();
         let unstable: Vec<&str> = states.iter().filter(|s| !s.1.stable).map(|s| s.0).collect();
         if !outside.is_empty() {
             notes.push(format!(
@@ -726,16 +647,15 @@ pub fn evaluate(
 
     let heat = heat_budget(&point, &effective, screened.delta_h_uncertainty_kj_per_mol);
     if heat.adiabatic_rise_k < 0.0 {
-        notes.push(
-            "endothermic at the process temperature: no adiabatic rise, MTSR = process temperature"
-                .to_string(),
-        );
+        notes.push("endothermic at the process temperature: no adiabatic rise, MTSR = process temperature".to_string());
     }
     let severity = severity_from_adiabatic_rise(heat.adiabatic_rise_k);
     let criticality = criticality(&effective, heat.mtsr_k, &mut notes);
     let gas = gas_evolution(screened, &effective);
     if severity == Severity::Low && gas.delta_n_gas_per_mol > 0.0 {
-        notes.push("severity is rated from ΔT_ad alone; the reaction evolves gas, so pressure build-up needs its own assessment".to_string());
+        notes.push(
+            "severity is rated from ΔT_ad alone; the reaction evolves gas, so pressure build-up needs its own assessment".to_string(),
+        );
     }
     let cooling = cooling_check(&effective, heat.heat_kj_per_batch);
     let estimated_species = screened
@@ -778,22 +698,12 @@ pub fn reaction_mol(screened: &Screened, scale: &Scale) -> Result<f64, ProcessEr
     match scale {
         Scale::MolOfReaction(n) => Ok(*n),
         Scale::KgOfProduct { species, kg } => {
-            let products: Vec<&crate::screen::SpeciesTerm> = screened
-                .species
-                .iter()
-                .filter(|s| s.nu.signum() > 0)
-                .collect();
-            let Some(term) = products
-                .iter()
-                .find(|s| s.species.resolved.label == *species)
-            else {
+            let products: Vec<&crate::screen::SpeciesTerm> = screened.species.iter().filter(|s| s.nu.signum() > 0).collect();
+            let Some(term) = products.iter().find(|s| s.species.resolved.label == *species) else {
                 return Err(ProcessError::UnknownProduct {
                     species: species.clone(),
                     equation: screened.balanced_equation.clone(),
-                    products: products
-                        .iter()
-                        .map(|s| s.species.resolved.label.clone())
-                        .collect(),
+                    products: products.iter().map(|s| s.species.resolved.label.clone()).collect(),
                 });
             };
             let molar_mass_g_per_mol = term.species.resolved.formula.molar_mass_g_per_mol();
@@ -818,19 +728,11 @@ pub fn adiabatic_rise_k(heat_kj: f64, mass_kg: f64, cp_kj_per_kg_k: f64) -> f64 
 }
 
 /// MTSR = T_process + X_acc·ΔT_ad, K; an endothermic reaction (ΔT_ad < 0) gives no rise.
-pub fn mtsr_k(
-    process_temperature_k: f64,
-    accumulation_fraction: f64,
-    adiabatic_rise_k: f64,
-) -> f64 {
+pub fn mtsr_k(process_temperature_k: f64, accumulation_fraction: f64, adiabatic_rise_k: f64) -> f64 {
     process_temperature_k + accumulation_fraction * adiabatic_rise_k.max(0.0)
 }
 
-fn heat_budget(
-    point: &ThermoPoint,
-    c: &EffectiveConditions,
-    uncertainty: Option<f64>,
-) -> HeatBudget {
+fn heat_budget(point: &ThermoPoint, c: &EffectiveConditions, uncertainty: Option<f64>) -> HeatBudget {
     let per_mol = -point.delta_h_kj_per_mol;
     let per_batch = per_mol * c.reaction_mol;
     let rise = adiabatic_rise_k(per_batch, c.reaction_mass_kg, c.cp_kj_per_kg_k);
@@ -846,11 +748,7 @@ fn heat_budget(
     }
 }
 
-fn criticality(
-    c: &EffectiveConditions,
-    mtsr: f64,
-    notes: &mut Vec<String>,
-) -> Assessment<Criticality> {
+fn criticality(c: &EffectiveConditions, mtsr: f64, notes: &mut Vec<String>) -> Assessment<Criticality> {
     let mut missing = Vec::new();
     if c.mtt_k.is_none() {
         missing.push("mtt_k");
@@ -927,13 +825,9 @@ fn cooling_check(c: &EffectiveConditions, heat_kj_per_batch: f64) -> Assessment<
         missing.push("coolant_temperature_k");
     }
     match (c.dosing_time_h, c.ua_w_per_k, c.coolant_temperature_k) {
-        (Some(h), Some(ua), Some(tc)) => Assessment::Assessed(cooling_capacity_check(
-            heat_kj_per_batch,
-            h,
-            ua,
-            c.process_temperature_k,
-            tc,
-        )),
+        (Some(h), Some(ua), Some(tc)) => {
+            Assessment::Assessed(cooling_capacity_check(heat_kj_per_batch, h, ua, c.process_temperature_k, tc))
+        }
         _ => Assessment::missing(missing),
     }
 }
@@ -990,12 +884,7 @@ pub enum ExtentKind {
 /// and +∞ at ξ → 1 when a reactant is a gas, so the root is unique. It is found in the log-odds
 /// variable u = ln(ξ/(1 − ξ)), so extents within 1e-300 of either end keep full relative
 /// precision, by Newton steps kept inside a shrinking bracket (bisection when a step leaves it).
-pub fn solve_extent(
-    species: &[EquilibriumSpecies],
-    ln_k: f64,
-    p_over_p0: f64,
-    inert_mol: f64,
-) -> Extent {
+pub fn solve_extent(species: &[EquilibriumSpecies], ln_k: f64, p_over_p0: f64, inert_mol: f64) -> Extent {
     let dnu: f64 = species.iter().filter(|s| s.gas).map(|s| s.nu).sum();
     let ln_p = p_over_p0.ln();
     // f and df/du at u, with ξ = 1/(1 + e^−u), 1 − ξ = 1/(1 + e^u).
@@ -1046,11 +935,7 @@ pub fn solve_extent(
             hi = u;
         }
         let newton = if df > 0.0 { u - f / df } else { f64::NAN };
-        let next = if newton > lo && newton < hi {
-            newton
-        } else {
-            0.5 * (lo + hi)
-        };
+        let next = if newton > lo && newton < hi { newton } else { 0.5 * (lo + hi) };
         if (next - u).abs() <= 1e-13 * (1.0 + u.abs()) || hi - lo <= 1e-13 * (1.0 + u.abs()) {
             u = next;
             break;
@@ -1075,12 +960,7 @@ fn logistic(u: f64) -> (f64, f64) {
 ///
 /// Not assessed for reactions with aqueous or charged species (non-ideal solutions, no activity
 /// model here) or where the reaction has no reactants.
-pub fn equilibrium_conversion(
-    screened: &Screened,
-    t: f64,
-    p_bar: f64,
-    inert_mol: f64,
-) -> Assessment<EquilibriumConversion> {
+pub fn equilibrium_conversion(screened: &Screened, t: f64, p_bar: f64, inert_mol: f64) -> Assessment<EquilibriumConversion> {
     let mut eq_species = Vec::with_capacity(screened.species.len());
     for s in &screened.species {
         let r = &s.species.resolved;
@@ -1117,11 +997,7 @@ pub fn equilibrium_conversion(
     let mut n_t = inert_mol;
     for (s, e) in screened.species.iter().zip(&eq_species) {
         if e.gas {
-            let n = if e.nu < 0.0 {
-                -e.nu * ext.remaining
-            } else {
-                e.nu * ext.extent
-            };
+            let n = if e.nu < 0.0 { -e.nu * ext.remaining } else { e.nu * ext.extent };
             n_t += n;
             fractions.push((s.species.resolved.label.clone(), n));
         }
@@ -1134,14 +1010,8 @@ pub fn equilibrium_conversion(
     }
     let note = match ext.kind {
         ExtentKind::Root => None,
-        ExtentKind::DoesNotProceed => Some(
-            "the reaction quotient already exceeds K as ξ → 0: the reaction does not proceed"
-                .to_string(),
-        ),
-        ExtentKind::Complete => Some(
-            "the reaction quotient stays below K up to ξ = 1: the reaction goes to completion"
-                .to_string(),
-        ),
+        ExtentKind::DoesNotProceed => Some("the reaction quotient already exceeds K as ξ → 0: the reaction does not proceed".to_string()),
+        ExtentKind::Complete => Some("the reaction quotient stays below K up to ξ = 1: the reaction goes to completion".to_string()),
     };
     let mut note = note;
     if !point.in_valid_range {

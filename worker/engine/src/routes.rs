@@ -133,10 +133,7 @@ fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> (ScoreKey, RouteSummar
     let mut notes = Vec::new();
     for w in route.windows(2) {
         if w[0].step == w[1].step {
-            notes.push(format!(
-                "cases {} and {} are both step {}",
-                w[0].case_id, w[1].case_id, w[0].step
-            ));
+            notes.push(format!("cases {} and {} are both step {}", w[0].case_id, w[1].case_id, w[0].step));
         }
     }
     let failed = route.iter().find_map(|s| match s.result {
@@ -147,10 +144,7 @@ fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> (ScoreKey, RouteSummar
         }),
         Ok(_) => None,
     });
-    let ok: Vec<(&RouteStep, &CaseProcess)> = route
-        .iter()
-        .filter_map(|s| s.result.ok().map(|p| (*s, p)))
-        .collect();
+    let ok: Vec<(&RouteStep, &CaseProcess)> = route.iter().filter_map(|s| s.result.ok().map(|p| (*s, p))).collect();
 
     let mut worst_rise: Option<StepValue<f64>> = None;
     let mut worst_class: Option<StepValue<CriticalityClass>> = None;
@@ -185,10 +179,7 @@ fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> (ScoreKey, RouteSummar
             reasons.push("thermo data extrapolated, or a phase past its boiling or melting point, at the process temperature".to_string());
         }
         if !p.estimated_species.is_empty() {
-            reasons.push(format!(
-                "estimated species: {}",
-                p.estimated_species.join(", ")
-            ));
+            reasons.push(format!("estimated species: {}", p.estimated_species.join(", ")));
         }
         if !reasons.is_empty() {
             flagged_steps.push(FlaggedStep {
@@ -200,24 +191,16 @@ fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> (ScoreKey, RouteSummar
     }
 
     let complete = failed.is_none();
-    let total_heat_kj = complete.then(|| {
-        ok.iter()
-            .map(|(_, p)| p.heat.heat_kj_per_batch)
-            .sum::<f64>()
-    });
-    let total_gas_mol =
-        complete.then(|| ok.iter().map(|(_, p)| p.gas.gas_mol_per_batch).sum::<f64>());
-    let total_gas_m3_at_stp =
-        complete.then(|| ok.iter().map(|(_, p)| p.gas.gas_m3_at_stp).sum::<f64>());
+    let total_heat_kj = complete.then(|| ok.iter().map(|(_, p)| p.heat.heat_kj_per_batch).sum::<f64>());
+    let total_gas_mol = complete.then(|| ok.iter().map(|(_, p)| p.gas.gas_mol_per_batch).sum::<f64>());
+    let total_gas_m3_at_stp = complete.then(|| ok.iter().map(|(_, p)| p.gas.gas_m3_at_stp).sum::<f64>());
     let heat_per_final_product = match (total_heat_kj, ok.last()) {
         (Some(q), Some((_, last))) => Some(match &last.conditions.scale {
             Scale::KgOfProduct { species, kg } => HeatPerProduct::KjPerKg {
                 species: species.clone(),
                 value: q / kg,
             },
-            Scale::MolOfReaction(_) => {
-                HeatPerProduct::KjPerMolOfFinalReaction(q / last.conditions.reaction_mol)
-            }
+            Scale::MolOfReaction(_) => HeatPerProduct::KjPerMolOfFinalReaction(q / last.conditions.reaction_mol),
         }),
         _ => None,
     };

@@ -18,16 +18,9 @@ struct Row {
 
 fn rows() -> Vec<Row> {
     let text = include_str!("reference/cantera_equilibrium.tsv");
-    let mut lines = text
-        .lines()
-        .filter(|l| !l.starts_with('#') && !l.trim().is_empty());
+    let mut lines = text.lines().filter(|l| !l.starts_with('#') && !l.trim().is_empty());
     let header: Vec<&str> = lines.next().expect("header row").split('\t').collect();
-    let col = |name: &str| {
-        header
-            .iter()
-            .position(|h| *h == name)
-            .unwrap_or_else(|| panic!("column {name}"))
-    };
+    let col = |name: &str| header.iter().position(|h| *h == name).unwrap_or_else(|| panic!("column {name}"));
     let (id, eq, inert, t, p, lk, x) = (
         col("id"),
         col("equation"),
@@ -40,10 +33,7 @@ fn rows() -> Vec<Row> {
     lines
         .map(|line| {
             let f: Vec<&str> = line.split('\t').collect();
-            let num = |k: usize| {
-                f[k].parse::<f64>()
-                    .unwrap_or_else(|_| panic!("number in {line}"))
-            };
+            let num = |k: usize| f[k].parse::<f64>().unwrap_or_else(|_| panic!("number in {line}"));
             Row {
                 id: f[id].to_string(),
                 equation: f[eq].to_string(),
@@ -62,18 +52,12 @@ fn conversions_match_cantera_equilibrate() {
     let all = rows();
     let mut reactions: Vec<&str> = all.iter().map(|r| r.id.as_str()).collect();
     reactions.dedup();
-    assert!(
-        reactions.len() >= 5,
-        "need at least 5 reactions, have {}",
-        reactions.len()
-    );
+    assert!(reactions.len() >= 5, "need at least 5 reactions, have {}", reactions.len());
     let mut screener = Screener::new(species::bundled(), TemperatureGrid::default_process());
     let mut failures = Vec::new();
     let mut max_dev: f64 = 0.0;
     for r in &all {
-        let s = screener
-            .screen(&r.equation)
-            .unwrap_or_else(|e| panic!("{}: {e}", r.id));
+        let s = screener.screen(&r.equation).unwrap_or_else(|e| panic!("{}: {e}", r.id));
         let got = match equilibrium_conversion(&s, r.t, r.p_bar, r.inert_mol) {
             Assessment::Assessed(c) => c,
             Assessment::NotAssessed { reason, .. } => panic!("{}: {reason}", r.id),
@@ -90,20 +74,9 @@ fn conversions_match_cantera_equilibrate() {
         }
         let lk = thermosieve_engine::process::point_at(&s, r.t).log10_k;
         if (lk - r.log10_k).abs() > 0.01 {
-            failures.push(format!(
-                "{} at {} K: log10 K {lk} vs Cantera {}",
-                r.id, r.t, r.log10_k
-            ));
+            failures.push(format!("{} at {} K: log10 K {lk} vs Cantera {}", r.id, r.t, r.log10_k));
         }
     }
-    eprintln!(
-        "max |conversion - Cantera| over {} rows: {max_dev:.3e}",
-        all.len()
-    );
-    assert!(
-        failures.is_empty(),
-        "{} mismatches:\n{}",
-        failures.len(),
-        failures.join("\n")
-    );
+    eprintln!("max |conversion - Cantera| over {} rows: {max_dev:.3e}", all.len());
+    assert!(failures.is_empty(), "{} mismatches:\n{}", failures.len(), failures.join("\n"));
 }

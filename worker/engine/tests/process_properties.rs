@@ -3,21 +3,11 @@
 //! and never falls as K rises; a root is a root.
 
 use proptest::prelude::*;
-use thermosieve_engine::process::{
-    criticality_class, equilibrium_conversion, solve_extent, Assessment, EquilibriumSpecies,
-    ExtentKind,
-};
+use thermosieve_engine::process::{criticality_class, equilibrium_conversion, solve_extent, Assessment, EquilibriumSpecies, ExtentKind};
 use thermosieve_engine::{species, Screener, TemperatureGrid};
 
 /// Σν ln a − ln K at the solved extent (the function the solver zeroes).
-fn residual(
-    species: &[EquilibriumSpecies],
-    ln_k: f64,
-    p: f64,
-    inert: f64,
-    xi: f64,
-    rem: f64,
-) -> f64 {
+fn residual(species: &[EquilibriumSpecies], ln_k: f64, p: f64, inert: f64, xi: f64, rem: f64) -> f64 {
     let dnu: f64 = species.iter().filter(|s| s.gas).map(|s| s.nu).sum();
     let (mut sum_ln, mut n_t) = (0.0, inert);
     for s in species.iter().filter(|s| s.gas) {
@@ -39,30 +29,21 @@ fn reaction() -> impl Strategy<Value = Vec<EquilibriumSpecies>> {
         prop::collection::vec(1u8..4, 0..2),
         prop::collection::vec(1u8..4, 0..2),
     )
-        .prop_filter(
-            "a reaction has reactants and products",
-            |(gr, gp, cr, cp)| {
-                (!gr.is_empty() || !cr.is_empty()) && (!gp.is_empty() || !cp.is_empty())
-            },
-        )
+        .prop_filter("a reaction has reactants and products", |(gr, gp, cr, cp)| {
+            (!gr.is_empty() || !cr.is_empty()) && (!gp.is_empty() || !cp.is_empty())
+        })
         .prop_map(|(gr, gp, cr, cp)| {
             let mut v = Vec::new();
             v.extend(gr.iter().map(|&n| EquilibriumSpecies {
                 nu: -(n as f64),
                 gas: true,
             }));
-            v.extend(gp.iter().map(|&n| EquilibriumSpecies {
-                nu: n as f64,
-                gas: true,
-            }));
+            v.extend(gp.iter().map(|&n| EquilibriumSpecies { nu: n as f64, gas: true }));
             v.extend(cr.iter().map(|&n| EquilibriumSpecies {
                 nu: -(n as f64),
                 gas: false,
             }));
-            v.extend(cp.iter().map(|&n| EquilibriumSpecies {
-                nu: n as f64,
-                gas: false,
-            }));
+            v.extend(cp.iter().map(|&n| EquilibriumSpecies { nu: n as f64, gas: false }));
             v
         })
 }

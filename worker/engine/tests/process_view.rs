@@ -13,17 +13,15 @@
 
 use thermosieve_engine::formula::{parse_species, Phase};
 use thermosieve_engine::process::{
-    adiabatic_rise_k, celsius_to_kelvin, cooling_capacity_check, criticality_class, evaluate,
-    mtsr_k, severity_from_adiabatic_rise, Assessment, CriticalityClass, KTrend, Operation,
-    ProcessConditions, ProcessError, Scale, Severity, MOLAR_VOLUME_STP_M3_PER_MOL,
+    adiabatic_rise_k, celsius_to_kelvin, cooling_capacity_check, criticality_class, evaluate, mtsr_k, severity_from_adiabatic_rise,
+    Assessment, CriticalityClass, KTrend, Operation, ProcessConditions, ProcessError, Scale, Severity, MOLAR_VOLUME_STP_M3_PER_MOL,
 };
 use thermosieve_engine::species::{self, SuppliedSpecies, R};
 use thermosieve_engine::{Screened, Screener, TemperatureGrid, CAUTION};
 
 fn screen(equation: &str) -> Screened {
     let mut s = Screener::new(species::bundled(), TemperatureGrid::default_process());
-    s.screen(equation)
-        .unwrap_or_else(|e| panic!("{equation}: {e}"))
+    s.screen(equation).unwrap_or_else(|e| panic!("{equation}: {e}"))
 }
 
 fn close(got: f64, want: f64, tol: f64) -> bool {
@@ -48,43 +46,16 @@ fn adiabatic_rise_and_mtsr_by_definition() {
 #[test]
 fn criticality_classes_by_definition() {
     // Stoessel's scheme (from memory, see the module comment), ILLUSTRATIVE temperatures in K.
-    assert_eq!(
-        criticality_class(350.0, 370.0, 420.0),
-        CriticalityClass::Class1
-    ); // MTSR < MTT < T_D24
-    assert_eq!(
-        criticality_class(350.0, 420.0, 370.0),
-        CriticalityClass::Class2
-    ); // MTSR < T_D24 < MTT
-    assert_eq!(
-        criticality_class(390.0, 370.0, 420.0),
-        CriticalityClass::Class3
-    ); // MTT < MTSR < T_D24
-    assert_eq!(
-        criticality_class(450.0, 370.0, 420.0),
-        CriticalityClass::Class4
-    ); // MTT < T_D24 < MTSR
-    assert_eq!(
-        criticality_class(450.0, 470.0, 420.0),
-        CriticalityClass::Class5
-    ); // T_D24 < MTSR < MTT
-    assert_eq!(
-        criticality_class(480.0, 470.0, 420.0),
-        CriticalityClass::Class5
-    ); // T_D24 < MTT < MTSR
-       // Ties count against safety.
-    assert_eq!(
-        criticality_class(370.0, 370.0, 420.0),
-        CriticalityClass::Class3
-    ); // MTT reached
-    assert_eq!(
-        criticality_class(420.0, 370.0, 420.0),
-        CriticalityClass::Class4
-    ); // T_D24 reached
-    assert_eq!(
-        criticality_class(350.0, 400.0, 400.0),
-        CriticalityClass::Class2
-    ); // MTT = T_D24
+    assert_eq!(criticality_class(350.0, 370.0, 420.0), CriticalityClass::Class1); // MTSR < MTT < T_D24
+    assert_eq!(criticality_class(350.0, 420.0, 370.0), CriticalityClass::Class2); // MTSR < T_D24 < MTT
+    assert_eq!(criticality_class(390.0, 370.0, 420.0), CriticalityClass::Class3); // MTT < MTSR < T_D24
+    assert_eq!(criticality_class(450.0, 370.0, 420.0), CriticalityClass::Class4); // MTT < T_D24 < MTSR
+    assert_eq!(criticality_class(450.0, 470.0, 420.0), CriticalityClass::Class5); // T_D24 < MTSR < MTT
+    assert_eq!(criticality_class(480.0, 470.0, 420.0), CriticalityClass::Class5); // T_D24 < MTT < MTSR
+                                                                                  // Ties count against safety.
+    assert_eq!(criticality_class(370.0, 370.0, 420.0), CriticalityClass::Class3); // MTT reached
+    assert_eq!(criticality_class(420.0, 370.0, 420.0), CriticalityClass::Class4); // T_D24 reached
+    assert_eq!(criticality_class(350.0, 400.0, 400.0), CriticalityClass::Class2); // MTT = T_D24
     assert_eq!(CriticalityClass::Class4.number(), 4);
 }
 
@@ -131,9 +102,7 @@ fn heat_at_process_temperature_matches_cantera() {
 
 fn cantera_delta_h(id: &str, t: f64) -> f64 {
     let text = include_str!("reference/cantera_reactions.tsv");
-    let mut lines = text
-        .lines()
-        .filter(|l| !l.starts_with('#') && !l.trim().is_empty());
+    let mut lines = text.lines().filter(|l| !l.starts_with('#') && !l.trim().is_empty());
     let header: Vec<&str> = lines.next().unwrap().split('\t').collect();
     let col = |n: &str| header.iter().position(|h| *h == n).unwrap();
     for l in lines {
@@ -204,19 +173,11 @@ fn scale_in_kg_of_product_and_gas_volumes() {
         ..Default::default()
     };
     let p = evaluate(&s, &c).unwrap();
-    assert!(
-        close(p.conditions.reaction_mol, 1000.0, 1e-6),
-        "{}",
-        p.conditions.reaction_mol
-    );
+    assert!(close(p.conditions.reaction_mol, 1000.0, 1e-6), "{}", p.conditions.reaction_mol);
     assert_eq!(p.gas.delta_n_gas_per_mol, 1.0);
     assert!(close(p.gas.gas_m3_at_stp, 22.413_969_54, 1e-6));
     // Ideal gas at 1100 K and 1 bar: n R T / P.
-    assert!(close(
-        p.gas.gas_m3_at_process,
-        1000.0 * R * 1100.0 / 1e5,
-        1e-9
-    ));
+    assert!(close(p.gas.gas_m3_at_process, 1000.0 * R * 1100.0 / 1e5, 1e-9));
     // Endothermic: heat is negative, no adiabatic rise.
     assert!(p.heat.heat_kj_per_mol < 0.0);
     assert_eq!(p.heat.mtsr_k, 1100.0);
@@ -250,13 +211,7 @@ fn criticality_from_a_dsc_onset_with_the_default_margin() {
         ..Default::default()
     };
     let p = evaluate(&s, &c).unwrap();
-    assert!(
-        p.assumed
-            .iter()
-            .any(|a| a.starts_with("dsc_margin_k = 100")),
-        "{:?}",
-        p.assumed
-    );
+    assert!(p.assumed.iter().any(|a| a.starts_with("dsc_margin_k = 100")), "{:?}", p.assumed);
     assert_eq!(p.conditions.t_d24_k, Some(500.0));
     let crit = p.criticality.value().expect("assessed");
     // ΔT_ad = 100 mol × ~486 kJ/mol / (50 000 kg × 2.0) ≈ 0.49 K: MTSR ≈ 400.5 K < MTT < T_D24.
@@ -270,10 +225,7 @@ fn criticality_from_a_dsc_onset_with_the_default_margin() {
     };
     let p2 = evaluate(&s, &c2).unwrap();
     assert_eq!(p2.conditions.t_d24_k, Some(420.0));
-    assert_eq!(
-        p2.criticality.value().unwrap().class,
-        CriticalityClass::Class2
-    );
+    assert_eq!(p2.criticality.value().unwrap().class, CriticalityClass::Class2);
 }
 
 #[test]
@@ -292,30 +244,17 @@ fn semi_batch_accumulation_and_cooling_capacity() {
         ..Default::default()
     };
     let p = evaluate(&s, &c).unwrap();
-    assert!(close(
-        p.heat.mtsr_k,
-        350.0 + 0.25 * p.heat.adiabatic_rise_k,
-        1e-9
-    ));
+    assert!(close(p.heat.mtsr_k, 350.0 + 0.25 * p.heat.adiabatic_rise_k, 1e-9));
     let cool = p.cooling.value().expect("assessed");
     // Rate = Q_batch / 7200 s; capacity = 2000 W/K × 50 K = 100 kW.
-    assert!(close(
-        cool.heat_release_kw,
-        p.heat.heat_kj_per_batch / 7200.0,
-        1e-9
-    ));
+    assert!(close(cool.heat_release_kw, p.heat.heat_kj_per_batch / 7200.0, 1e-9));
     assert!(close(cool.cooling_capacity_kw, 100.0, 1e-12));
     assert!(close(cool.margin_kw, 100.0 - cool.heat_release_kw, 1e-9));
     // ILLUSTRATIVE: 720 000 kJ over 2 h is 100 kW; against 100 kW of cooling the ratio is 1.
     let k = cooling_capacity_check(720_000.0, 2.0, 2000.0, 350.0, 300.0);
-    assert!(
-        close(k.heat_release_kw, 100.0, 1e-12) && close(k.release_to_capacity.unwrap(), 1.0, 1e-12)
-    );
+    assert!(close(k.heat_release_kw, 100.0, 1e-12) && close(k.release_to_capacity.unwrap(), 1.0, 1e-12));
     // Coolant at or above the process temperature: no capacity, no ratio.
-    assert_eq!(
-        cooling_capacity_check(1.0, 1.0, 2000.0, 300.0, 300.0).release_to_capacity,
-        None
-    );
+    assert_eq!(cooling_capacity_check(1.0, 1.0, 2000.0, 300.0, 300.0).release_to_capacity, None);
 }
 
 #[test]
@@ -414,27 +353,16 @@ fn equilibrium_conversion_special_cases() {
             inert_gas_mol_per_mol_reaction: Some(inert),
             ..Default::default()
         };
-        evaluate(&s, &c)
-            .unwrap()
-            .equilibrium
-            .conversion
-            .value()
-            .unwrap()
-            .conversion
+        evaluate(&s, &c).unwrap().equilibrium.conversion.value().unwrap().conversion
     };
     assert_eq!(at(800.0, 0.0), 0.0);
     assert_eq!(at(1300.0, 0.0), 1.0);
     // With 10 mol of inert per mole: p(CO2)/p° = ξ/(ξ + 10) = K, so ξ = 10K/(1 − K).
     let k = 10f64.powf(thermosieve_engine::process::point_at(&s, 1000.0).log10_k);
     let want = 10.0 * k / (1.0 - k);
+    assert!(close(at(1000.0, 10.0), want, 1e-9), "{} vs {want}", at(1000.0, 10.0));
     assert!(
-        close(at(1000.0, 10.0), want, 1e-9),
-        "{} vs {want}",
-        at(1000.0, 10.0)
-    );
-    assert!(
-        s.delta_g_zero_k
-            .is_some_and(|t| (1100.0..1250.0).contains(&t)),
+        s.delta_g_zero_k.is_some_and(|t| (1100.0..1250.0).contains(&t)),
         "{:?}",
         s.delta_g_zero_k
     );
@@ -482,11 +410,7 @@ fn extrapolation_and_phase_changes_are_flagged() {
     )
     .unwrap();
     assert!(!p.heat.in_valid_range);
-    assert!(
-        p.notes.iter().any(|n| n.contains("H2O(l)")),
-        "{:?}",
-        p.notes
-    );
+    assert!(p.notes.iter().any(|n| n.contains("H2O(l)")), "{:?}", p.notes);
     let ok = evaluate(
         &s,
         &ProcessConditions {
@@ -496,9 +420,5 @@ fn extrapolation_and_phase_changes_are_flagged() {
     )
     .unwrap();
     assert!(ok.heat.in_valid_range, "{:?}", ok.notes);
-    assert!(ok
-        .equilibrium
-        .conversion
-        .value()
-        .is_some_and(|c| c.conversion > 0.999_999));
+    assert!(ok.equilibrium.conversion.value().is_some_and(|c| c.conversion > 0.999_999));
 }

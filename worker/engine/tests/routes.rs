@@ -4,15 +4,11 @@
 
 use thermosieve_engine::process::{evaluate, CriticalityClass, ProcessConditions, Scale};
 use thermosieve_engine::routes::HeatPerProduct;
-use thermosieve_engine::{
-    roll_up, species, CaseProcess, RouteStep, Screener, TemperatureGrid, CAUTION,
-};
+use thermosieve_engine::{roll_up, species, CaseProcess, RouteStep, Screener, TemperatureGrid, CAUTION};
 
 fn case(equation: &str, c: ProcessConditions) -> CaseProcess {
     let mut s = Screener::new(species::bundled(), TemperatureGrid::default_process());
-    let screened = s
-        .screen(equation)
-        .unwrap_or_else(|e| panic!("{equation}: {e}"));
+    let screened = s.screen(equation).unwrap_or_else(|e| panic!("{equation}: {e}"));
     evaluate(&screened, &c).unwrap()
 }
 
@@ -31,10 +27,7 @@ fn conditions(mass_kg: f64, mtt_k: f64, t_d24_k: f64) -> ProcessConditions {
 #[test]
 fn routes_roll_up_and_rank() {
     // Route A: two mild steps; the last is scaled in kg of its product.
-    let a1 = case(
-        "C2H4(g) + H2(g) -> C2H6(g)",
-        conditions(20_000.0, 400.0, 450.0),
-    );
+    let a1 = case("C2H4(g) + H2(g) -> C2H6(g)", conditions(20_000.0, 400.0, 450.0));
     let a2 = case(
         "2 H2(g) + O2(g) -> 2 H2O(l)",
         ProcessConditions {
@@ -46,15 +39,9 @@ fn routes_roll_up_and_rank() {
         },
     );
     // Route B: one step with a small mass: a large rise, past MTT and T_D24.
-    let b1 = case(
-        "2 H2(g) + O2(g) -> 2 H2O(l)",
-        conditions(100.0, 373.0, 420.0),
-    );
+    let b1 = case("2 H2(g) + O2(g) -> 2 H2O(l)", conditions(100.0, 373.0, 420.0));
     // Route C: its second step failed.
-    let c1 = case(
-        "C2H4(g) + H2(g) -> C2H6(g)",
-        conditions(20_000.0, 400.0, 450.0),
-    );
+    let c1 = case("C2H4(g) + H2(g) -> C2H6(g)", conditions(20_000.0, 400.0, 450.0));
     // Route D: no MTT, so its class is not assessed and ranks below every assessed class.
     let d1 = case(
         "C2H4(g) + H2(g) -> C2H6(g)",
@@ -111,10 +98,7 @@ fn routes_roll_up_and_rank() {
     let ids: Vec<&str> = routes.iter().map(|r| r.route_id.as_str()).collect();
     // A (class 1) < B (class 4) < D (not assessed) < C (failed).
     assert_eq!(ids, ["A", "B", "D", "C"]);
-    assert_eq!(
-        routes.iter().map(|r| r.rank).collect::<Vec<_>>(),
-        [1, 2, 3, 4]
-    );
+    assert_eq!(routes.iter().map(|r| r.rank).collect::<Vec<_>>(), [1, 2, 3, 4]);
     for r in &routes {
         assert_eq!(r.caution, CAUTION);
     }
@@ -139,17 +123,11 @@ fn routes_roll_up_and_rank() {
         ("a2", a2.heat.adiabatic_rise_k)
     };
     assert_eq!((worst.case_id.as_str(), worst.value), (want_id, want));
-    assert_eq!(
-        a.worst_class.as_ref().unwrap().value,
-        CriticalityClass::Class1
-    );
+    assert_eq!(a.worst_class.as_ref().unwrap().value, CriticalityClass::Class1);
     assert!(a.flagged_steps.is_empty(), "{:?}", a.flagged_steps);
 
     let b = &routes[1];
-    assert_eq!(
-        b.worst_class.as_ref().unwrap().value,
-        CriticalityClass::Class4
-    );
+    assert_eq!(b.worst_class.as_ref().unwrap().value, CriticalityClass::Class4);
     assert_eq!(b.flagged_steps.len(), 1);
     assert!(b.flagged_steps[0].reasons[0].contains("class 4"));
     match &b.heat_per_final_product {
@@ -171,22 +149,13 @@ fn routes_roll_up_and_rank() {
     );
     assert_eq!(c.total_heat_kj, None);
     // What is known of the steps that succeeded is still reported.
-    assert_eq!(
-        c.worst_class.as_ref().unwrap().value,
-        CriticalityClass::Class1
-    );
+    assert_eq!(c.worst_class.as_ref().unwrap().value, CriticalityClass::Class1);
 }
 
 #[test]
 fn ties_rank_by_rise_then_heat_then_id_and_duplicate_steps_are_noted() {
-    let mild = case(
-        "C2H4(g) + H2(g) -> C2H6(g)",
-        conditions(20_000.0, 400.0, 450.0),
-    );
-    let milder = case(
-        "C2H4(g) + H2(g) -> C2H6(g)",
-        conditions(40_000.0, 400.0, 450.0),
-    );
+    let mild = case("C2H4(g) + H2(g) -> C2H6(g)", conditions(20_000.0, 400.0, 450.0));
+    let milder = case("C2H4(g) + H2(g) -> C2H6(g)", conditions(40_000.0, 400.0, 450.0));
     let steps = [
         RouteStep {
             case_id: "x",
@@ -217,9 +186,5 @@ fn ties_rank_by_rise_then_heat_then_id_and_duplicate_steps_are_noted() {
     let ids: Vec<&str> = routes.iter().map(|r| r.route_id.as_str()).collect();
     // Y and Z share the worst rise; Y releases less heat in total (one step, Z has two).
     assert_eq!(ids, ["Y", "Z", "X"]);
-    assert!(
-        routes[1].notes.iter().any(|n| n.contains("both step 1")),
-        "{:?}",
-        routes[1].notes
-    );
+    assert!(routes[1].notes.iter().any(|n| n.contains("both step 1")), "{:?}", routes[1].notes);
 }

@@ -707,6 +707,14 @@ pub fn reaction_mol(screened: &Screened, scale: &Scale) -> Result<f64, ProcessEr
                 });
             };
             let molar_mass_g_per_mol = term.species.resolved.formula.molar_mass_g_per_mol();
+            if molar_mass_g_per_mol <= 0.0 {
+                // The electron: no mass to count a batch in.
+                return Err(ProcessError::Invalid {
+                    field: "scale_product",
+                    value: molar_mass_g_per_mol,
+                    expected: "a product with mass",
+                });
+            }
             Ok(kg * 1000.0 / molar_mass_g_per_mol / term.nu.to_f64())
         }
     }

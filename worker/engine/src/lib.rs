@@ -15,16 +15,22 @@
 //! - [`species`]: the bundled data table, polynomial models and species resolution.
 //! - [`thermo`]: temperature grids and reaction properties (ΔrH°, ΔrS°, ΔrG°, log10 K).
 //! - [`screen`]: one reaction end to end, with a species cache for batches.
+//! - [`process`]: one reaction at its process conditions: equilibrium, heat budget, criticality, gas.
+//! - [`routes`]: the steps of each route rolled up, and the routes of a batch ranked.
 
 pub mod balance;
 pub mod elements;
 pub mod equation;
 pub mod formula;
+pub mod process;
 pub mod rational;
+pub mod routes;
 pub mod screen;
 pub mod species;
 pub mod thermo;
 
+pub use process::{evaluate as evaluate_process, CaseProcess, ProcessConditions, ProcessError};
+pub use routes::{roll_up, RouteStep, RouteSummary};
 pub use screen::{ScreenError, Screened, Screener};
 pub use thermo::TemperatureGrid;
 

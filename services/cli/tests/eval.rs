@@ -40,3 +40,34 @@ fn bad_input_names_the_position_and_exits_3() {
     assert_eq!(code, 2);
     assert!(err.contains("position 1"), "{err}");
 }
+
+#[test]
+fn process_options_print_the_heat_budget() {
+    let (code, out, err) = eval(&[
+        "N2(g) + 3 H2(g) -> 2 NH3(g)",
+        "--process-temperature-c",
+        "326.85",
+        "--scale-mol",
+        "100",
+        "--reaction-mass-kg",
+        "10",
+        "--cp-kj-per-kg-k",
+        "2.0",
+        "--mtt-c",
+        "400",
+        "--t-d24-c",
+        "500",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    // ΔrH°(600 K) = −102.918 kJ/mol from the NASA data, per Cantera 3.2.0
+    // (worker/engine/tests/reference/cantera_reactions.tsv, ammonia_synthesis at 600 K):
+    // Q = 100 mol × 102.918 kJ/mol = 10291.8 kJ; ΔT_ad = 10291.8 / (10 kg × 2.0) = 514.6 K.
+    assert!(out.contains("adiabatic rise 514.6 K"), "{out}");
+    // MTT 673 K < T_D24 773 K < MTSR 1114.6 K: class 4 in the scheme of process.rs.
+    assert!(out.contains("criticality class 4"), "{out}");
+    assert!(
+        out.trim_end()
+            .ends_with("licensed professional judgement. Estimated data can be wrong by tens of kJ/mol."),
+        "{out}"
+    );
+}

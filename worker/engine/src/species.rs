@@ -101,7 +101,7 @@ impl State {
 #[derive(Clone, Debug, PartialEq)]
 pub enum Origin {
     /// A record of the bundled table (its name in the source, e.g. `H2O(L)`).
-    Tabulated { record: String, note: String },
+    Tabulated { record: String, note: String, source: String },
     /// Values supplied with the request.
     Supplied,
 }
@@ -119,6 +119,8 @@ pub struct Record {
     pub formula: Formula,
     pub segments: Vec<Segment>,
     pub note: String,
+    /// The data source, for humans: `NASA thermo data (...) via Cantera 3.2.0`.
+    pub source: String,
     /// Standard uncertainty of ΔfH°(298.15 K) where the source gives one.
     pub dhf_uncertainty_kj_per_mol: Option<f64>,
 }
@@ -241,22 +243,32 @@ impl Resolved {
         (lo, hi)
     }
 
-    /// One line naming the data behind this species: the source, then each record used.
-    pub fn source_line(&self, table: &Table) -> String {
-        let mut tabulated = Vec::new();
-        let mut supplied = false;
+    /// One line naming the data behind this species: each source, then the records used from it.
+    pub fn source_line(&self, _table: &Table) -> String {
+        let mut parts: Vec<(String, Vec<String>)> = Vec::new();
         for o in &self.origin {
-            match o {
-                Origin::Tabulated { record, note } if note.is_empty() => tabulated.push(record.clone()),
-                Origin::Tabulated { record, note } => tabulated.push(format!("{record} ({note})")),
-                Origin::Supplied => supplied = true,
+            let (source, item) = match o {
+                Origin::Tabulated { record, note, source } if note.is_empty() => (source.clone(), record.clone()),
+                Origin::Tabulated { record, note, source } => (source.clone(), format!("{record} ({note})")),
+                Origin::Supplied => ("values supplied with the request".to_string(), String::new()),
+            };
+            match parts.iter_mut().find(|p| p.0 == source) {
+                Some(p) => p.1.push(item),
+                None => parts.push((source, vec![item])),
             }
         }
-        match (supplied, tabulated.is_empty()) {
-            (true, _) => "values supplied with the request".to_string(),
-            (false, false) => format!("{}: {}", table.source_name, tabulated.join("; ")),
-            (false, true) => table.source_name.clone(),
-        }
+        let shown: Vec<String> = parts
+            .into_iter()
+            .map(|(source, items)| {
+                let items: Vec<String> = items.into_iter().filter(|i| !i.is_empty()).collect();
+                if items.is_empty() {
+                    source
+                } else {
+                    format!("{source}: {}", items.join("; "))
+                }
+            })
+            .collect();
+        shown.join(" + ")
     }
 }
 
@@ -288,19 +300,143 @@ pub struct Table {
     pub records: Vec<Record>,
     by_name: HashMap<(String, i32), Vec<usize>>,
     by_formula: HashMap<String, Vec<usize>>,
-    /// Header comment of the data file: generator, versions, terms.
+    /// Header comments of the data files: generators, versions, terms.
     pub provenance: String,
-    pub source_name: String,
+    /// Every source the table's records come from, in load order.
+    pub sources: Vec<String>,
 }
 
 const NASA_TSV: &str = include_str!("../data/nasa_species.tsv");
-/// How results name the bundled data.
+/// How results name the bundled NASA data.
 pub const SOURCE_NAME: &str = "NASA thermo data (McBride, Gordon & Reno, NASA TM-4513, 1993; public domain) via Cantera 3.2.0";
 
 /// The bundled table, parsed on first use (a few milliseconds) and shared for the process.
 pub fn bundled() -> &'static Table {
     static TABLE: OnceLock<Table> = OnceLock::new();
-    TABLE.get_or_init(|| Table::from_tsv(NASA_TSV, SOURCE_NAME).unwrap_or_else(|e| panic!("{e}")))
+    TABLE.get_or_init(|| Table::from_sources(&[(NASA_TSV, SOURCE_NAME)], None).unwrap_or_else(|e| panic!("{e}")))
+}
+
+/// Append the records of one table in the `nasa_species.tsv` layout.
+fn parse_records(tsv: &str, source_name: &str, records: &mut Vec<Record>, provenance: &mut String) -> Result<(), String> {
+    let mut header: Option<Vec<&str>> = None;
+    for (i, line) in tsv.lines().enumerate() {
+        if let Some(c) = line.strip_prefix('#') {
+            provenance.push_str(c.trim());
+            provenance.push('\n');
+            continue;
+        }
+        if line.trim().is_empty() {
+            continue;
+        }
+        let f: Vec<&str> = line.split('\t').collect();
+        let Some(h) = &header else {
+            header = Some(f);
+            continue;
+        };
+        let col = |name: &str| -> Result<&str, String> {
+            let k = h
+                .iter()
+                .position(|c| *c == name)
+                .ok_or_else(|| format!("{source_name}: no column {name}"))?;
+            f.get(k).copied().ok_or_else(|| format!("line {}: missing {name}", i + 1))
+        };
+        let err = |what: &str| format!("{source_name}: species table line {}: {what}", i + 1);
+        let phase = match col("phase")? {
+            "g" => Phase::Gas,
+            "l" => Phase::Liquid,
+            "s" => Phase::Solid,
+            p => return Err(err(&format!("phase {p:?}"))),
+        };
+        let charge: i32 = col("charge")?.parse().map_err(|_| err("charge"))?;
+        let formula = match parse_composition(col("composition")?, charge) {
+            Ok(f) => f,
+            // Fractional compositions (non-stoichiometric solids) cannot be balanced in
+            // integers, and deuterium is not an element of the table: leave those out.
+            Err(e) if e.starts_with("non-integer") || e.contains("'D'") => continue,
+            Err(e) => return Err(err(&e)),
+        };
+        let nasa7 = match col("model")? {
+            "nasa9" => false,
+            "nasa7" => true,
+            m => return Err(err(&format!("model {m:?}"))),
+        };
+        let mut segments = Vec::new();
+        for seg in col("segments")?.split(';') {
+            let v: Vec<f64> = seg
+                .split(',')
+                .map(|x| x.trim().parse::<f64>())
+                .collect::<Result<_, _>>()
+                .map_err(|_| err("segment number"))?;
+            let s = match (nasa7, v.len()) {
+                (false, 11) => Segment {
+                    t_min_k: v[0],
+                    t_max_k: v[1],
+                    a: v[2..11].try_into().map_err(|_| err("segment"))?,
+                },
+                (true, 9) => Segment::from_nasa7(v[0], v[1], &v[2..9].try_into().map_err(|_| err("segment"))?),
+                _ => return Err(err("segment length")),
+            };
+            segments.push(s);
+        }
+        segments.sort_by(|a, b| a.t_min_k.total_cmp(&b.t_min_k));
+        // The CHEMKIN-format NASA files give 300 K as the lower limit of many condensed
+        // species (Al2O3, Fe2O3, CaO) and a few gases (SO2, SO3, HCl) whose fits start at the
+        // 298.15 K reference point; take them as valid from 298.15 K so standard values are
+        // not flagged for a 1.85 K step.
+        if let Some(first) = segments.first_mut() {
+            if first.t_min_k == 300.0 {
+                first.t_min_k = T_REF_K;
+            }
+        }
+        records.push(Record {
+            name: col("name")?.to_string(),
+            base: col("base")?.to_string(),
+            phase,
+            tag: col("tag")?.to_string(),
+            formula,
+            segments,
+            note: col("note").unwrap_or("").to_string(),
+            source: col("source").ok().filter(|s| !s.is_empty()).unwrap_or(source_name).to_string(),
+            dhf_uncertainty_kj_per_mol: match col("dhf_uncertainty_kj_per_mol") {
+                Ok("") | Err(_) => None,
+                Ok(v) => Some(v.parse().map_err(|_| err("dhf_uncertainty_kj_per_mol"))?),
+            },
+        });
+    }
+    Ok(())
+}
+
+/// Set ΔfH° uncertainties from an overlay keyed by record name.
+fn apply_uncertainties(tsv: &str, records: &mut [Record], provenance: &mut String) -> Result<(), String> {
+    let mut header: Option<Vec<&str>> = None;
+    let by_name: HashMap<String, usize> = records.iter().enumerate().map(|(k, r)| (r.name.clone(), k)).collect();
+    for (i, line) in tsv.lines().enumerate() {
+        if let Some(c) = line.strip_prefix('#') {
+            provenance.push_str(c.trim());
+            provenance.push('\n');
+            continue;
+        }
+        if line.trim().is_empty() {
+            continue;
+        }
+        let f: Vec<&str> = line.split('\t').collect();
+        let Some(h) = &header else {
+            header = Some(f);
+            continue;
+        };
+        let col = |name: &str| h.iter().position(|c| *c == name).and_then(|k| f.get(k).copied());
+        let (Some(name), Some(u)) = (col("name"), col("atct_uncertainty_kj_per_mol")) else {
+            return Err(format!(
+                "uncertainty overlay line {}: needs name and atct_uncertainty_kj_per_mol",
+                i + 1
+            ));
+        };
+        let u: f64 = u.parse().map_err(|_| format!("uncertainty overlay line {}: bad number", i + 1))?;
+        if let Some(&k) = by_name.get(name) {
+            records[k].dhf_uncertainty_kj_per_mol = Some(u);
+        }
+    }
+    Ok(())
 }
 
 /// Whether a polymorph asked for (`a` alpha, `b` beta, `c` gamma, `d` delta, `gr` graphite)
@@ -341,91 +477,36 @@ fn strip_charge(name: &str) -> &str {
 }
 
 impl Table {
-    /// Parse a table in the `nasa_species.tsv` layout.
+    /// Parse one table in the `nasa_species.tsv` layout; `source_name` names its records' source
+    /// unless a `source` column does.
     ///
     /// # Errors
     /// A message naming the line when a row is malformed.
     pub fn from_tsv(tsv: &str, source_name: &str) -> Result<Table, String> {
+        Table::from_sources(&[(tsv, source_name)], None)
+    }
+
+    /// Parse several tables (later ones add records; they never replace earlier ones) and an
+    /// optional overlay of ΔfH° uncertainties keyed by record name (`name` and
+    /// `atct_uncertainty_kj_per_mol` columns).
+    ///
+    /// # Errors
+    /// A message naming the file and line when a row is malformed.
+    pub fn from_sources(tables: &[(&str, &str)], uncertainties: Option<&str>) -> Result<Table, String> {
         let mut provenance = String::new();
-        let mut header: Option<Vec<&str>> = None;
         let mut records = Vec::new();
-        for (i, line) in tsv.lines().enumerate() {
-            if let Some(c) = line.strip_prefix('#') {
-                provenance.push_str(c.trim());
-                provenance.push('\n');
-                continue;
-            }
-            if line.trim().is_empty() {
-                continue;
-            }
-            let f: Vec<&str> = line.split('\t').collect();
-            let Some(h) = &header else {
-                header = Some(f);
-                continue;
-            };
-            let col = |name: &str| -> Result<&str, String> {
-                let k = h.iter().position(|c| *c == name).ok_or_else(|| format!("no column {name}"))?;
-                f.get(k).copied().ok_or_else(|| format!("line {}: missing {name}", i + 1))
-            };
-            let err = |what: &str| format!("species table line {}: {what}", i + 1);
-            let phase = match col("phase")? {
-                "g" => Phase::Gas,
-                "l" => Phase::Liquid,
-                "s" => Phase::Solid,
-                p => return Err(err(&format!("phase {p:?}"))),
-            };
-            let charge: i32 = col("charge")?.parse().map_err(|_| err("charge"))?;
-            let formula = match parse_composition(col("composition")?, charge) {
-                Ok(f) => f,
-                // Fractional compositions (non-stoichiometric solids) cannot be balanced in
-                // integers, and deuterium is not an element of the table: leave those out.
-                Err(e) if e.starts_with("non-integer") || e.contains("'D'") => continue,
-                Err(e) => return Err(err(&e)),
-            };
-            let nasa7 = match col("model")? {
-                "nasa9" => false,
-                "nasa7" => true,
-                m => return Err(err(&format!("model {m:?}"))),
-            };
-            let mut segments = Vec::new();
-            for seg in col("segments")?.split(';') {
-                let v: Vec<f64> = seg
-                    .split(',')
-                    .map(|x| x.trim().parse::<f64>())
-                    .collect::<Result<_, _>>()
-                    .map_err(|_| err("segment number"))?;
-                let s = match (nasa7, v.len()) {
-                    (false, 11) => Segment {
-                        t_min_k: v[0],
-                        t_max_k: v[1],
-                        a: v[2..11].try_into().map_err(|_| err("segment"))?,
-                    },
-                    (true, 9) => Segment::from_nasa7(v[0], v[1], &v[2..9].try_into().map_err(|_| err("segment"))?),
-                    _ => return Err(err("segment length")),
-                };
-                segments.push(s);
-            }
-            segments.sort_by(|a, b| a.t_min_k.total_cmp(&b.t_min_k));
-            // The CHEMKIN-format NASA files give 300 K as the lower limit of many condensed
-            // species (Al2O3, Fe2O3, CaO) and a few gases (SO2, SO3, HCl) whose fits start at the
-            // 298.15 K reference point; take them as valid from 298.15 K so standard values are
-            // not flagged for a 1.85 K step.
-            if let Some(first) = segments.first_mut() {
-                if first.t_min_k == 300.0 {
-                    first.t_min_k = T_REF_K;
-                }
-            }
-            records.push(Record {
-                name: col("name")?.to_string(),
-                base: col("base")?.to_string(),
-                phase,
-                tag: col("tag")?.to_string(),
-                formula,
-                segments,
-                note: col("note").unwrap_or("").to_string(),
-                dhf_uncertainty_kj_per_mol: None,
-            });
+        let mut sources = Vec::new();
+        for (tsv, source_name) in tables {
+            parse_records(tsv, source_name, &mut records, &mut provenance)?;
+            sources.push(source_name.to_string());
         }
+        if let Some(overlay) = uncertainties {
+            apply_uncertainties(overlay, &mut records, &mut provenance)?;
+        }
+        Ok(Table::index(records, provenance, sources))
+    }
+
+    fn index(records: Vec<Record>, provenance: String, sources: Vec<String>) -> Table {
         let mut by_name: HashMap<(String, i32), Vec<usize>> = HashMap::new();
         let mut by_formula: HashMap<String, Vec<usize>> = HashMap::new();
         for (k, r) in records.iter().enumerate() {
@@ -446,13 +527,13 @@ impl Table {
             }
             by_formula.entry(r.formula.hill()).or_default().push(k);
         }
-        Ok(Table {
+        Table {
             records,
             by_name,
             by_formula,
             provenance,
-            source_name: source_name.to_string(),
-        })
+            sources,
+        }
     }
 
     /// Records whose base name is `name` with this charge.
@@ -571,6 +652,7 @@ impl Table {
                 .map(|r| Origin::Tabulated {
                     record: r.name.clone(),
                     note: r.note.clone(),
+                    source: r.source.clone(),
                 })
                 .collect(),
             dhf_uncertainty_kj_per_mol: recs[0].dhf_uncertainty_kj_per_mol,

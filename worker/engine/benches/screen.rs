@@ -1,1 +1,60 @@
-fn main(){}
+//! Parse + balance + resolve + thermodynamics at 15 temperatures for typical tabulated reactions
+//! of 3–6 species, on one core, as a batch sees them (the species cache warm after first sight).
+//! Half the reactions come without coefficients, so balancing runs as well as checking.
+
+use criterion::{criterion_group, criterion_main, Criterion, Throughput};
+use std::hint::black_box;
+use thermosieve_engine::{species, Screener, TemperatureGrid};
+
+const REACTIONS: [&str; 24] = [
+    "CH4(g) + 2 O2(g) -> CO2(g) + 2 H2O(g)",
+    "C3H8(g) + O2(g) -> CO2(g) + H2O(l)",
+    "C2H4(g) + H2(g) -> C2H6(g)",
+    "C6H6(g) + H2(g) -> C6H12,cyclo-(g)",
+    "CO(g) + 2 H2(g) -> CH3OH(g)",
+    "CO2(g) + H2(g) -> CH3OH(g) + H2O(g)",
+    "2 SO2(g) + O2(g) -> 2 SO3(g)",
+    "NH3(g) + O2(g) -> NO(g) + H2O(g)",
+    "N2(g) + H2(g) -> NH3(g)",
+    "CaCO3(s) -> CaO(s) + CO2(g)",
+    "Al(cr) + Fe2O3(s) -> Al2O3(s) + Fe(cr)",
+    "CH4(g) + H2O(g) -> CO(g) + H2(g)",
+    "CO(g) + H2O(g) -> CO2(g) + H2(g)",
+    "C(gr) + CO2(g) -> CO(g)",
+    "Fe(s) + O2(g) -> Fe3O4(s)",
+    "2 NO(g) + O2(g) -> 2 NO2(g)",
+    "NaOH(s) + HCl(g) -> NaCl(s) + H2O(l)",
+    "C7H8(l) + 9 O2(g) -> 7 CO2(g) + 4 H2O(l)",
+    "SO3(g) + H2O(l) -> H2SO4(l)",
+    "C2H5OH(g) + O2(g) -> CO2(g) + H2O(g)",
+    "2 Mg(s) + O2(g) -> 2 MgO(s)",
+    "H2(g) + Cl2(g) -> 2 HCl(g)",
+    "CaO(s) + H2O(l) -> CaO2H2(s)",
+    "N2O4(g) <=> 2 NO2(g)",
+];
+
+fn bench(c: &mut Criterion) {
+    let table = species::bundled();
+    let mut screener = Screener::new(table, TemperatureGrid::default_process());
+    for r in REACTIONS {
+        screener.screen(r).unwrap_or_else(|e| panic!("{r}: {e}"));
+    }
+    let mut g = c.benchmark_group("screen");
+    g.throughput(Throughput::Elements(REACTIONS.len() as u64));
+    g.bench_function("tabulated_reactions_15_temperatures", |b| {
+        b.iter(|| {
+            for r in REACTIONS {
+                black_box(screener.screen(black_box(r)).ok());
+            }
+        })
+    });
+    g.finish();
+    c.bench_function("bundled_table_parse", |b| {
+        b.iter(|| {
+            black_box(species::Table::from_tsv(black_box(include_str!("../data/nasa_species.tsv")), "bench").map(|t| t.records.len()))
+        })
+    });
+}
+
+criterion_group!(benches, bench);
+criterion_main!(benches);

@@ -73,7 +73,11 @@ fn describe_residual(r: &[(String, Rational)]) -> String {
     let parts: Vec<String> = r
         .iter()
         .map(|(k, v)| {
-            let side = if v.signum() > 0 { "more on the product side" } else { "more on the reactant side" };
+            let side = if v.signum() > 0 {
+                "more on the product side"
+            } else {
+                "more on the reactant side"
+            };
             let abs = if v.signum() < 0 { v.checked_neg().unwrap_or(*v) } else { *v };
             format!("{k}: {abs} {side}")
         })
@@ -81,48 +85,84 @@ fn describe_residual(r: &[(String, Rational)]) -> String {
     parts.join(", ")
 }
 
-/// Row keys of the matrix: every element present, then charge when any species is charged.
-fn rows(columns: &[Column]) -> (Vec<Z>, bool) {
-    let mut zs: Vec<Z> = Vec::with_capacity(8);
-    for c in columns {
-        for &(z, _) in &c.formula.atoms {
-            if let Err(k) = zs.binary_search(&z) {
-                zs.insert(k, z);
+/// The element-by-species matrix (a charge row last when any species is charged), row-major,
+/// entries signed: negative for reactants.
+struct Matrix {
+    keys: Vec<Z>,
+    charged: bool,
+    cols: usize,
+    a: Vec<i128>,
+}
+
+impl Matrix {
+    fn new(columns: &[Column]) -> Matrix {
+        let mut keys: Vec<Z> = Vec::with_capacity(8);
+        for c in columns {
+            for &(z, _) in &c.formula.atoms {
+                if let Err(k) = keys.binary_search(&z) {
+                    keys.insert(k, z);
+                }
             }
         }
-    }
-    (zs, columns.iter().any(|c| c.formula.charge != 0))
-}
-
-fn matrix(columns: &[Column]) -> (Vec<Vec<i128>>, Vec<String>) {
-    let (zs, charged) = rows(columns);
-    let mut m: Vec<Vec<i128>> = zs
-        .iter()
-        .map(|&z| columns.iter().map(|c| c.side.sign() * c.formula.count(z) as i128).collect())
-        .collect();
-    let mut keys: Vec<String> = zs.iter().map(|&z| elements::symbol(z).to_string()).collect();
-    if charged {
-        m.push(columns.iter().map(|c| c.side.sign() * c.formula.charge as i128).collect());
-        keys.push("charge".into());
-    }
-    (m, keys)
-}
-
-/// Products minus reactants per row for the given positive coefficients.
-fn residual(columns: &[Column], coefficients: &[Rational]) -> Result<Vec<(String, Rational)>, BalanceError> {
-    let (m, keys) = matrix(columns);
-    let mut out = Vec::new();
-    for (row, key) in m.iter().zip(keys) {
-        let mut sum = Rational::ZERO;
-        for (&a, &c) in row.iter().zip(coefficients) {
-            let term = Rational::integer(a).checked_mul(c).map_err(|_| BalanceError::Overflow)?;
-            sum = sum.checked_add(term).map_err(|_| BalanceError::Overflow)?;
+        let charged = columns.iter().any(|c| c.formula.charge != 0);
+        let cols = columns.len();
+        let mut a = Vec::with_capacity((keys.len() + 1) * cols);
+        for &z in &keys {
+            a.extend(columns.iter().map(|c| c.side.sign() * c.formula.count(z) as i128));
         }
-        if !sum.is_zero() {
-            out.push((key, sum));
+        if charged {
+            a.extend(columns.iter().map(|c| c.side.sign() * c.formula.charge as i128));
+        }
+        Matrix { keys, charged, cols, a }
+    }
+
+    fn rows(&self) -> usize {
+        self.keys.len() + usize::from(self.charged)
+    }
+
+    fn row(&self, i: usize) -> &[i128] {
+        &self.a[i * self.cols..(i + 1) * self.cols]
+    }
+
+    fn key(&self, i: usize) -> String {
+        match self.keys.get(i) {
+            Some(&z) => elements::symbol(z).to_string(),
+            None => "charge".to_string(),
         }
     }
-    Ok(out)
+
+    /// Products minus reactants per row for positive coefficients; only nonzero rows.
+    fn residual(&self, coefficients: &[Rational]) -> Result<Vec<(String, Rational)>, BalanceError> {
+        let ov = BalanceError::Overflow;
+        let mut out = Vec::new();
+        let integral = coefficients.iter().all(|c| c.is_integer());
+        for i in 0..self.rows() {
+            let row = self.row(i);
+            let sum = if integral {
+                let mut n: i128 = 0;
+                for (&a, k) in row.iter().zip(coefficients) {
+                    n = n.checked_add(a.checked_mul(k.numer()).ok_or(ov.clone())?).ok_or(ov.clone())?;
+                }
+                Rational::integer(n)
+            } else {
+                let mut sum = Rational::ZERO;
+                for (&a, &k) in row.iter().zip(coefficients) {
+                    let term = Rational::integer(a).checked_mul(k).map_err(|_| ov.clone())?;
+                    sum = sum.checked_add(term).map_err(|_| ov.clone())?;
+                }
+                sum
+            };
+            if !sum.is_zero() {
+                out.push((self.key(i), sum));
+            }
+        }
+        Ok(out)
+    }
+
+    /// True when unit coefficients conserve every row.
+    fn balanced_with_ones(&self) -> bool {
+        (0..self.rows()).all(|i| self.row(i).iter().sum::<i128>() == 0)
+    }
 }
 
 /// Check written coefficients (one per column, all positive).
@@ -130,62 +170,84 @@ fn residual(columns: &[Column], coefficients: &[Rational]) -> Result<Vec<(String
 /// # Errors
 /// `NotBalanced` with the residual when an element or the charge is not conserved.
 pub fn check(columns: &[Column], coefficients: &[Rational]) -> Result<Balance, BalanceError> {
-    let r = residual(columns, coefficients)?;
+    let r = Matrix::new(columns).residual(coefficients)?;
     if r.is_empty() {
-        Ok(Balance { outcome: Outcome::AlreadyBalanced, coefficients: coefficients.to_vec() })
+        Ok(Balance {
+            outcome: Outcome::AlreadyBalanced,
+            coefficients: coefficients.to_vec(),
+        })
     } else {
         Err(BalanceError::NotBalanced { residual: r })
     }
 }
 
-/// Reduced row echelon form in integers; returns the pivot column of each nonzero row.
-fn row_reduce(m: &mut Vec<Vec<i128>>, ncols: usize) -> Result<Vec<usize>, BalanceError> {
+/// Reduced row echelon form in integers, in place; returns the pivot column of each nonzero row
+/// (rows past the last pivot are left zero).
+fn row_reduce(m: &mut Matrix) -> Result<Vec<usize>, BalanceError> {
     let ov = || BalanceError::Overflow;
-    let mut pivots = Vec::new();
+    let (rows, cols) = (m.rows(), m.cols);
+    let mut pivots = Vec::with_capacity(rows);
     let mut r = 0;
-    for col in 0..ncols {
-        let Some(p) = (r..m.len()).find(|&i| m[i][col] != 0) else { continue };
-        m.swap(r, p);
-        for i in 0..m.len() {
-            if i == r || m[i][col] == 0 {
+    for col in 0..cols {
+        let Some(p) = (r..rows).find(|&i| m.a[i * cols + col] != 0) else {
+            continue;
+        };
+        if p != r {
+            for j in 0..cols {
+                m.a.swap(r * cols + j, p * cols + j);
+            }
+        }
+        for i in 0..rows {
+            if i == r || m.a[i * cols + col] == 0 {
                 continue;
             }
-            let (a, b) = (m[r][col], m[i][col]);
-            let g = gcd_i128(a, b);
-            let (fa, fb) = (a / g, b / g);
+            let (pa, pb) = (m.a[r * cols + col], m.a[i * cols + col]);
+            let g = gcd_i128(pa, pb);
+            let (fa, fb) = (pa / g, pb / g);
+            let (pivot_row, row) = if i < r {
+                let (lo, hi) = m.a.split_at_mut(r * cols);
+                (&hi[..cols], &mut lo[i * cols..(i + 1) * cols])
+            } else {
+                let (lo, hi) = m.a.split_at_mut(i * cols);
+                (&lo[r * cols..(r + 1) * cols], &mut hi[..cols])
+            };
             let mut row_gcd = 0;
-            for j in 0..ncols {
-                let v = m[i][j].checked_mul(fa).ok_or_else(ov)?.checked_sub(m[r][j].checked_mul(fb).ok_or_else(ov)?).ok_or_else(ov)?;
-                m[i][j] = v;
+            for (x, &pv) in row.iter_mut().zip(pivot_row) {
+                let v = x
+                    .checked_mul(fa)
+                    .ok_or_else(ov)?
+                    .checked_sub(pv.checked_mul(fb).ok_or_else(ov)?)
+                    .ok_or_else(ov)?;
+                *x = v;
                 row_gcd = gcd_i128(row_gcd, v);
             }
             if row_gcd > 1 {
-                m[i].iter_mut().for_each(|v| *v /= row_gcd);
+                row.iter_mut().for_each(|v| *v /= row_gcd);
             }
         }
         pivots.push(col);
         r += 1;
-        if r == m.len() {
+        if r == rows {
             break;
         }
     }
-    m.truncate(r);
     Ok(pivots)
 }
 
-/// Integer null-space basis vector for the free column `free`, reduced to coprime entries.
-fn null_vector(m: &[Vec<i128>], pivots: &[usize], free: &[usize], which: usize, ncols: usize) -> Result<Vec<i128>, BalanceError> {
+/// Integer null-space basis vector for the free column `free[which]`, reduced to coprime entries.
+fn null_vector(m: &Matrix, pivots: &[usize], free: &[usize], which: usize) -> Result<Vec<i128>, BalanceError> {
     let ov = || BalanceError::Overflow;
     let f = free[which];
     let mut l: i128 = 1;
-    for (i, _) in pivots.iter().enumerate() {
-        let p = m[i][pivots[i]].abs();
+    for (i, &pc) in pivots.iter().enumerate() {
+        let p = m.row(i)[pc].abs();
         l = (l / gcd_i128(l, p)).checked_mul(p).ok_or_else(ov)?;
     }
-    let mut x = vec![0i128; ncols];
+    let mut x = vec![0i128; m.cols];
     x[f] = l;
     for (i, &pc) in pivots.iter().enumerate() {
-        x[pc] = (-m[i][f]).checked_mul(l / m[i][pc]).ok_or_else(ov)?;
+        let row = m.row(i);
+        x[pc] = (-row[f]).checked_mul(l / row[pc]).ok_or_else(ov)?;
     }
     let g = x.iter().fold(0, |g, &v| gcd_i128(g, v));
     if g > 1 {
@@ -200,7 +262,13 @@ fn write_reaction(columns: &[Column], x: &[i128]) -> String {
             .iter()
             .zip(x)
             .filter(|(_, &v)| v != 0 && (v > 0) == positive)
-            .map(|(c, &v)| if v.abs() == 1 { c.label.to_string() } else { format!("{} {}", v.abs(), c.label) })
+            .map(|(c, &v)| {
+                if v.abs() == 1 {
+                    c.label.to_string()
+                } else {
+                    format!("{} {}", v.abs(), c.label)
+                }
+            })
             .collect();
         parts.join(" + ")
     };
@@ -212,24 +280,30 @@ fn write_reaction(columns: &[Column], x: &[i128]) -> String {
 /// # Errors
 /// `Impossible`, `Underdetermined` or `Overflow` as described on [`BalanceError`].
 pub fn balance(columns: &[Column]) -> Result<Balance, BalanceError> {
-    let ones = vec![Rational::ONE; columns.len()];
-    if residual(columns, &ones)?.is_empty() {
-        return Ok(Balance { outcome: Outcome::AlreadyBalanced, coefficients: ones });
+    let mut m = Matrix::new(columns);
+    if m.balanced_with_ones() {
+        return Ok(Balance {
+            outcome: Outcome::AlreadyBalanced,
+            coefficients: vec![Rational::ONE; columns.len()],
+        });
     }
-    let (mut m, _) = matrix(columns);
     let n = columns.len();
-    let pivots = row_reduce(&mut m, n)?;
+    let pivots = row_reduce(&mut m)?;
     let free: Vec<usize> = (0..n).filter(|c| !pivots.contains(c)).collect();
     match free.len() {
-        0 => Err(BalanceError::Impossible { reason: "no coefficients conserve every element and the charge".into() }),
+        0 => Err(BalanceError::Impossible {
+            reason: "no coefficients conserve every element and the charge".into(),
+        }),
         1 => {
-            let mut x = null_vector(&m, &pivots, &free, 0, n)?;
+            let mut x = null_vector(&m, &pivots, &free, 0)?;
             if x.iter().all(|&v| v <= 0) {
                 x.iter_mut().for_each(|v| *v = -*v);
             }
             let zero: Vec<&str> = columns.iter().zip(&x).filter(|(_, &v)| v == 0).map(|(c, _)| c.label).collect();
             if !zero.is_empty() {
-                return Err(BalanceError::Impossible { reason: format!("{} cannot take part (its coefficient would be 0)", zero.join(", ")) });
+                return Err(BalanceError::Impossible {
+                    reason: format!("{} cannot take part (its coefficient would be 0)", zero.join(", ")),
+                });
             }
             let wrong: Vec<&str> = columns.iter().zip(&x).filter(|(_, &v)| v < 0).map(|(c, _)| c.label).collect();
             if !wrong.is_empty() {
@@ -237,12 +311,15 @@ pub fn balance(columns: &[Column]) -> Result<Balance, BalanceError> {
                     reason: format!("{} would have to be on the other side of the arrow", wrong.join(", ")),
                 });
             }
-            Ok(Balance { outcome: Outcome::Balanced, coefficients: x.into_iter().map(Rational::integer).collect() })
+            Ok(Balance {
+                outcome: Outcome::Balanced,
+                coefficients: x.into_iter().map(Rational::integer).collect(),
+            })
         }
         k => {
             let mut basis = Vec::with_capacity(k);
             for i in 0..k {
-                let x = null_vector(&m, &pivots, &free, i, n)?;
+                let x = null_vector(&m, &pivots, &free, i)?;
                 basis.push(write_reaction(columns, &x));
             }
             Err(BalanceError::Underdetermined { basis })
@@ -271,7 +348,13 @@ mod tests {
 
     fn run(reactants: &[&str], products: &[&str]) -> Result<Balance, BalanceError> {
         let (l, f, s) = cols(reactants, products);
-        let c: Vec<Column> = (0..l.len()).map(|i| Column { label: &l[i], formula: &f[i], side: s[i] }).collect();
+        let c: Vec<Column> = (0..l.len())
+            .map(|i| Column {
+                label: &l[i],
+                formula: &f[i],
+                side: s[i],
+            })
+            .collect();
         balance(&c)
     }
 
@@ -283,9 +366,15 @@ mod tests {
     fn classic_equations() {
         assert_eq!(ints(&run(&["Al", "Fe2O3"], &["Al2O3", "Fe"]).unwrap()), [2, 1, 1, 2]);
         assert_eq!(ints(&run(&["C3H8", "O2"], &["CO2", "H2O"]).unwrap()), [1, 5, 3, 4]);
-        assert_eq!(ints(&run(&["KMnO4", "HCl"], &["KCl", "MnCl2", "H2O", "Cl2"]).unwrap()), [2, 16, 2, 2, 8, 5]);
+        assert_eq!(
+            ints(&run(&["KMnO4", "HCl"], &["KCl", "MnCl2", "H2O", "Cl2"]).unwrap()),
+            [2, 16, 2, 2, 8, 5]
+        );
         // Charge row: MnO4- + Fe+2 + H+ -> Mn+2 + Fe+3 + H2O
-        assert_eq!(ints(&run(&["MnO4-", "Fe+2", "H+"], &["Mn+2", "Fe+3", "H2O"]).unwrap()), [1, 5, 8, 1, 5, 4]);
+        assert_eq!(
+            ints(&run(&["MnO4-", "Fe+2", "H+"], &["Mn+2", "Fe+3", "H2O"]).unwrap()),
+            [1, 5, 8, 1, 5, 4]
+        );
         assert_eq!(ints(&run(&["Fe+3", "e-"], &["Fe+2"]).unwrap()), [1, 1, 1]);
         assert_eq!(run(&["CO", "H2O"], &["CO2", "H2"]).unwrap().outcome, Outcome::AlreadyBalanced);
     }
@@ -302,11 +391,22 @@ mod tests {
     #[test]
     fn written_coefficients_are_checked_not_changed() {
         let (l, f, s) = cols(&["H2", "O2"], &["H2O"]);
-        let c: Vec<Column> = (0..3).map(|i| Column { label: &l[i], formula: &f[i], side: s[i] }).collect();
+        let c: Vec<Column> = (0..3)
+            .map(|i| Column {
+                label: &l[i],
+                formula: &f[i],
+                side: s[i],
+            })
+            .collect();
         let ok = check(&c, &[Rational::integer(2), Rational::ONE, Rational::integer(2)]).unwrap();
         assert_eq!(ok.outcome, Outcome::AlreadyBalanced);
         let e = check(&c, &[Rational::ONE, Rational::ONE, Rational::ONE]).unwrap_err();
-        assert_eq!(e, BalanceError::NotBalanced { residual: vec![("O".into(), Rational::integer(-1))] });
+        assert_eq!(
+            e,
+            BalanceError::NotBalanced {
+                residual: vec![("O".into(), Rational::integer(-1))]
+            }
+        );
         assert!(e.to_string().contains("O: 1 more on the reactant side"), "{e}");
     }
 }

@@ -127,7 +127,15 @@ mod tests {
     fn conventional_weights_match_iupac() {
         // IUPAC/CIAAW standard atomic weights 2021, abridged/conventional values
         // (Prohaska et al., Pure Appl. Chem. 94 (2022) 573, Table 2).
-        let cases = [("H", 1.008), ("C", 12.011), ("N", 14.007), ("O", 15.999), ("S", 32.06), ("Cl", 35.45), ("Fe", 55.845)];
+        let cases = [
+            ("H", 1.008),
+            ("C", 12.011),
+            ("N", 14.007),
+            ("O", 15.999),
+            ("S", 32.06),
+            ("Cl", 35.45),
+            ("Fe", 55.845),
+        ];
         for (s, w) in cases {
             let z = by_symbol(s.as_bytes()).unwrap();
             assert!((element(z).atomic_weight - w).abs() < 1e-3, "{s}: {}", element(z).atomic_weight);

@@ -66,10 +66,19 @@ fn find_arrow(s: &str) -> Result<(usize, usize, Arrow), SyntaxError> {
     let b = s.as_bytes();
     let mut i = 0;
     while i < b.len() {
+        // Every arrow starts with one of these bytes (0xE2 leads → and ⇌ in UTF-8).
+        if !matches!(b[i], b'-' | b'=' | b'<' | 0xE2) {
+            i += 1;
+            continue;
+        }
         let hit = ARROWS.iter().find(|(a, _)| s[i..].starts_with(a));
         if let Some(&(a, kind)) = hit {
             if found.is_some() {
-                return Err(SyntaxError::Unexpected { position: i, expected: "only one arrow", found: format!("a second arrow '{a}'") });
+                return Err(SyntaxError::Unexpected {
+                    position: i,
+                    expected: "only one arrow",
+                    found: format!("a second arrow '{a}'"),
+                });
             }
             found = Some((i, a.len(), kind));
             i += a.len();
@@ -77,13 +86,16 @@ fn find_arrow(s: &str) -> Result<(usize, usize, Arrow), SyntaxError> {
             i += s[i..].chars().next().map_or(1, char::len_utf8);
         }
     }
-    found.ok_or(SyntaxError::Unexpected { position: s.len(), expected: "an arrow: ->, =>, = or <=>", found: "end of input".into() })
+    found.ok_or(SyntaxError::Unexpected {
+        position: s.len(),
+        expected: "an arrow: ->, =>, = or <=>",
+        found: "end of input".into(),
+    })
 }
 
-/// Split one side into `(offset, text)` terms.
-fn split_terms(s: &str, base: usize) -> Vec<(usize, &str)> {
+/// Call `each(offset, text)` for every term of one side.
+fn split_terms<'a>(s: &'a str, base: usize, mut each: impl FnMut(usize, &'a str) -> Result<(), SyntaxError>) -> Result<(), SyntaxError> {
     let b = s.as_bytes();
-    let mut out = Vec::new();
     let mut start = 0;
     for i in 0..b.len() {
         if b[i] != b'+' {
@@ -95,12 +107,11 @@ fn split_terms(s: &str, base: usize) -> Vec<(usize, &str)> {
         // `^+` and `^2+` are always charges.
         let in_caret = i > 0 && (b[i - 1] == b'^' || (b[i - 1].is_ascii_digit() && s[..i].contains('^')));
         if (before_space || glued_separator) && !in_caret {
-            out.push((base + start, &s[start..i]));
+            each(base + start, &s[start..i])?;
             start = i + 1;
         }
     }
-    out.push((base + start, &s[start..]));
-    out
+    each(base + start, &s[start..])
 }
 
 fn parse_coefficient(t: &str, base: usize) -> Result<(Option<Rational>, usize), SyntaxError> {
@@ -117,7 +128,11 @@ fn parse_coefficient(t: &str, base: usize) -> Result<(Option<Rational>, usize), 
     if whole.is_empty() {
         return Ok((None, 0));
     }
-    let limit = |pos: usize| SyntaxError::Limit { position: base + pos, what: "coefficient", limit: MAX_COEFFICIENT as u64 };
+    let limit = |pos: usize| SyntaxError::Limit {
+        position: base + pos,
+        what: "coefficient",
+        limit: MAX_COEFFICIENT as u64,
+    };
     let parse_int = |r: std::ops::Range<usize>| -> Result<i128, SyntaxError> {
         let v = &t[r.clone()];
         if v.len() > 7 {
@@ -135,7 +150,11 @@ fn parse_coefficient(t: &str, base: usize) -> Result<(Option<Rational>, usize), 
         i += 1;
         let frac = digits(&mut i);
         if frac.len() > MAX_DECIMALS {
-            return Err(SyntaxError::Limit { position: base + frac.start, what: "decimal places in a coefficient", limit: MAX_DECIMALS as u64 });
+            return Err(SyntaxError::Limit {
+                position: base + frac.start,
+                what: "decimal places in a coefficient",
+                limit: MAX_DECIMALS as u64,
+            });
         }
         let f: i128 = t[frac.clone()].parse().map_err(|_| limit(frac.start))?;
         den = 10i128.pow(frac.len() as u32);
@@ -144,12 +163,20 @@ fn parse_coefficient(t: &str, base: usize) -> Result<(Option<Rational>, usize), 
         i += 1;
         let d = digits(&mut i);
         if d.is_empty() {
-            return Err(SyntaxError::Unexpected { position: base + i, expected: "a denominator after '/'", found: found_at(t, i) });
+            return Err(SyntaxError::Unexpected {
+                position: base + i,
+                expected: "a denominator after '/'",
+                found: found_at(t, i),
+            });
         }
         den = parse_int(d)?;
     }
     if num == 0 || den == 0 {
-        return Err(SyntaxError::Unexpected { position: base, expected: "a positive coefficient", found: format!("'{}'", &t[..i]) });
+        return Err(SyntaxError::Unexpected {
+            position: base,
+            expected: "a positive coefficient",
+            found: format!("'{}'", &t[..i]),
+        });
     }
     let r = Rational::new(num, den).map_err(|_| limit(0))?;
     while i < b.len() && b[i].is_ascii_whitespace() {
@@ -231,23 +258,39 @@ fn split_reaction_smiles(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
 }
 
 fn split_side<'a>(s: &'a str, base: usize, side: &'static str, out: &mut Vec<RawTerm<'a>>) -> Result<(), SyntaxError> {
-    for (off, raw) in split_terms(s, base) {
+    split_terms(s, base, |off, raw| {
         let lead = raw.len() - raw.trim_start().len();
         let t = raw.trim();
         let at = off + lead;
         if t.is_empty() {
-            return Err(SyntaxError::Unexpected { position: at, expected: side, found: "nothing".into() });
+            return Err(SyntaxError::Unexpected {
+                position: at,
+                expected: side,
+                found: "nothing".into(),
+            });
         }
         let (coefficient, used) = parse_coefficient(t, at)?;
         if used == t.len() {
-            return Err(SyntaxError::Unexpected { position: at + used, expected: "a species after the coefficient", found: "nothing".into() });
+            return Err(SyntaxError::Unexpected {
+                position: at + used,
+                expected: "a species after the coefficient",
+                found: "nothing".into(),
+            });
         }
-        out.push(RawTerm { coefficient, text: &t[used..], position: at + used });
+        out.push(RawTerm {
+            coefficient,
+            text: &t[used..],
+            position: at + used,
+        });
         if out.len() > MAX_TERMS {
-            return Err(SyntaxError::Limit { position: at, what: "species terms per equation", limit: MAX_TERMS as u64 });
+            return Err(SyntaxError::Limit {
+                position: at,
+                what: "species terms per equation",
+                limit: MAX_TERMS as u64,
+            });
         }
-    }
-    Ok(())
+        Ok(())
+    })
 }
 
 /// Cut an equation into sides and terms, reading coefficients but not species.
@@ -256,20 +299,34 @@ fn split_side<'a>(s: &'a str, base: usize, side: &'static str, out: &mut Vec<Raw
 /// `SyntaxError` with the byte position and what was expected there.
 pub fn split_equation(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
     if s.len() > MAX_EQUATION_BYTES {
-        return Err(SyntaxError::Limit { position: 0, what: "equation length in bytes", limit: MAX_EQUATION_BYTES as u64 });
+        return Err(SyntaxError::Limit {
+            position: 0,
+            what: "equation length in bytes",
+            limit: MAX_EQUATION_BYTES as u64,
+        });
     }
     if is_reaction_smiles(s) {
         return split_reaction_smiles(s);
     }
     let (at, len, arrow) = find_arrow(s)?;
-    let mut reactants = Vec::new();
+    let mut reactants = Vec::with_capacity(4);
     split_side(&s[..at], 0, "a reactant", &mut reactants)?;
-    let mut products = Vec::new();
+    let mut products = Vec::with_capacity(4);
     split_side(&s[at + len..], at + len, "a product", &mut products)?;
     if reactants.len() + products.len() > MAX_TERMS {
-        return Err(SyntaxError::Limit { position: 0, what: "species terms per equation", limit: MAX_TERMS as u64 });
+        return Err(SyntaxError::Limit {
+            position: 0,
+            what: "species terms per equation",
+            limit: MAX_TERMS as u64,
+        });
     }
-    Ok(RawEquation { reactants, products, arrow, notation: Notation::Formula, agents: Vec::new() })
+    Ok(RawEquation {
+        reactants,
+        products,
+        arrow,
+        notation: Notation::Formula,
+        agents: Vec::new(),
+    })
 }
 
 /// Parse a whole equation, species included.
@@ -282,7 +339,11 @@ pub fn parse_equation(s: &str) -> Result<Equation, SyntaxError> {
         return Err(SyntaxError::Unexpected { position: 0, expected: "a formula equation (read reaction SMILES with split_equation and the structures module)", found: "a reaction SMILES".into() });
     }
     let term = |t: &RawTerm| -> Result<Term, SyntaxError> {
-        Ok(Term { coefficient: t.coefficient, species: parse_species(t.text, t.position)?, position: t.position })
+        Ok(Term {
+            coefficient: t.coefficient,
+            species: parse_species(t.text, t.position)?,
+            position: t.position,
+        })
     };
     Ok(Equation {
         reactants: raw.reactants.iter().map(term).collect::<Result<_, _>>()?,
@@ -329,7 +390,13 @@ mod tests {
         let e = parse_equation("H2 +  -> H2").unwrap_err();
         assert!(e.to_string().contains("expected a reactant"), "{e}");
         let e = parse_equation("2 H2 + O2 -> 2 H2Q").unwrap_err();
-        assert_eq!(e, SyntaxError::UnknownElement { position: 17, symbol: "Q".into() });
+        assert_eq!(
+            e,
+            SyntaxError::UnknownElement {
+                position: 17,
+                symbol: "Q".into()
+            }
+        );
         let e = parse_equation("CCO>>CC=O").unwrap_err();
         assert!(e.to_string().contains("SMILES"), "{e}");
     }
@@ -360,7 +427,13 @@ mod tests {
         let long = format!("{} -> H2", vec!["H2"; 3000].join(" + "));
         assert!(matches!(parse_equation(&long), Err(SyntaxError::Limit { .. })));
         let many = format!("{} -> H2", vec!["H2"; 41].join(" + "));
-        assert!(matches!(parse_equation(&many), Err(SyntaxError::Limit { what: "species terms per equation", .. })));
+        assert!(matches!(
+            parse_equation(&many),
+            Err(SyntaxError::Limit {
+                what: "species terms per equation",
+                ..
+            })
+        ));
         let e = parse_equation("0.0000001 H2 -> H2").unwrap_err();
         assert!(matches!(e, SyntaxError::Limit { .. }), "{e}");
     }

@@ -146,7 +146,11 @@ impl fmt::Display for SpeciesSpec {
 #[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
 pub enum SyntaxError {
     #[error("at byte {position}: expected {expected}, found {found}")]
-    Unexpected { position: usize, expected: &'static str, found: String },
+    Unexpected {
+        position: usize,
+        expected: &'static str,
+        found: String,
+    },
     #[error("at byte {position}: unknown element symbol '{symbol}'")]
     UnknownElement { position: usize, symbol: String },
     #[error("at byte {position}: {what} exceeds the limit of {limit}")]
@@ -175,10 +179,18 @@ impl<'a> Cursor<'a> {
         self.base + self.i
     }
     fn unexpected(&self, expected: &'static str) -> SyntaxError {
-        SyntaxError::Unexpected { position: self.pos(), expected, found: found_at(self.s, self.i) }
+        SyntaxError::Unexpected {
+            position: self.pos(),
+            expected,
+            found: found_at(self.s, self.i),
+        }
     }
     fn limit(&self, what: &'static str, limit: u64) -> SyntaxError {
-        SyntaxError::Limit { position: self.pos(), what, limit }
+        SyntaxError::Limit {
+            position: self.pos(),
+            what,
+            limit,
+        }
     }
     fn rest_starts_with(&self, t: &str) -> bool {
         self.s[self.i..].starts_with(t)
@@ -307,7 +319,9 @@ fn charge(cur: &mut Cursor) -> Result<i32, SyntaxError> {
             cur.i += 1;
             q = sign * cur.count("charge", MAX_CHARGE as u64)?.unwrap_or(1) as i64;
         } else {
-            let n = cur.count("charge", MAX_CHARGE as u64)?.ok_or_else(|| cur.unexpected("a charge such as ^2- or ^+"))?;
+            let n = cur
+                .count("charge", MAX_CHARGE as u64)?
+                .ok_or_else(|| cur.unexpected("a charge such as ^2- or ^+"))?;
             let sign = sign_of(cur.peek()).ok_or_else(|| cur.unexpected("'+' or '-' after the charge number"))?;
             cur.i += 1;
             q = sign * n as i64;
@@ -389,19 +403,39 @@ fn tags(cur: &mut Cursor, spec: &mut SpeciesSpec) -> Result<(), SyntaxError> {
 /// `SyntaxError` with the byte position and what was expected there.
 pub fn parse_species(s: &str, base: usize) -> Result<SpeciesSpec, SyntaxError> {
     if s.len() > MAX_SPECIES_BYTES {
-        return Err(SyntaxError::Limit { position: base, what: "species length in bytes", limit: MAX_SPECIES_BYTES as u64 });
+        return Err(SyntaxError::Limit {
+            position: base,
+            what: "species length in bytes",
+            limit: MAX_SPECIES_BYTES as u64,
+        });
     }
-    let mut cur = Cursor { s, b: s.as_bytes(), i: 0, base };
-    let mut spec = SpeciesSpec { text: String::new(), formula: None, phase: None, form: None };
+    let mut cur = Cursor {
+        s,
+        b: s.as_bytes(),
+        i: 0,
+        base,
+    };
+    let mut spec = SpeciesSpec {
+        text: String::new(),
+        formula: None,
+        phase: None,
+        form: None,
+    };
     match cur.peek() {
         None => return Err(cur.unexpected("a species")),
         Some(b'e') if matches!(&s[1..].split('(').next(), Some("-" | "^-")) => {
             cur.i = if s[1..].starts_with('^') { 3 } else { 2 };
             spec.text = "e".into();
-            spec.formula = Some(Formula { atoms: Vec::new(), charge: -1 });
+            spec.formula = Some(Formula {
+                atoms: Vec::new(),
+                charge: -1,
+            });
         }
         Some(c) if c.is_ascii_lowercase() => {
-            while cur.peek().is_some_and(|c| c.is_ascii_alphanumeric() || matches!(c, b'-' | b',' | b'\'' | b'_')) {
+            while cur
+                .peek()
+                .is_some_and(|c| c.is_ascii_alphanumeric() || matches!(c, b'-' | b',' | b'\'' | b'_'))
+            {
                 cur.i += 1;
             }
             spec.text = s[..cur.i].to_string();
@@ -491,9 +525,25 @@ mod tests {
     #[test]
     fn errors_name_position_and_expectation() {
         let e = parse_species("Fe2Xq3", 10).unwrap_err();
-        assert_eq!(e, SyntaxError::UnknownElement { position: 13, symbol: "Xq".into() });
+        assert_eq!(
+            e,
+            SyntaxError::UnknownElement {
+                position: 13,
+                symbol: "Xq".into()
+            }
+        );
         let e = parse_species("Ca3(PO4", 0).unwrap_err();
-        assert!(matches!(e, SyntaxError::Unexpected { position: 7, expected: "')'", .. }), "{e}");
+        assert!(
+            matches!(
+                e,
+                SyntaxError::Unexpected {
+                    position: 7,
+                    expected: "')'",
+                    ..
+                }
+            ),
+            "{e}"
+        );
         let e = parse_species("H2O(plasma)", 0).unwrap_err();
         assert!(matches!(e, SyntaxError::Unexpected { position: 4, .. }), "{e}");
         let e = parse_species("H0", 0).unwrap_err();
@@ -504,13 +554,25 @@ mod tests {
 
     #[test]
     fn limits_are_errors_not_panics() {
-        assert!(matches!(parse_species("C10001", 0), Err(SyntaxError::Limit { what: "subscript", .. })));
-        assert!(matches!(parse_species("(C100)200", 0), Err(SyntaxError::Limit { what: "atoms per species", .. })));
+        assert!(matches!(
+            parse_species("C10001", 0),
+            Err(SyntaxError::Limit { what: "subscript", .. })
+        ));
+        assert!(matches!(
+            parse_species("(C100)200", 0),
+            Err(SyntaxError::Limit {
+                what: "atoms per species",
+                ..
+            })
+        ));
         let deep = format!("{}H{}", "(".repeat(40), ")".repeat(40));
         assert!(matches!(parse_species(&deep, 0), Err(SyntaxError::Limit { .. })));
         let long = "H".repeat(MAX_SPECIES_BYTES + 1);
         assert!(matches!(parse_species(&long, 0), Err(SyntaxError::Limit { .. })));
         assert!(matches!(parse_species("Fe^99+", 0), Err(SyntaxError::Limit { what: "charge", .. })));
-        assert!(matches!(parse_species("(((H9999)9999)9999)9999", 0), Err(SyntaxError::Limit { .. })));
+        assert!(matches!(
+            parse_species("(((H9999)9999)9999)9999", 0),
+            Err(SyntaxError::Limit { .. })
+        ));
     }
 }

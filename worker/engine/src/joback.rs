@@ -26,8 +26,7 @@ use crate::smiles::Molecule;
 use crate::species::{Origin, Resolved, Segment, R, T_REF_K};
 
 /// The method, as results name it.
-pub const METHOD: &str =
-    "Joback & Reid (1987) group contributions (Poling et al., 5th ed., Table 2-2)";
+pub const METHOD: &str = "Joback & Reid (1987) group contributions (Poling et al., 5th ed., Table 2-2)";
 
 /// Range of the Joback ideal-gas Cp polynomial (fitted 298–1000 K), K.
 pub const CP_RANGE_K: (f64, f64) = (T_REF_K, 1000.0);
@@ -513,15 +512,10 @@ pub static GROUPS: [Group; 41] = [
 /// Why a structure has no Joback estimate.
 #[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
 pub enum JobackError {
-    #[error(
-        "no Joback group for {what} (atom at byte {position}); supply values for this species"
-    )]
+    #[error("no Joback group for {what} (atom at byte {position}); supply values for this species")]
     NoGroup { what: String, position: usize },
     #[error("Joback's table has no {property} contribution for group {group}")]
-    MissingContribution {
-        property: &'static str,
-        group: &'static str,
-    },
+    MissingContribution { property: &'static str, group: &'static str },
     #[error("Joback estimates are for neutral closed-shell molecules; {0}")]
     NotAMolecule(String),
     #[error("no {0} estimate: {1}")]
@@ -603,8 +597,7 @@ pub fn base_sigma_kj_per_mol() -> f64 {
 
 /// (neighbour, Kekulé order) of atom i.
 fn kbonds(m: &Molecule, i: usize) -> impl Iterator<Item = (usize, u8)> + '_ {
-    m.neighbours(i)
-        .map(move |(n, b)| (n, m.bonds[b].kekule_order))
+    m.neighbours(i).map(move |(n, b)| (n, m.bonds[b].kekule_order))
 }
 
 struct Assign<'m> {
@@ -650,10 +643,7 @@ impl Assign<'_> {
         for i in 0..m.atoms.len() {
             let a = &m.atoms[i];
             if a.element == 7 && a.charge >= 0 {
-                let o: Vec<usize> = kbonds(self.m, i)
-                    .filter(|&(n, _)| m.atoms[n].element == 8)
-                    .map(|x| x.0)
-                    .collect();
+                let o: Vec<usize> = kbonds(self.m, i).filter(|&(n, _)| m.atoms[n].element == 8).map(|x| x.0).collect();
                 let terminal = o.iter().filter(|&&n| self.is_terminal_o(n)).count();
                 if o.len() >= 2 && terminal >= 2 && a.hydrogens == 0 {
                     if o.len() > 2 {
@@ -672,9 +662,9 @@ impl Assign<'_> {
             if a.element != 6 || self.claimed[i] {
                 continue;
             }
-            if let Some((n, _)) = kbonds(self.m, i).find(|&(n, o)| {
-                o == 3 && m.atoms[n].element == 7 && m.degree(n) == 1 && m.atoms[n].charge == 0
-            }) {
+            if let Some((n, _)) =
+                kbonds(self.m, i).find(|&(n, o)| o == 3 && m.atoms[n].element == 7 && m.degree(n) == 1 && m.atoms[n].charge == 0)
+            {
                 if self.connections(i) == 2 {
                     self.add(g::CN);
                     self.claimed[i] = true;
@@ -685,41 +675,26 @@ impl Assign<'_> {
             if self.connections(i) != 3 {
                 continue;
             }
-            let Some((o_dbl, _)) = kbonds(self.m, i)
-                .find(|&(n, o)| o == 2 && self.is_terminal_o(n) && m.atoms[n].charge == 0)
-            else {
+            let Some((o_dbl, _)) = kbonds(self.m, i).find(|&(n, o)| o == 2 && self.is_terminal_o(n) && m.atoms[n].charge == 0) else {
                 continue;
             };
             let single_o: Vec<usize> = kbonds(self.m, i)
                 .filter(|&(n, o)| o == 1 && m.atoms[n].element == 8 && m.atoms[n].charge == 0)
                 .map(|x| x.0)
                 .collect();
-            let hydroxyl = single_o
-                .iter()
-                .copied()
-                .find(|&n| m.atoms[n].hydrogens == 1 && m.degree(n) == 1);
-            let ether = single_o
-                .iter()
-                .copied()
-                .find(|&n| m.atoms[n].hydrogens == 0 && m.degree(n) == 2);
+            let hydroxyl = single_o.iter().copied().find(|&n| m.atoms[n].hydrogens == 1 && m.degree(n) == 1);
+            let ether = single_o.iter().copied().find(|&n| m.atoms[n].hydrogens == 0 && m.degree(n) == 2);
             self.claimed[i] = true;
             self.claimed[o_dbl] = true;
             if single_o.len() >= 2 {
-                return Err(self.no_group(
-                    i,
-                    "a carbonate or orthoester-type carbon (C(=O) with two more oxygens)",
-                ));
+                return Err(self.no_group(i, "a carbonate or orthoester-type carbon (C(=O) with two more oxygens)"));
             }
             if let Some(oh) = hydroxyl {
                 self.add(g::COOH);
                 self.claimed[oh] = true;
             } else if let (Some(o), 0) = (ether, a.hydrogens) {
                 if self.claimed[o] {
-                    self.weak(
-                        "approximation",
-                        "an anhydride: its second C=O is taken as a ketone group",
-                        40.0,
-                    );
+                    self.weak("approximation", "an anhydride: its second C=O is taken as a ketone group", 40.0);
                     self.add(if a.in_ring { g::R_CO } else { g::CO });
                 } else {
                     self.add(g::COO);
@@ -727,11 +702,7 @@ impl Assign<'_> {
                 }
             } else if a.hydrogens == 1 {
                 if ether.is_some() {
-                    self.weak(
-                        "approximation",
-                        "a formate ester: taken as O=CH- plus -O-",
-                        40.0,
-                    );
+                    self.weak("approximation", "a formate ester: taken as O=CH- plus -O-", 40.0);
                 }
                 self.add(g::CHO);
             } else if a.hydrogens == 2 {
@@ -798,11 +769,7 @@ impl Assign<'_> {
                     }
                 }
                 (0, 0, 4, 4) => return Err(self.no_group(i, "methane")),
-                _ => {
-                    return Err(
-                        self.no_group(i, "a carbon with an unusual valence (radical or carbene)")
-                    )
-                }
+                _ => return Err(self.no_group(i, "a carbon with an unusual valence (radical or carbene)")),
             },
             8 => match (doubles, x, h) {
                 (0, 2, 1) => {
@@ -843,12 +810,7 @@ impl Assign<'_> {
                     }
                 }
                 (0, 0, 3, 3) => return Err(self.no_group(i, "ammonia")),
-                _ => {
-                    return Err(self.no_group(
-                        i,
-                        "a nitrogen with this bonding (isonitrile, N-oxide or radical)",
-                    ))
-                }
+                _ => return Err(self.no_group(i, "a nitrogen with this bonding (isonitrile, N-oxide or radical)")),
             },
             16 => match (doubles + triples, x, h) {
                 (0, 2, 1) => g::SH,
@@ -860,11 +822,7 @@ impl Assign<'_> {
                     }
                 }
                 (0, 2, 2) => return Err(self.no_group(i, "hydrogen sulfide")),
-                _ => {
-                    return Err(
-                        self.no_group(i, "sulfur above valence 2 (sulfoxide, sulfone, thione)")
-                    )
-                }
+                _ => return Err(self.no_group(i, "sulfur above valence 2 (sulfoxide, sulfone, thione)")),
             },
             9 | 17 | 35 | 53 if x == 1 && m.degree(i) == 1 => match a.element {
                 9 => g::F,
@@ -872,9 +830,7 @@ impl Assign<'_> {
                 35 => g::BR,
                 _ => g::I,
             },
-            9 | 17 | 35 | 53 => {
-                return Err(self.no_group(i, "a halogen not bonded to one carbon-chain atom"))
-            }
+            9 | 17 | 35 | 53 => return Err(self.no_group(i, "a halogen not bonded to one carbon-chain atom")),
             _ => return Err(self.no_group(i, crate::elements::symbol(a.element))),
         };
         self.add(group);
@@ -889,25 +845,19 @@ impl Assign<'_> {
         let n = m.atoms.len();
         let is_halogen = |z: Z| matches!(z, 9 | 17 | 35 | 53);
         if m.heavy_atom_count() <= 3 {
-            self.weak(
-                "small",
-                "a very small molecule (3 heavy atoms or fewer)",
-                40.0,
-            );
+            self.weak("small", "a very small molecule (3 heavy atoms or fewer)", 40.0);
         }
         // Rings: strain is not in the ring groups (cyclopropane ≈ 115 kJ/mol), unsaturation in a
         // small ring still less; aliphatic rings are fitted loosely.
         for ring in m.rings(8) {
-            let double_inside = m.bonds.iter().any(|b| {
-                b.kekule_order >= 2
-                    && ring.binary_search(&b.a).is_ok()
-                    && ring.binary_search(&b.b).is_ok()
-            });
-            let triple_inside = m.bonds.iter().any(|b| {
-                b.kekule_order == 3
-                    && ring.binary_search(&b.a).is_ok()
-                    && ring.binary_search(&b.b).is_ok()
-            });
+            let double_inside = m
+                .bonds
+                .iter()
+                .any(|b| b.kekule_order >= 2 && ring.binary_search(&b.a).is_ok() && ring.binary_search(&b.b).is_ok());
+            let triple_inside = m
+                .bonds
+                .iter()
+                .any(|b| b.kekule_order == 3 && ring.binary_search(&b.a).is_ok() && ring.binary_search(&b.b).is_ok());
             let aromatic = ring.iter().all(|&i| m.atoms[i].aromatic);
             match (ring.len(), double_inside) {
                 (3, true) => self.weak("strain", "an unsaturated three-membered ring", 120.0),
@@ -931,11 +881,7 @@ impl Assign<'_> {
         }
         for i in 0..n {
             let a = &m.atoms[i];
-            let ring_bonds: Vec<usize> = m
-                .neighbours(i)
-                .filter(|&(_, b)| m.bonds[b].in_ring)
-                .map(|x| x.1)
-                .collect();
+            let ring_bonds: Vec<usize> = m.neighbours(i).filter(|&(_, b)| m.bonds[b].in_ring).map(|x| x.1).collect();
             if ring_bonds.len() >= 3 {
                 let smallest = ring_bonds
                     .iter()
@@ -950,27 +896,13 @@ impl Assign<'_> {
                 }
             }
             if a.element == 9 {
-                self.weak(
-                    "fluorine",
-                    "a fluorine (fluorocarbons are fitted poorly)",
-                    15.0,
-                );
+                self.weak("fluorine", "a fluorine (fluorocarbons are fitted poorly)", 15.0);
             }
-            let heavy_halogens = m
-                .neighbours(i)
-                .filter(|&(w, _)| matches!(m.atoms[w].element, 17 | 35 | 53))
-                .count();
-            let halogens = m
-                .neighbours(i)
-                .filter(|&(w, _)| is_halogen(m.atoms[w].element))
-                .count();
+            let heavy_halogens = m.neighbours(i).filter(|&(w, _)| matches!(m.atoms[w].element, 17 | 35 | 53)).count();
+            let halogens = m.neighbours(i).filter(|&(w, _)| is_halogen(m.atoms[w].element)).count();
             if a.element == 6 && halogens >= 2 && heavy_halogens >= 1 {
                 for _ in 1..halogens.min(heavy_halogens + 1) {
-                    self.weak(
-                        "polyhalogen",
-                        "one more Cl, Br or I on a carbon (no interaction terms)",
-                        20.0,
-                    );
+                    self.weak("polyhalogen", "one more Cl, Br or I on a carbon (no interaction terms)", 20.0);
                 }
             }
             let triple = m.neighbours(i).any(|(_, b)| m.bonds[b].kekule_order == 3);
@@ -983,10 +915,7 @@ impl Assign<'_> {
                                 m.bonds[b2].kekule_order == 3
                                     || (m.bonds[b2].kekule_order == 2
                                         && b2 != b
-                                        && m.neighbours(w)
-                                            .filter(|&(_, b3)| m.bonds[b3].kekule_order == 2)
-                                            .count()
-                                            == 2)
+                                        && m.neighbours(w).filter(|&(_, b3)| m.bonds[b3].kekule_order == 2).count() == 2)
                             }))
                 });
                 if odd_neighbour {
@@ -1004,17 +933,12 @@ impl Assign<'_> {
         // Carbonyl carbons next to each other or carrying a halogen.
         let carbonyl = |i: usize| {
             m.atoms[i].element == 6
-                && m.neighbours(i).any(|(w, b)| {
-                    m.bonds[b].kekule_order == 2 && m.atoms[w].element == 8 && m.degree(w) == 1
-                })
+                && m.neighbours(i)
+                    .any(|(w, b)| m.bonds[b].kekule_order == 2 && m.atoms[w].element == 8 && m.degree(w) == 1)
         };
         for b in &m.bonds {
             if carbonyl(b.a) && carbonyl(b.b) {
-                self.weak(
-                    "adjacent carbonyls",
-                    "two carbonyl groups bonded to each other",
-                    30.0,
-                );
+                self.weak("adjacent carbonyls", "two carbonyl groups bonded to each other", 30.0);
             }
         }
         for i in 0..n {
@@ -1050,21 +974,14 @@ impl Assign<'_> {
         .map(|&k| self.counts[k - 1] as usize)
         .sum();
         for _ in 1..polar {
-            self.weak(
-                "polar",
-                "one more polar group (no group-interaction terms)",
-                5.0,
-            );
+            self.weak("polar", "one more polar group (no group-interaction terms)", 5.0);
         }
         for k in [g::EQ_C_EQ, g::R_C, g::EQ_N, g::EQ_NH] {
             for _ in 0..self.counts[k - 1] {
                 let sigma = if k == g::EQ_C_EQ { 30.0 } else { 10.0 };
                 self.weak(
                     "rare group",
-                    format!(
-                        "group {} (few compounds behind its value)",
-                        GROUPS[k - 1].name
-                    ),
+                    format!("group {} (few compounds behind its value)", GROUPS[k - 1].name),
                     sigma,
                 );
             }
@@ -1081,14 +998,10 @@ impl Groups {
     /// `[N+](=O)[O-]` aside) and for several disconnected parts.
     pub fn assign(m: &Molecule) -> Result<Groups, JobackError> {
         if m.component_count() != 1 {
-            return Err(JobackError::NotAMolecule(
-                "this structure has several disconnected parts".into(),
-            ));
+            return Err(JobackError::NotAMolecule("this structure has several disconnected parts".into()));
         }
         if m.formula().charge != 0 {
-            return Err(JobackError::NotAMolecule(
-                "this structure has a net charge".into(),
-            ));
+            return Err(JobackError::NotAMolecule("this structure has a net charge".into()));
         }
         if m.atoms.iter().any(|a| a.isotope.is_some()) {
             return Err(JobackError::NotAMolecule(
@@ -1096,9 +1009,7 @@ impl Groups {
             ));
         }
         if m.atoms.iter().any(|a| a.element == 1) {
-            return Err(JobackError::NotAMolecule(
-                "hydrogen atoms not bonded to a heavy atom".into(),
-            ));
+            return Err(JobackError::NotAMolecule("hydrogen atoms not bonded to a heavy atom".into()));
         }
         let mut s = Assign {
             m,
@@ -1123,11 +1034,7 @@ impl Groups {
         })
     }
 
-    fn sum(
-        &self,
-        property: &'static str,
-        f: impl Fn(&Group) -> Option<f64>,
-    ) -> Result<f64, JobackError> {
+    fn sum(&self, property: &'static str, f: impl Fn(&Group) -> Option<f64>) -> Result<f64, JobackError> {
         let mut total = 0.0;
         for (k, &n) in self.counts.iter().enumerate() {
             if n > 0 {
@@ -1228,8 +1135,7 @@ pub fn lee_kesler_omega(tb_k: f64, tc_k: f64, pc_bar: f64) -> f64 {
     let tbr = tb_k / tc_k;
     let t6 = tbr.powi(6);
     let ln_p = (1.01325 / pc_bar).ln();
-    (ln_p - 5.92714 + 6.09648 / tbr + 1.28862 * tbr.ln() - 0.169347 * t6)
-        / (15.2518 - 15.6875 / tbr - 13.4721 * tbr.ln() + 0.43577 * t6)
+    (ln_p - 5.92714 + 6.09648 / tbr + 1.28862 * tbr.ln() - 0.169347 * t6) / (15.2518 - 15.6875 / tbr - 13.4721 * tbr.ln() + 0.43577 * t6)
 }
 
 /// Rowlinson–Bondi liquid heat capacity, J/(mol·K), from the ideal-gas value.
@@ -1282,21 +1188,11 @@ impl Estimate {
     ///
     /// # Errors
     /// [`JobackError::Unsupported`] for an element without a reference entropy.
-    pub fn s_gas_j_per_mol_k(
-        &self,
-        formula: &Formula,
-        element_entropy: &dyn Fn(Z) -> Option<f64>,
-    ) -> Result<f64, JobackError> {
+    pub fn s_gas_j_per_mol_k(&self, formula: &Formula, element_entropy: &dyn Fn(Z) -> Option<f64>) -> Result<f64, JobackError> {
         let mut s_el = 0.0;
         for &(z, n) in &formula.atoms {
             let s = element_entropy(z).ok_or_else(|| {
-                JobackError::Unsupported(
-                    "entropy",
-                    format!(
-                        "no reference-state entropy for {}",
-                        crate::elements::symbol(z)
-                    ),
-                )
+                JobackError::Unsupported("entropy", format!("no reference-state entropy for {}", crate::elements::symbol(z)))
             })?;
             s_el += n as f64 * s;
         }
@@ -1312,20 +1208,13 @@ impl Estimate {
             "liquid",
             "no critical temperature for these groups".into(),
         ))?;
-        Ok(watson_kj_per_mol(
-            self.dhvap_tb_kj_per_mol,
-            self.tb_k,
-            T_REF_K,
-            tc,
-        ))
+        Ok(watson_kj_per_mol(self.dhvap_tb_kj_per_mol, self.tb_k, T_REF_K, tc))
     }
 
     /// Vapour pressure at `t_k`, bar, from Clausius–Clapeyron integrated from (Tb, 1 atm) with
     /// ΔvapH(T) by Watson (Simpson's rule, 64 intervals).
     pub fn vapour_pressure_bar(&self, t_k: f64, tc_k: f64) -> f64 {
-        let f = |t: f64| {
-            watson_kj_per_mol(self.dhvap_tb_kj_per_mol, self.tb_k, t, tc_k) * 1000.0 / (R * t * t)
-        };
+        let f = |t: f64| watson_kj_per_mol(self.dhvap_tb_kj_per_mol, self.tb_k, t, tc_k) * 1000.0 / (R * t * t);
         let (a, b) = (t_k, self.tb_k);
         let n = 64;
         let h = (b - a) / n as f64;
@@ -1345,10 +1234,9 @@ impl Estimate {
             "liquid",
             "no critical temperature for these groups".into(),
         ))?;
-        let pc = self.pc_bar.ok_or(JobackError::Unsupported(
-            "liquid",
-            "no critical pressure for these groups".into(),
-        ))?;
+        let pc = self
+            .pc_bar
+            .ok_or(JobackError::Unsupported("liquid", "no critical pressure for these groups".into()))?;
         if !(tc > self.tb_k && tc > T_REF_K) {
             return Err(JobackError::Unsupported(
                 "liquid",
@@ -1388,12 +1276,12 @@ impl Estimate {
         let phase = match phase {
             Some(p) => p,
             None => {
-                let p = if self.tb_k > T_REF_K {
-                    Phase::Liquid
-                } else {
-                    Phase::Gas
-                };
-                notes.push(format!("{label_base}: no phase given; estimated Tb = {:.0} K makes it a {} at 298.15 K", self.tb_k, if p == Phase::Gas { "gas" } else { "liquid" }));
+                let p = if self.tb_k > T_REF_K { Phase::Liquid } else { Phase::Gas };
+                notes.push(format!(
+                    "{label_base}: no phase given; estimated Tb = {:.0} K makes it a {} at 298.15 K",
+                    self.tb_k,
+                    if p == Phase::Gas { "gas" } else { "liquid" }
+                ));
                 if p == Phase::Liquid && self.tm_k.is_some_and(|tm| tm > T_REF_K) {
                     notes.push(format!("{label_base}: estimated Tm = {:.0} K: probably a solid at 298.15 K; no solid estimate exists, so the (subcooled) liquid is used", self.tm_k.unwrap_or(0.0)));
                 }
@@ -1405,27 +1293,19 @@ impl Estimate {
         let origin = vec![Origin::Estimated {
             method: METHOD.to_string(),
         }];
-        let weak: Vec<&str> = self
-            .groups
-            .weak_spots
-            .iter()
-            .map(|w| w.what.as_str())
-            .collect();
+        let weak: Vec<&str> = self.groups.weak_spots.iter().map(|w| w.what.as_str()).collect();
         if !weak.is_empty() {
-            notes.push(format!(
-                "{label_base}: estimate widened for {}",
-                weak.join("; ")
-            ));
+            notes.push(format!("{label_base}: estimate widened for {}", weak.join("; ")));
         }
         match phase {
             Phase::Gas => {
-                let seg = cubic_cp_segment(
-                    CP_RANGE_K.0,
-                    CP_RANGE_K.1,
-                    self.cp,
-                    self.dhf_gas_kj_per_mol,
-                    s_gas,
-                );
+                let seg = cubic_cp_segment(CP_RANGE_K.0, CP_RANGE_K.1, self.cp, self.dhf_gas_kj_per_mol, s_gas);
+                // The estimated liquid, where it can be had, is the rival phase that shows where
+                // the gas condenses inside a grid.
+                let rivals = self
+                    .vaporization()
+                    .map(|v| vec![v.liquid_segment(self.dhf_gas_kj_per_mol, s_gas, self.cp_gas_j_per_mol_k(T_REF_K)).0])
+                    .unwrap_or_default();
                 Ok(Resolved {
                     label: format!("{label_base}(g)"),
                     formula: formula.clone(),
@@ -1434,18 +1314,18 @@ impl Estimate {
                     origin,
                     dhf_uncertainty_kj_per_mol: Some(sigma_gas),
                     notes,
+                    rivals,
                 })
             }
             Phase::Liquid => {
                 let v = self.vaporization()?;
                 if self.tb_k < T_REF_K {
-                    notes.push(format!("{label_base}: estimated Tb = {:.0} K is below 298.15 K: the liquid is hypothetical at 1 bar", self.tb_k));
+                    notes.push(format!(
+                        "{label_base}: estimated Tb = {:.0} K is below 298.15 K: the liquid is hypothetical at 1 bar",
+                        self.tb_k
+                    ));
                 }
-                let (seg, cp_l) = v.liquid_segment(
-                    self.dhf_gas_kj_per_mol,
-                    s_gas,
-                    self.cp_gas_j_per_mol_k(T_REF_K),
-                );
+                let (seg, cp_l) = v.liquid_segment(self.dhf_gas_kj_per_mol, s_gas, self.cp_gas_j_per_mol_k(T_REF_K));
                 notes.push(format!("{label_base}(l): liquid Cp held at the Rowlinson–Bondi value at 298.15 K ({cp_l:.0} J/mol/K); valid to the estimated Tb = {:.0} K", self.tb_k));
                 Ok(Resolved {
                     label: format!("{label_base}(l)"),
@@ -1453,21 +1333,22 @@ impl Estimate {
                     phase,
                     segments: vec![seg],
                     origin,
-                    dhf_uncertainty_kj_per_mol: Some(
-                        (sigma_gas * sigma_gas + DHVAP_SIGMA_KJ_PER_MOL * DHVAP_SIGMA_KJ_PER_MOL)
-                            .sqrt(),
-                    ),
+                    dhf_uncertainty_kj_per_mol: Some((sigma_gas * sigma_gas + DHVAP_SIGMA_KJ_PER_MOL * DHVAP_SIGMA_KJ_PER_MOL).sqrt()),
                     notes,
+                    rivals: vec![cubic_cp_segment(
+                        CP_RANGE_K.0,
+                        CP_RANGE_K.1,
+                        self.cp,
+                        self.dhf_gas_kj_per_mol,
+                        s_gas,
+                    )],
                 })
             }
             Phase::Solid => Err(JobackError::Unsupported(
                 "solid-phase",
                 "Joback gives no solid properties; supply values or ask for the liquid".into(),
             )),
-            Phase::Aqueous => Err(JobackError::Unsupported(
-                "aqueous",
-                "Joback gives no solution properties".into(),
-            )),
+            Phase::Aqueous => Err(JobackError::Unsupported("aqueous", "Joback gives no solution properties".into())),
         }
     }
 }
@@ -1487,12 +1368,7 @@ pub struct Vaporization {
 impl Vaporization {
     /// The liquid's segment from gas-phase ΔfH° (kJ/mol), S° and Cp at 298.15 K (J/(mol·K)), and
     /// the liquid Cp used (Rowlinson–Bondi at 298.15 K, held constant).
-    pub fn liquid_segment(
-        &self,
-        dhf_gas_kj_per_mol: f64,
-        s_gas_j_per_mol_k: f64,
-        cp_gas_298: f64,
-    ) -> (Segment, f64) {
+    pub fn liquid_segment(&self, dhf_gas_kj_per_mol: f64, s_gas_j_per_mol_k: f64, cp_gas_298: f64) -> (Segment, f64) {
         let cp_l = rowlinson_bondi(T_REF_K, self.tc_k, self.omega, cp_gas_298);
         let seg = Segment::constant_cp(
             self.t_min_k,
@@ -1506,13 +1382,7 @@ impl Vaporization {
 }
 
 /// A NASA 9 segment with Cp = a + bT + cT² + dT³ (J/(mol·K)) fixed to ΔfH° and S° at 298.15 K.
-pub fn cubic_cp_segment(
-    t_min_k: f64,
-    t_max_k: f64,
-    cp: [f64; 4],
-    dhf_kj_per_mol: f64,
-    s_j_per_mol_k: f64,
-) -> Segment {
+pub fn cubic_cp_segment(t_min_k: f64, t_max_k: f64, cp: [f64; 4], dhf_kj_per_mol: f64, s_j_per_mol_k: f64) -> Segment {
     let [a3, a4, a5, a6] = cp.map(|c| c / R);
     let t = T_REF_K;
     let h_rt_poly = a3 + a4 * t / 2.0 + a5 * t * t / 3.0 + a6 * t * t * t / 4.0;
@@ -1557,10 +1427,7 @@ mod tests {
         // .Hf, .Gf, .Hvap, .Cpig_coeffs): Tb 322.11 K, Tc 500.559 K, ΔfH° −217.83 kJ/mol,
         // ΔfG° −154.54 kJ/mol, ΔvapH(Tb) 29.018 kJ/mol, Cp(300 K) 75.32642 J/mol/K.
         let e = estimate("CC(=O)C");
-        assert_eq!(
-            e.groups.present().collect::<Vec<_>>(),
-            [("-CH3", 2), (">C=O (nonring)", 1)]
-        );
+        assert_eq!(e.groups.present().collect::<Vec<_>>(), [("-CH3", 2), (">C=O (nonring)", 1)]);
         assert!((e.tb_k - 322.11).abs() < 1e-9);
         assert!((e.tc_k.unwrap() - 500.559).abs() < 1e-3);
         assert!((e.dhf_gas_kj_per_mol + 217.83).abs() < 1e-9);
@@ -1583,29 +1450,17 @@ mod tests {
 
     #[test]
     fn group_assignment() {
-        assert_eq!(
-            groups("CCO"),
-            [("-CH3", 1), ("-CH2-", 1), ("-OH (alcohol)", 1)]
-        );
-        assert_eq!(
-            groups("c1ccccc1O"),
-            [("=CH- (ring)", 5), ("=C< (ring)", 1), ("-OH (phenol)", 1)]
-        );
+        assert_eq!(groups("CCO"), [("-CH3", 1), ("-CH2-", 1), ("-OH (alcohol)", 1)]);
+        assert_eq!(groups("c1ccccc1O"), [("=CH- (ring)", 5), ("=C< (ring)", 1), ("-OH (phenol)", 1)]);
         assert_eq!(groups("CC(=O)O"), [("-CH3", 1), ("-COOH (acid)", 1)]);
         assert_eq!(groups("CC(=O)OC"), [("-CH3", 2), ("-COO- (ester)", 1)]);
         assert_eq!(groups("CC=O"), [("-CH3", 1), ("O=CH- (aldehyde)", 1)]);
-        assert_eq!(
-            groups("O=C1CCCCC1"),
-            [("-CH2- (ring)", 5), (">C=O (ring)", 1)]
-        );
+        assert_eq!(groups("O=C1CCCCC1"), [("-CH2- (ring)", 5), (">C=O (ring)", 1)]);
         assert_eq!(groups("CC#N"), [("-CH3", 1), ("-CN", 1)]);
         assert_eq!(groups("C[N+](=O)[O-]"), [("-CH3", 1), ("-NO2", 1)]);
         assert_eq!(groups("CN(=O)=O"), [("-CH3", 1), ("-NO2", 1)]);
         assert_eq!(groups("c1ccncc1"), [("=CH- (ring)", 5), ("-N= (ring)", 1)]);
-        assert_eq!(
-            groups("c1cc[nH]c1"),
-            [("=CH- (ring)", 4), (">NH (ring)", 1)]
-        );
+        assert_eq!(groups("c1cc[nH]c1"), [("=CH- (ring)", 4), (">NH (ring)", 1)]);
         assert_eq!(groups("c1ccsc1"), [("=CH- (ring)", 4), ("-S- (ring)", 1)]);
         assert_eq!(groups("C1CCOC1"), [("-CH2- (ring)", 4), ("-O- (ring)", 1)]);
         assert_eq!(groups("CCS"), [("-CH3", 1), ("-CH2-", 1), ("-SH", 1)]);
@@ -1617,14 +1472,8 @@ mod tests {
         assert_eq!(groups("CC#C"), [("-CH3", 1), ("≡CH", 1), ("≡C-", 1)]);
         assert_eq!(groups("CC(C)=C"), [("-CH3", 2), ("=CH2", 1), ("=C<", 1)]);
         assert_eq!(groups("FC(F)(F)Cl"), [(">C<", 1), ("-F", 3), ("-Cl", 1)]);
-        assert_eq!(
-            groups("CC(=O)N"),
-            [("-CH3", 1), (">C=O (nonring)", 1), ("-NH2", 1)]
-        );
-        assert_eq!(
-            groups("CC(C)=NC"),
-            [("-CH3", 3), ("=C<", 1), ("-N= (nonring)", 1)]
-        );
+        assert_eq!(groups("CC(=O)N"), [("-CH3", 1), (">C=O (nonring)", 1), ("-NH2", 1)]);
+        assert_eq!(groups("CC(C)=NC"), [("-CH3", 3), ("=C<", 1), ("-N= (nonring)", 1)]);
         assert_eq!(groups("CC(C)=N"), [("-CH3", 2), ("=C<", 1), ("=NH", 1)]);
     }
 
@@ -1644,10 +1493,7 @@ mod tests {
             "COC(=O)OC",
             "Cl",
         ] {
-            assert!(
-                Estimate::of(&Molecule::parse(s, 0).unwrap()).is_err(),
-                "{s}"
-            );
+            assert!(Estimate::of(&Molecule::parse(s, 0).unwrap()).is_err(), "{s}");
         }
     }
 

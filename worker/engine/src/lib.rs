@@ -18,20 +18,26 @@
 //! - [`structures`]: SMILES species in equations: bundled structures and estimation.
 //! - [`thermo`]: temperature grids and reaction properties (ΔrH°, ΔrS°, ΔrG°, log10 K).
 //! - [`screen`]: one reaction end to end, with a species cache for batches.
+//! - [`process`]: one reaction at its process conditions: equilibrium, heat budget, criticality, gas.
+//! - [`routes`]: the steps of each route rolled up, and the routes of a batch ranked.
 
 pub mod balance;
 pub mod elements;
 pub mod equation;
 pub mod formula;
 pub mod joback;
+pub mod process;
 pub mod rational;
+pub mod routes;
 pub mod screen;
 pub mod smiles;
 pub mod species;
 pub mod structures;
 pub mod thermo;
 
-pub use screen::{Screened, ScreenError, Screener};
+pub use process::{evaluate as evaluate_process, CaseProcess, ProcessConditions, ProcessError};
+pub use routes::{roll_up, RouteStep, RouteSummary};
+pub use screen::{ScreenError, Screened, Screener};
 pub use thermo::TemperatureGrid;
 
 /// Engine version, written into every result.

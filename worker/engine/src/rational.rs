@@ -16,15 +16,27 @@ pub struct Rational {
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct Overflow;
 
-fn gcd(mut a: i128, mut b: i128) -> i128 {
-    a = a.abs();
-    b = b.abs();
-    while b != 0 {
-        let t = a % b;
-        a = b;
-        b = t;
+/// Binary (Stein) gcd: shifts and subtractions only, since 128-bit division is slow.
+fn gcd(a: i128, b: i128) -> i128 {
+    let (mut a, mut b) = (a.unsigned_abs(), b.unsigned_abs());
+    if a == 0 || b == 0 {
+        return (a | b) as i128;
     }
-    a
+    if a == 1 || b == 1 {
+        return 1;
+    }
+    let shift = (a | b).trailing_zeros();
+    a >>= a.trailing_zeros();
+    loop {
+        b >>= b.trailing_zeros();
+        if a > b {
+            std::mem::swap(&mut a, &mut b);
+        }
+        b -= a;
+        if b == 0 {
+            return (a << shift) as i128;
+        }
+    }
 }
 
 /// Greatest common divisor of two non-negative integers (0 when both are 0).
@@ -47,6 +59,9 @@ impl Rational {
     pub fn new(num: i128, den: i128) -> Result<Rational, Overflow> {
         if den == 0 {
             return Err(Overflow);
+        }
+        if den == 1 {
+            return Ok(Rational { num, den });
         }
         let g = gcd(num, den).max(1);
         let (mut n, mut d) = (num / g, den / g);
@@ -82,6 +97,12 @@ impl Rational {
     }
 
     pub fn checked_add(self, o: Rational) -> Result<Rational, Overflow> {
+        if self.den == 1 && o.den == 1 {
+            return Ok(Rational {
+                num: self.num.checked_add(o.num).ok_or(Overflow)?,
+                den: 1,
+            });
+        }
         let g = gcd(self.den, o.den).max(1);
         let l = (self.den / g).checked_mul(o.den).ok_or(Overflow)?;
         let a = self.num.checked_mul(l / self.den).ok_or(Overflow)?;
@@ -94,10 +115,19 @@ impl Rational {
     }
 
     pub fn checked_neg(self) -> Result<Rational, Overflow> {
-        Ok(Rational { num: self.num.checked_neg().ok_or(Overflow)?, den: self.den })
+        Ok(Rational {
+            num: self.num.checked_neg().ok_or(Overflow)?,
+            den: self.den,
+        })
     }
 
     pub fn checked_mul(self, o: Rational) -> Result<Rational, Overflow> {
+        if self.den == 1 && o.den == 1 {
+            return Ok(Rational {
+                num: self.num.checked_mul(o.num).ok_or(Overflow)?,
+                den: 1,
+            });
+        }
         // Cross-reduce first so intermediate products stay small.
         let g1 = gcd(self.num, o.den).max(1);
         let g2 = gcd(o.num, self.den).max(1);
@@ -153,6 +183,10 @@ mod tests {
         assert_eq!(a.checked_mul(b).unwrap(), Rational::new(1, 6).unwrap());
         assert_eq!(a.checked_div(b).unwrap(), Rational::new(3, 2).unwrap());
         assert_eq!(Rational::new(4, -8).unwrap().to_string(), "-1/2");
+        assert_eq!(Rational::new(-12, 18).unwrap(), Rational::new(-2, 3).unwrap());
+        assert_eq!(gcd(0, 0), 0);
+        assert_eq!(gcd(-48, 180), 12);
+        assert_eq!(gcd(17, 0), 17);
     }
 
     #[test]

@@ -11,15 +11,36 @@
 
 use crate::balance::{self, Balance, BalanceError, Column, Outcome, Side};
 use crate::equation::{split_equation, Arrow, Notation, RawTerm};
-use crate::formula::{parse_species, SpeciesSpec, SyntaxError};
-use crate::smiles::{Molecule, SmilesError};
+use crate::formula::{parse_species, SyntaxError};
+use crate::smiles::SmilesError;
 use crate::species::Origin;
 use crate::structures::{self, DefaultPhase, SmilesSpeciesError, Structures};
 use crate::rational::Rational;
-use crate::species::{from_supplied, Resolved, ResolveError, State, SuppliedSpecies, Table, T_REF_K};
-use crate::thermo::{self, ladder_k, TemperatureGrid, ThermoPoint};
+use crate::species::{from_supplied, ResolveError, Resolved, State, SuppliedSpecies, Table, T_REF_K};
+use crate::thermo::{self, TemperatureGrid, ThermoPoint, LADDER};
 use std::collections::HashMap;
+use std::hash::{BuildHasherDefault, Hasher};
 use std::sync::Arc;
+
+/// FNV-1a: species texts are short, and SipHash's DoS resistance buys nothing for a cache the
+/// caller fills from its own batch.
+#[derive(Default)]
+struct Fnv(u64);
+
+impl Hasher for Fnv {
+    fn write(&mut self, bytes: &[u8]) {
+        let mut h = if self.0 == 0 { 0xcbf2_9ce4_8422_2325 } else { self.0 };
+        for &b in bytes {
+            h = (h ^ b as u64).wrapping_mul(0x0100_0000_01b3);
+        }
+        self.0 = h;
+    }
+    fn finish(&self) -> u64 {
+        self.0
+    }
+}
+
+type SpeciesCache = HashMap<String, Result<Arc<Prepared>, ResolveError>, BuildHasherDefault<Fnv>>;
 
 /// Why one reaction could not be screened. Each error is about this case only.
 #[derive(Clone, Debug, PartialEq, thiserror::Error)]
@@ -40,8 +61,12 @@ pub struct Prepared {
     pub resolved: Resolved,
     at_ref: State,
     at_grid: Vec<State>,
-    /// States at [`ladder_k`] temperatures, for the ΔrG° = 0 search.
-    at_ladder: Vec<State>,
+    /// Gibbs energy (J/mol) at the [`LADDER`] temperatures, for the ΔrG° = 0 search.
+    g_ladder: [f64; LADDER.count],
+    /// Where the phase as written stops being stable at 1 bar (boiling, melting), if inside its data.
+    pub transition_k: Option<f64>,
+    /// A note for results when the grid reaches past `transition_k`.
+    grid_note: Option<String>,
 }
 
 /// One species of a screened reaction with its stoichiometric number (negative for reactants).
@@ -80,7 +105,7 @@ pub struct Screener<'t> {
     table: &'t Table,
     grid: TemperatureGrid,
     supplied: HashMap<String, SuppliedSpecies>,
-    cache: HashMap<String, Result<Arc<Prepared>, ResolveError>>,
+    cache: SpeciesCache,
     /// Phase of SMILES species (a SMILES carries none).
     default_phase: DefaultPhase,
     structures: &'static Structures,
@@ -94,7 +119,7 @@ impl<'t> Screener<'t> {
             table,
             grid,
             supplied: HashMap::new(),
-            cache: HashMap::new(),
+            cache: SpeciesCache::default(),
             default_phase: DefaultPhase::Standard,
             structures: structures::bundled(),
             by_structure: HashMap::new(),
@@ -132,9 +157,7 @@ impl<'t> Screener<'t> {
             return hit.clone().map_err(|error| ScreenError::Species { position, error });
         }
         let result = if let Some(v) = self.supplied.get(text) {
-            let m = Molecule::parse(text, position)?;
-            let spec = SpeciesSpec { text: text.to_string(), formula: Some(m.formula()), phase: Some(v.phase), form: None };
-            Ok(Arc::new(self.prepare(from_supplied(&spec, v))))
+            Ok(Arc::new(self.prepare(from_supplied(text, v))))
         } else {
             match structures::resolve_smiles(self.table, self.structures, text, position, self.default_phase) {
                 Ok(s) => {
@@ -165,8 +188,8 @@ impl<'t> Screener<'t> {
         self.table
     }
 
-    /// Values for one species that win over the bundled table. `key` is the species as written in
-    /// equations, e.g. `INT7(l)` (matched against the text with its phase tag).
+    /// Values for one species that win over the bundled table. `key` is the species exactly as
+    /// written in equations, phase tag included, e.g. `INT7(l)`; it need not be a formula.
     pub fn supply(&mut self, key: &str, values: SuppliedSpecies) {
         self.cache.clear();
         self.by_structure.clear();
@@ -175,19 +198,26 @@ impl<'t> Screener<'t> {
 
     fn prepare(&self, resolved: Resolved) -> Prepared {
         let eval = |t: f64| resolved.state(t, t.ln());
+        let (lo, hi) = resolved.range_k();
+        let transition_k = resolved.transition_k(lo.max(T_REF_K), hi);
+        let grid_max = self.grid.temperatures_k().iter().copied().fold(T_REF_K, f64::max);
+        let grid_note = transition_k.filter(|&t| t < grid_max).map(|t| {
+            format!(
+                "{} is not the stable phase above {t:.1} K at 1 bar (it boils or melts there): points above are flagged",
+                resolved.label
+            )
+        });
         Prepared {
+            transition_k,
+            grid_note,
             at_ref: eval(T_REF_K),
             at_grid: self.grid.temperatures_k().iter().map(|&t| eval(t)).collect(),
-            at_ladder: ladder_k().map(eval).collect(),
+            g_ladder: std::array::from_fn(|i| {
+                let t = LADDER.t(i);
+                eval(t).g_j_per_mol(t)
+            }),
             resolved,
         }
-    }
-
-    fn resolve_spec(&self, spec: &SpeciesSpec, written: &str) -> Result<Resolved, ResolveError> {
-        if let Some(v) = self.supplied.get(written).or_else(|| self.supplied.get(&spec.to_string())) {
-            return Ok(from_supplied(spec, v));
-        }
-        self.table.resolve(spec)
     }
 
     /// The species a written token resolves to, from the cache when seen before.
@@ -198,9 +228,13 @@ impl<'t> Screener<'t> {
         if let Some(hit) = self.cache.get(text) {
             return hit.clone().map_err(|error| ScreenError::Species { position, error });
         }
-        // Parse errors depend on the position, so they are not cached.
-        let spec = parse_species(text, position)?;
-        let result = self.resolve_spec(&spec, text).map(|r| Arc::new(self.prepare(r)));
+        // Supplied values are matched on the text as written, which need not be a formula.
+        let result = match self.supplied.get(text) {
+            Some(v) => Ok(from_supplied(text, v)),
+            // Parse errors depend on the position, so they are not cached.
+            None => self.table.resolve(&parse_species(text, position)?),
+        };
+        let result = result.map(|r| Arc::new(self.prepare(r)));
         self.cache.insert(text.to_string(), result.clone());
         result.map_err(|error| ScreenError::Species { position, error })
     }
@@ -225,11 +259,19 @@ impl<'t> Screener<'t> {
                     Notation::Smiles => self.smiles_species(t.text, t.position)?,
                 };
                 let c = t.coefficient.unwrap_or(Rational::ONE);
-                let c = if side == Side::Reactant { c.checked_neg().map_err(|_| BalanceError::Overflow)? } else { c };
+                let c = if side == Side::Reactant {
+                    c.checked_neg().map_err(|_| BalanceError::Overflow)?
+                } else {
+                    c
+                };
                 match distinct.iter_mut().find(|d| d.0.resolved.label == p.resolved.label) {
                     Some(d) => {
                         d.1 = d.1.checked_add(c).map_err(|_| BalanceError::Overflow)?;
-                        if side == Side::Reactant { d.2 = true } else { d.3 = true }
+                        if side == Side::Reactant {
+                            d.2 = true
+                        } else {
+                            d.3 = true
+                        }
                     }
                     None => distinct.push((p, c, side == Side::Reactant, side == Side::Product)),
                 }
@@ -247,16 +289,29 @@ impl<'t> Screener<'t> {
             distinct.retain(|d| !(d.2 && d.3));
         }
         if distinct.is_empty() {
-            return Err(BalanceError::Impossible { reason: "nothing is left once species on both sides cancel".into() }.into());
+            return Err(BalanceError::Impossible {
+                reason: "nothing is left once species on both sides cancel".into(),
+            }
+            .into());
         }
-        let sides: Vec<Side> = distinct.iter().map(|d| if d.1.signum() < 0 { Side::Reactant } else { Side::Product }).collect();
+        let sides: Vec<Side> = distinct
+            .iter()
+            .map(|d| if d.1.signum() < 0 { Side::Reactant } else { Side::Product })
+            .collect();
         let columns: Vec<Column> = distinct
             .iter()
             .zip(&sides)
-            .map(|(d, &side)| Column { label: &d.0.resolved.label, formula: &d.0.resolved.formula, side })
+            .map(|(d, &side)| Column {
+                label: &d.0.resolved.label,
+                formula: &d.0.resolved.formula,
+                side,
+            })
             .collect();
         let Balance { outcome, coefficients } = if written {
-            let abs: Vec<Rational> = distinct.iter().map(|d| if d.1.signum() < 0 { d.1.checked_neg().unwrap_or(d.1) } else { d.1 }).collect();
+            let abs: Vec<Rational> = distinct
+                .iter()
+                .map(|d| if d.1.signum() < 0 { d.1.checked_neg().unwrap_or(d.1) } else { d.1 })
+                .collect();
             balance::check(&columns, &abs)?
         } else {
             balance::balance(&columns)?
@@ -265,10 +320,14 @@ impl<'t> Screener<'t> {
             .into_iter()
             .zip(&sides)
             .zip(coefficients)
-            .map(|(((p, _, _, _), &side), c)| SpeciesTerm { species: p, nu: if side == Side::Reactant { c.checked_neg().unwrap_or(c) } else { c } })
+            .map(|(((p, _, _, _), &side), c)| SpeciesTerm {
+                species: p,
+                nu: if side == Side::Reactant { c.checked_neg().unwrap_or(c) } else { c },
+            })
             .collect();
         for s in &species {
             notes.extend(s.species.resolved.notes.iter().cloned());
+            notes.extend(s.species.grid_note.iter().cloned());
         }
         let agents: Vec<String> = raw.agents.iter().map(|t| t.text.to_string()).collect();
         if !agents.is_empty() {
@@ -283,7 +342,12 @@ impl<'t> Screener<'t> {
         let nus: Vec<f64> = species.iter().map(|s| s.nu.to_f64()).collect();
         let standard = thermo::point(T_REF_K, nus.iter().zip(&species).map(|(&n, s)| (n, &s.species.at_ref)));
         let points = (0..self.grid.temperatures_k().len())
-            .map(|i| thermo::point(self.grid.temperatures_k()[i], nus.iter().zip(&species).map(|(&n, s)| (n, &s.species.at_grid[i]))))
+            .map(|i| {
+                thermo::point(
+                    self.grid.temperatures_k()[i],
+                    nus.iter().zip(&species).map(|(&n, s)| (n, &s.species.at_grid[i])),
+                )
+            })
             .collect();
         let (mut lo, mut hi) = (f64::NEG_INFINITY, f64::INFINITY);
         for s in &species {
@@ -314,43 +378,98 @@ impl<'t> Screener<'t> {
         }
     }
 
+    /// Sample ΔrG° from the species' cached ladder values (50 K steps) and at 298.15 K, inside the
+    /// span all species' data cover, then refine the first sign change by direct evaluation.
     fn delta_g_zero(&self, species: &[SpeciesTerm], nus: &[f64], lo: f64, hi: f64) -> Option<f64> {
-        let dg_at = |states: &dyn Fn(&Prepared) -> State, t: f64| -> f64 {
-            nus.iter().zip(species).map(|(n, s)| n * states(&s.species).g_j_per_mol(t)).sum()
-        };
-        let refs: Vec<(f64, &Resolved)> = nus.iter().zip(species).map(|(&n, s)| (n, &s.species.resolved)).collect();
-        let direct = |t: f64| dg_at(&|p: &Prepared| p.resolved.state(t, t.ln()), t);
-        let mut samples = Vec::with_capacity(120);
-        samples.push((lo, direct(lo)));
-        for (i, t) in ladder_k().enumerate() {
-            if t > lo && t < hi {
-                samples.push((t, dg_at(&|p: &Prepared| p.at_ladder[i], t)));
+        let (first, last) = LADDER.indices_within(lo, hi)?;
+        // Species-major accumulation: one pass per species over contiguous values.
+        let mut acc = [0.0f64; LADDER.count];
+        for (n, s) in nus.iter().zip(species) {
+            for (a, g) in acc[first..=last].iter_mut().zip(&s.species.g_ladder[first..=last]) {
+                *a += n * g;
             }
         }
-        samples.push((hi, direct(hi)));
+        let g_ref: f64 = nus
+            .iter()
+            .zip(species)
+            .map(|(n, s)| n * s.species.at_ref.g_j_per_mol(T_REF_K))
+            .sum();
+        let with_ref = (lo..=hi).contains(&T_REF_K);
+        // Walk the samples in temperature order (298.15 K slotted in) to the first sign change.
+        let mut prev: Option<(f64, f64)> = None;
+        let mut bracket = None;
+        let mut ref_pending = with_ref;
+        for (i, &g) in acc.iter().enumerate().take(last + 1).skip(first) {
+            let t = LADDER.t(i);
+            let mut visit = |p: (f64, f64)| {
+                if bracket.is_none() {
+                    if let Some(q) = prev {
+                        if q.1 == 0.0 || q.1.signum() != p.1.signum() {
+                            bracket = Some([q, p]);
+                        }
+                    }
+                    prev = Some(p);
+                }
+            };
+            if ref_pending && t > T_REF_K {
+                visit((T_REF_K, g_ref));
+                ref_pending = false;
+            }
+            visit((t, g));
+        }
+        if ref_pending && bracket.is_none() {
+            if let Some(q) = prev {
+                if q.1 == 0.0 || q.1.signum() != g_ref.signum() {
+                    bracket = Some([q, (T_REF_K, g_ref)]);
+                }
+            }
+        }
+        let samples = bracket?;
+        let refs: Vec<(f64, &Resolved)> = nus.iter().zip(species).map(|(&n, s)| (n, &s.species.resolved)).collect();
         thermo::delta_g_zero_k(&refs, &samples)
     }
 }
 
 fn write_equation(species: &[SpeciesTerm], arrow: Arrow) -> String {
-    let side = |reactant: bool| -> String {
-        let parts: Vec<String> = species
-            .iter()
-            .filter(|s| (s.nu.signum() < 0) == reactant)
-            .map(|s| {
-                let c = if reactant { s.nu.checked_neg().unwrap_or(s.nu) } else { s.nu };
-                if c == Rational::ONE {
-                    s.species.resolved.label.clone()
-                } else {
-                    format!("{c} {}", s.species.resolved.label)
-                }
-            })
-            .collect();
-        parts.join(" + ")
-    };
-    let a = match arrow {
-        Arrow::Forward => "->",
-        Arrow::Equilibrium => "<=>",
-    };
-    format!("{} {a} {}", side(true), side(false))
+    use std::fmt::Write as _;
+    let mut out = String::with_capacity(64);
+    for reactant in [true, false] {
+        if !reactant {
+            out.push_str(match arrow {
+                Arrow::Forward => " -> ",
+                Arrow::Equilibrium => " <=> ",
+            });
+        }
+        let mut first = true;
+        for s in species.iter().filter(|s| (s.nu.signum() < 0) == reactant) {
+            if !first {
+                out.push_str(" + ");
+            }
+            first = false;
+            let c = if reactant { s.nu.checked_neg().unwrap_or(s.nu) } else { s.nu };
+            if c.is_integer() && c != Rational::ONE {
+                push_int(&mut out, c.numer());
+                out.push(' ');
+            } else if c != Rational::ONE {
+                let _ = write!(out, "{c} ");
+            }
+            out.push_str(&s.species.resolved.label);
+        }
+    }
+    out
+}
+
+/// Append a positive integer without going through `fmt` (this runs once per term per reaction).
+fn push_int(out: &mut String, mut n: i128) {
+    let mut buf = [0u8; 40];
+    let mut i = buf.len();
+    loop {
+        i -= 1;
+        buf[i] = b'0' + (n % 10) as u8;
+        n /= 10;
+        if n == 0 {
+            break;
+        }
+    }
+    out.push_str(std::str::from_utf8(&buf[i..]).unwrap_or("?"));
 }

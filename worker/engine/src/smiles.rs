@@ -234,12 +234,7 @@ impl Parser<'_> {
             b'o' => (b"O", true),
             b'p' => (b"P", true),
             b's' => (b"S", true),
-            b'*' => {
-                return err(
-                    self.pos(),
-                    "the wildcard atom '*' has no formula; write the element",
-                )
-            }
+            b'*' => return err(self.pos(), "the wildcard atom '*' has no formula; write the element"),
             _ => return Ok(None),
         };
         let len = if sym.len() == 2 { 2 } else { 1 };
@@ -270,10 +265,7 @@ impl Parser<'_> {
         };
         let sym_pos = self.pos();
         let rest = &self.s[self.i..];
-        let (element, aromatic, len) = if let Some(&(sym, z)) = AROMATIC_SYMBOLS
-            .iter()
-            .find(|(sym, _)| rest.starts_with(sym))
-        {
+        let (element, aromatic, len) = if let Some(&(sym, z)) = AROMATIC_SYMBOLS.iter().find(|(sym, _)| rest.starts_with(sym)) {
             (z, true, sym.len())
         } else if rest.first() == Some(&b's') {
             (16, true, 1)
@@ -282,23 +274,12 @@ impl Parser<'_> {
             let sym = if two { &rest[..2] } else { &rest[..1] };
             match elements::by_symbol(sym) {
                 Some(z) => (z, false, sym.len()),
-                None => {
-                    return err(
-                        sym_pos,
-                        format!("unknown element symbol '{}'", String::from_utf8_lossy(sym)),
-                    )
-                }
+                None => return err(sym_pos, format!("unknown element symbol '{}'", String::from_utf8_lossy(sym))),
             }
         } else if rest.first() == Some(&b'*') {
-            return err(
-                sym_pos,
-                "the wildcard atom '*' has no formula; write the element",
-            );
+            return err(sym_pos, "the wildcard atom '*' has no formula; write the element");
         } else {
-            return err(
-                sym_pos,
-                format!("expected an element symbol, found {}", self.found()),
-            );
+            return err(sym_pos, format!("expected an element symbol, found {}", self.found()));
         };
         self.i += len;
         // Chirality: @, @@, @TH1, @AL2, @SP3, @TB12, @OH30: accepted and ignored.
@@ -308,10 +289,7 @@ impl Parser<'_> {
                 self.i += 1;
             } else {
                 let r = &self.s[self.i..];
-                if ["TH", "AL", "SP", "TB", "OH"]
-                    .iter()
-                    .any(|p| r.starts_with(p.as_bytes()))
-                {
+                if ["TH", "AL", "SP", "TB", "OH"].iter().any(|p| r.starts_with(p.as_bytes())) {
                     self.i += 2;
                     if self.digits(2).is_none() {
                         return err(self.pos(), "a number after the chirality class");
@@ -338,10 +316,7 @@ impl Parser<'_> {
                 }
             }
             if charge.abs() > MAX_ATOM_CHARGE {
-                return err(
-                    self.pos(),
-                    format!("a charge of at most {MAX_ATOM_CHARGE} in size"),
-                );
+                return err(self.pos(), format!("a charge of at most {MAX_ATOM_CHARGE} in size"));
             }
         }
         let mut class = None;
@@ -355,10 +330,7 @@ impl Parser<'_> {
         if self.s.get(self.i) != Some(&b']') {
             return err(
                 self.pos(),
-                format!(
-                    "expected ']' to close the atom opened at byte {open}, found {}",
-                    self.found()
-                ),
+                format!("expected ']' to close the atom opened at byte {open}, found {}", self.found()),
             );
         }
         self.i += 1;
@@ -377,21 +349,11 @@ impl Parser<'_> {
         self.push_atom(atom)
     }
 
-    fn add_bond(
-        &mut self,
-        a: usize,
-        b: usize,
-        written: Option<BondOrder>,
-        position: usize,
-    ) -> Result<(), SmilesError> {
+    fn add_bond(&mut self, a: usize, b: usize, written: Option<BondOrder>, position: usize) -> Result<(), SmilesError> {
         if a == b {
             return err(position, "a ring closure back to the same atom");
         }
-        if self
-            .bonds
-            .iter()
-            .any(|x| (x.a == a && x.b == b) || (x.a == b && x.b == a))
-        {
+        if self.bonds.iter().any(|x| (x.a == a && x.b == b) || (x.a == b && x.b == a)) {
             return err(position, "a second bond between the same two atoms");
         }
         let order = written.unwrap_or(if self.atoms[a].aromatic && self.atoms[b].aromatic {
@@ -492,12 +454,7 @@ impl Parser<'_> {
                         Some(open) => {
                             let order = match (open.bond, written.map(|b| b.0)) {
                                 (Some(a), Some(b)) if a != b => {
-                                    return err(
-                                        at,
-                                        format!(
-                                            "ring bond {n} is written with two different orders"
-                                        ),
-                                    )
+                                    return err(at, format!("ring bond {n} is written with two different orders"))
                                 }
                                 (a, b) => a.or(b),
                             };
@@ -511,7 +468,15 @@ impl Parser<'_> {
                     } else {
                         match self.organic_atom()? {
                             Some(k) => k,
-                            None => return err(at, format!("'{}' is not an organic-subset atom; write it in brackets, e.g. [{}]", c as char, c as char)),
+                            None => {
+                                return err(
+                                    at,
+                                    format!(
+                                        "'{}' is not an organic-subset atom; write it in brackets, e.g. [{}]",
+                                        c as char, c as char
+                                    ),
+                                )
+                            }
                         }
                     };
                     if let Some(p) = prev {
@@ -615,10 +580,7 @@ impl Molecule {
 
     /// Sum of bond orders with aromatic bonds counted as 1, plus bracket hydrogens.
     fn sigma(&self, i: usize) -> i32 {
-        let bonds: i32 = self
-            .neighbours(i)
-            .map(|(_, b)| self.bonds[b].order.written() as i32)
-            .sum();
+        let bonds: i32 = self.neighbours(i).map(|(_, b)| self.bonds[b].order.written() as i32).sum();
         bonds + self.atoms[i].hydrogens as i32
     }
 
@@ -636,9 +598,7 @@ impl Molecule {
             return Ok(());
         }
         let n = self.atoms.len();
-        let need: Vec<bool> = (0..n)
-            .map(|i| self.atoms[i].aromatic && self.needs_pi(i))
-            .collect();
+        let need: Vec<bool> = (0..n).map(|i| self.atoms[i].aromatic && self.needs_pi(i)).collect();
         let mut matcher = Matching::new(n);
         for (k, b) in self.bonds.iter().enumerate() {
             if b.order == BondOrder::Aromatic && need[b.a] && need[b.b] {
@@ -646,26 +606,21 @@ impl Molecule {
             }
         }
         matcher.solve();
-        let bare_n =
-            (0..n).any(|i| need[i] && self.atoms[i].element == 7 && !self.atoms[i].bracket);
+        let bare_n = (0..n).any(|i| need[i] && self.atoms[i].element == 7 && !self.atoms[i].bracket);
         for i in 0..n {
             if need[i] && matcher.mate[i] == NONE {
                 let a = &self.atoms[i];
-                let hint = if bare_n {
-                    " (a pyrrole-type nitrogen is written [nH])"
-                } else {
-                    ""
-                };
-                return err(a.position, format!("cannot kekulize the aromatic system: no double bond can be placed at this atom{hint}"));
+                let hint = if bare_n { " (a pyrrole-type nitrogen is written [nH])" } else { "" };
+                return err(
+                    a.position,
+                    format!("cannot kekulize the aromatic system: no double bond can be placed at this atom{hint}"),
+                );
             }
         }
         for i in 0..n {
             let j = matcher.mate[i];
             if j != NONE && i < j as usize {
-                let bond = self
-                    .neighbours(i)
-                    .find(|&(nb, _)| nb == j as usize)
-                    .map(|x| x.1);
+                let bond = self.neighbours(i).find(|&(nb, _)| nb == j as usize).map(|x| x.1);
                 if let Some(k) = bond {
                     self.bonds[k].kekule_order = 2;
                 }
@@ -675,9 +630,7 @@ impl Molecule {
     }
 
     fn kekule_sum(&self, i: usize) -> u32 {
-        self.neighbours(i)
-            .map(|(_, b)| self.bonds[b].kekule_order as u32)
-            .sum()
+        self.neighbours(i).map(|(_, b)| self.bonds[b].kekule_order as u32).sum()
     }
 
     fn implicit_hydrogens(&mut self) {
@@ -732,15 +685,10 @@ impl Molecule {
     fn fold_explicit_hydrogens(&mut self) {
         let foldable = |m: &Molecule, i: usize| {
             let a = &m.atoms[i];
-            a.element == 1
-                && a.isotope.is_none()
-                && a.charge == 0
-                && a.hydrogens == 0
-                && m.degree(i) == 1
-                && {
-                    let (nb, b) = m.neighbours(i).next().expect("degree 1");
-                    m.atoms[nb].element != 1 && m.bonds[b].kekule_order == 1
-                }
+            a.element == 1 && a.isotope.is_none() && a.charge == 0 && a.hydrogens == 0 && m.degree(i) == 1 && {
+                let (nb, b) = m.neighbours(i).next().expect("degree 1");
+                m.atoms[nb].element != 1 && m.bonds[b].kekule_order == 1
+            }
         };
         let fold: Vec<bool> = (0..self.atoms.len()).map(|i| foldable(self, i)).collect();
         if !fold.iter().any(|&f| f) {
@@ -834,11 +782,10 @@ impl Molecule {
     /// with 4n + 2 and no sp3 atom is aromatic. Only `aromatic` flags change (the Joback phenol
     /// group and reporting use them); the graph and its identity do not.
     fn perceive_aromaticity(&mut self) {
-        let candidate = self.bonds.iter().any(|b| {
-            b.in_ring
-                && b.kekule_order == 2
-                && !(self.atoms[b.a].aromatic && self.atoms[b.b].aromatic)
-        });
+        let candidate = self
+            .bonds
+            .iter()
+            .any(|b| b.in_ring && b.kekule_order == 2 && !(self.atoms[b.a].aromatic && self.atoms[b.b].aromatic));
         if !candidate {
             return;
         }
@@ -874,9 +821,7 @@ impl Molecule {
                 if self.bonds[b].kekule_order != 2 {
                     continue;
                 }
-                if ring.binary_search(&w).is_ok()
-                    || (a.aromatic && self.atoms[w].aromatic && self.bonds[b].in_ring)
-                {
+                if ring.binary_search(&w).is_ok() || (a.aromatic && self.atoms[w].aromatic && self.bonds[b].in_ring) {
                     inside = true;
                 } else if matches!(self.atoms[w].element, 7 | 8 | 16) {
                     outside_hetero = true;
@@ -934,10 +879,7 @@ impl Molecule {
                         let mut cur = v;
                         while cur != usize::MAX {
                             path.push(cur);
-                            cur = parent
-                                .iter()
-                                .find(|p| p.0 == cur)
-                                .map_or(usize::MAX, |p| p.1);
+                            cur = parent.iter().find(|p| p.0 == cur).map_or(usize::MAX, |p| p.1);
                         }
                         return Some(path);
                     }
@@ -1052,9 +994,7 @@ impl Molecule {
             let Some(tied) = (0..n).find(|&r| counts[r] > 1) else {
                 break;
             };
-            let chosen = (0..n)
-                .find(|&i| rank[i] as usize == tied)
-                .expect("a tied rank has atoms");
+            let chosen = (0..n).find(|&i| rank[i] as usize == tied).expect("a tied rank has atoms");
             for (i, r) in rank.iter_mut().enumerate() {
                 if *r as usize == tied && i != chosen {
                     *r += 1;
@@ -1146,16 +1086,7 @@ impl Molecule {
             if !out.is_empty() {
                 out.push('.');
             }
-            self.write_from(
-                s,
-                usize::MAX,
-                rank,
-                &tree_bond,
-                &mut visited,
-                &mut ring_id,
-                &mut free_ids,
-                &mut out,
-            );
+            self.write_from(s, usize::MAX, rank, &tree_bond, &mut visited, &mut ring_id, &mut free_ids, &mut out);
         }
         out
     }
@@ -1166,17 +1097,9 @@ impl Molecule {
         nb
     }
 
-    fn dfs_tree(
-        &self,
-        v: usize,
-        rank: &[u32],
-        seen: &mut [bool],
-        tree: &mut [bool],
-        _stack: &mut Vec<usize>,
-    ) {
+    fn dfs_tree(&self, v: usize, rank: &[u32], seen: &mut [bool], tree: &mut [bool], _stack: &mut Vec<usize>) {
         // Iterative DFS in the same visiting order as write_from.
-        let mut stack: Vec<(usize, Vec<(usize, usize)>, usize)> =
-            vec![(v, self.sorted_neighbours(v, rank), 0)];
+        let mut stack: Vec<(usize, Vec<(usize, usize)>, usize)> = vec![(v, self.sorted_neighbours(v, rank), 0)];
         while let Some((_, nbs, next)) = stack.last_mut() {
             if *next >= nbs.len() {
                 stack.pop();
@@ -1229,10 +1152,7 @@ impl Molecule {
                 }
             }
         }
-        let children: Vec<(usize, usize)> = nbs
-            .into_iter()
-            .filter(|&(_, b)| b != via && tree[b])
-            .collect();
+        let children: Vec<(usize, usize)> = nbs.into_iter().filter(|&(_, b)| b != via && tree[b]).collect();
         for (k, &(w, b)) in children.iter().enumerate() {
             let last = k + 1 == children.len();
             if !last {
@@ -1505,15 +1425,7 @@ impl Matching {
         }
     }
 
-    fn mark_path(
-        &self,
-        mut v: usize,
-        b: usize,
-        mut child: usize,
-        blossom: &mut [bool],
-        base: &[u32],
-        parent: &mut [u32],
-    ) {
+    fn mark_path(&self, mut v: usize, b: usize, mut child: usize, blossom: &mut [bool], base: &[u32], parent: &mut [u32]) {
         while base[v] as usize != b {
             let m = self.mate[v] as usize;
             blossom[base[v] as usize] = true;
@@ -1530,16 +1442,11 @@ mod tests {
     use super::*;
 
     fn hill(s: &str) -> String {
-        Molecule::parse(s, 0)
-            .unwrap_or_else(|e| panic!("{s}: {e}"))
-            .formula()
-            .hill()
+        Molecule::parse(s, 0).unwrap_or_else(|e| panic!("{s}: {e}")).formula().hill()
     }
 
     fn key(s: &str) -> String {
-        Molecule::parse(s, 0)
-            .unwrap_or_else(|e| panic!("{s}: {e}"))
-            .canonical_key()
+        Molecule::parse(s, 0).unwrap_or_else(|e| panic!("{s}: {e}")).canonical_key()
     }
 
     #[test]
@@ -1585,10 +1492,7 @@ mod tests {
         assert_eq!(key("OCl(=O)(=O)=O"), key("O[Cl+3]([O-])([O-])[O-]"));
         assert_eq!(hill("CN(=O)=O"), "CH3NO2");
         let m = Molecule::parse("[13CH3:7][OH]", 0).unwrap();
-        assert_eq!(
-            (m.atoms[0].isotope, m.atoms[0].class, m.atoms[0].hydrogens),
-            (Some(13), Some(7), 3)
-        );
+        assert_eq!((m.atoms[0].isotope, m.atoms[0].class, m.atoms[0].hydrogens), (Some(13), Some(7), 3));
     }
 
     #[test]
@@ -1612,39 +1516,16 @@ mod tests {
         assert_eq!(hill("c1ccc2cc3ccccc3cc2c1"), "C14H10");
         // Kekulé input is perceived aromatic (Hückel, ring by ring); cyclohexene is not.
         let m = Molecule::parse("CC1=CC=CC=C1O", 0).unwrap();
-        assert!(
-            m.atoms[1..7].iter().all(|a| a.aromatic)
-                && !m.atoms[0].aromatic
-                && !m.atoms[7].aromatic
-        );
-        assert!(Molecule::parse("C1=CC2=CC=CC=C2C=C1", 0)
-            .unwrap()
-            .atoms
-            .iter()
-            .all(|a| a.aromatic));
-        assert!(Molecule::parse("C1=CNC=C1", 0)
-            .unwrap()
-            .atoms
-            .iter()
-            .all(|a| a.aromatic));
-        assert!(!Molecule::parse("C1=CCCCC1", 0)
-            .unwrap()
-            .atoms
-            .iter()
-            .any(|a| a.aromatic));
-        assert!(!Molecule::parse("C1=CC=CC1", 0)
-            .unwrap()
-            .atoms
-            .iter()
-            .any(|a| a.aromatic));
+        assert!(m.atoms[1..7].iter().all(|a| a.aromatic) && !m.atoms[0].aromatic && !m.atoms[7].aromatic);
+        assert!(Molecule::parse("C1=CC2=CC=CC=C2C=C1", 0).unwrap().atoms.iter().all(|a| a.aromatic));
+        assert!(Molecule::parse("C1=CNC=C1", 0).unwrap().atoms.iter().all(|a| a.aromatic));
+        assert!(!Molecule::parse("C1=CCCCC1", 0).unwrap().atoms.iter().any(|a| a.aromatic));
+        assert!(!Molecule::parse("C1=CC=CC1", 0).unwrap().atoms.iter().any(|a| a.aromatic));
         assert_eq!(hill("c1cc2ccc3cccc4ccc(c1)c2c34"), "C16H10");
         // Each atom needing a π bond got exactly one double bond.
         let m = Molecule::parse("c1ccc2ccccc2c1", 0).unwrap();
         for i in 0..m.atoms.len() {
-            let doubles = m
-                .neighbours(i)
-                .filter(|&(_, b)| m.bonds[b].kekule_order == 2)
-                .count();
+            let doubles = m.neighbours(i).filter(|&(_, b)| m.bonds[b].kekule_order == 2).count();
             assert_eq!(doubles, 1, "atom {i}");
         }
     }
@@ -1702,15 +1583,9 @@ mod tests {
     #[test]
     fn limits_are_errors_not_panics() {
         let long = "C".repeat(MAX_SMILES_BYTES + 1);
-        assert!(Molecule::parse(&long, 0)
-            .unwrap_err()
-            .reason
-            .contains("bytes"));
+        assert!(Molecule::parse(&long, 0).unwrap_err().reason.contains("bytes"));
         let many = "C".repeat(MAX_HEAVY_ATOMS + 1);
-        assert!(Molecule::parse(&many, 0)
-            .unwrap_err()
-            .reason
-            .contains("heavy atoms"));
+        assert!(Molecule::parse(&many, 0).unwrap_err().reason.contains("heavy atoms"));
         assert!(Molecule::parse(&"C".repeat(MAX_HEAVY_ATOMS), 0).is_ok());
         assert!(Molecule::parse("[C+16]", 0).is_err());
         let deep = format!("C{}C{}", "(C".repeat(300), ")".repeat(300));

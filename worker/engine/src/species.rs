@@ -46,14 +46,23 @@ impl Segment {
     pub fn h_rt_s_r(&self, t: f64, ln_t: f64) -> (f64, f64) {
         let a = &self.a;
         let inv = 1.0 / t;
-        let h = -a[0] * inv * inv + a[1] * ln_t * inv + a[2] + t * (a[3] / 2.0 + t * (a[4] / 3.0 + t * (a[5] / 4.0 + t * a[6] / 5.0))) + a[7] * inv;
-        let s = -a[0] * inv * inv / 2.0 - a[1] * inv + a[2] * ln_t + t * (a[3] + t * (a[4] / 2.0 + t * (a[5] / 3.0 + t * a[6] / 4.0))) + a[8];
+        let h = -a[0] * inv * inv
+            + a[1] * ln_t * inv
+            + a[2]
+            + t * (a[3] / 2.0 + t * (a[4] / 3.0 + t * (a[5] / 4.0 + t * a[6] / 5.0)))
+            + a[7] * inv;
+        let s =
+            -a[0] * inv * inv / 2.0 - a[1] * inv + a[2] * ln_t + t * (a[3] + t * (a[4] / 2.0 + t * (a[5] / 3.0 + t * a[6] / 4.0))) + a[8];
         (h, s)
     }
 
     /// NASA 7-coefficient data (a1..a5 of Cp/R, a6 for H, a7 for S) in 9-coefficient form.
     pub fn from_nasa7(t_min_k: f64, t_max_k: f64, c: &[f64; 7]) -> Segment {
-        Segment { t_min_k, t_max_k, a: [0.0, 0.0, c[0], c[1], c[2], c[3], c[4], c[5], c[6]] }
+        Segment {
+            t_min_k,
+            t_max_k,
+            a: [0.0, 0.0, c[0], c[1], c[2], c[3], c[4], c[5], c[6]],
+        }
     }
 
     /// A constant heat capacity fixed to ΔfH° and S° at 298.15 K.
@@ -61,7 +70,11 @@ impl Segment {
         let a3 = cp_j_per_mol_k / R;
         let b1 = dhf_kj_per_mol * 1000.0 / R - a3 * T_REF_K;
         let b2 = s_j_per_mol_k / R - a3 * T_REF_K.ln();
-        Segment { t_min_k, t_max_k, a: [0.0, 0.0, a3, 0.0, 0.0, 0.0, 0.0, b1, b2] }
+        Segment {
+            t_min_k,
+            t_max_k,
+            a: [0.0, 0.0, a3, 0.0, 0.0, 0.0, 0.0, b1, b2],
+        }
     }
 }
 
@@ -70,7 +83,12 @@ impl Segment {
 pub struct State {
     pub h_j_per_mol: f64,
     pub s_j_per_mol_k: f64,
+    /// Inside the range the data covers.
     pub in_range: bool,
+    /// False when another phase of the compound has a lower Gibbs energy here at 1 bar (a liquid
+    /// above its boiling point, a solid above its melting point): the phase as written is not
+    /// the stable one, and results that use it are flagged.
+    pub stable: bool,
 }
 
 impl State {
@@ -83,7 +101,7 @@ impl State {
 #[derive(Clone, Debug, PartialEq)]
 pub enum Origin {
     /// A record of the bundled table (its name in the source, e.g. `H2O(L)`).
-    Tabulated { record: String, note: String },
+    Tabulated { record: String, note: String, source: String },
     /// Values supplied with the request.
     Supplied,
     /// Estimated from the structure by a group-contribution method (see `joback`).
@@ -103,6 +121,8 @@ pub struct Record {
     pub formula: Formula,
     pub segments: Vec<Segment>,
     pub note: String,
+    /// The data source, for humans: `NASA thermo data (...) via Cantera 3.2.0`.
+    pub source: String,
     /// Standard uncertainty of ΔfH°(298.15 K) where the source gives one.
     pub dhf_uncertainty_kj_per_mol: Option<f64>,
 }
@@ -148,6 +168,9 @@ pub struct Resolved {
     pub dhf_uncertainty_kj_per_mol: Option<f64>,
     /// Things the user should know about how this species was resolved.
     pub notes: Vec<String>,
+    /// Segments of the compound's other phases that could be more stable (gas for a liquid;
+    /// liquid and gas for a solid), to detect boiling and melting inside a grid.
+    pub rivals: Vec<Segment>,
 }
 
 impl Resolved {
@@ -174,7 +197,45 @@ impl Resolved {
                 (h, s, false)
             }
         };
-        State { h_j_per_mol: h * R * t, s_j_per_mol_k: s * R, in_range }
+        let own_g = h - s;
+        let stable = !self.rivals.iter().filter(|r| r.covers(t)).any(|r| {
+            let (rh, rs) = r.h_rt_s_r(t, ln_t);
+            rh - rs < own_g - 1e-9
+        });
+        State {
+            h_j_per_mol: h * R * t,
+            s_j_per_mol_k: s * R,
+            in_range,
+            stable,
+        }
+    }
+
+    /// Lowest temperature in `[lo, hi]` above which the phase as written stops being the stable
+    /// one (boiling or melting at 1 bar), to 0.01 K; `None` when it stays stable.
+    pub fn transition_k(&self, lo: f64, hi: f64) -> Option<f64> {
+        if self.rivals.is_empty() {
+            return None;
+        }
+        let stable = |t: f64| self.state(t, t.ln()).stable;
+        let steps = 200;
+        let mut prev = lo;
+        for k in 1..=steps {
+            let t = lo + (hi - lo) * k as f64 / steps as f64;
+            if stable(prev) && !stable(t) {
+                let (mut a, mut b) = (prev, t);
+                while b - a > 0.01 {
+                    let m = 0.5 * (a + b);
+                    if stable(m) {
+                        a = m
+                    } else {
+                        b = m
+                    }
+                }
+                return Some(0.5 * (a + b));
+            }
+            prev = t;
+        }
+        None
     }
 
     /// Lowest and highest temperature any segment covers.
@@ -184,19 +245,33 @@ impl Resolved {
         (lo, hi)
     }
 
-    /// One line naming the data behind this species.
-    pub fn source_line(&self, table: &Table) -> String {
-        let parts: Vec<String> = self
-            .origin
-            .iter()
-            .map(|o| match o {
-                Origin::Tabulated { record, note } if note.is_empty() => format!("{} [{record}]", table.source_name),
-                Origin::Tabulated { record, note } => format!("{} [{record}; {note}]", table.source_name),
-                Origin::Supplied => "values supplied with the request".to_string(),
-                Origin::Estimated { method } => format!("estimated: {method}"),
+    /// One line naming the data behind this species: each source, then the records used from it.
+    pub fn source_line(&self, _table: &Table) -> String {
+        let mut parts: Vec<(String, Vec<String>)> = Vec::new();
+        for o in &self.origin {
+            let (source, item) = match o {
+                Origin::Tabulated { record, note, source } if note.is_empty() => (source.clone(), record.clone()),
+                Origin::Tabulated { record, note, source } => (source.clone(), format!("{record} ({note})")),
+                Origin::Supplied => ("values supplied with the request".to_string(), String::new()),
+                Origin::Estimated { method } => (format!("estimated: {method}"), String::new()),
+            };
+            match parts.iter_mut().find(|p| p.0 == source) {
+                Some(p) => p.1.push(item),
+                None => parts.push((source, vec![item])),
+            }
+        }
+        let shown: Vec<String> = parts
+            .into_iter()
+            .map(|(source, items)| {
+                let items: Vec<String> = items.into_iter().filter(|i| !i.is_empty()).collect();
+                if items.is_empty() {
+                    source
+                } else {
+                    format!("{source}: {}", items.join("; "))
+                }
             })
             .collect();
-        parts.join(" + ")
+        shown.join(" + ")
     }
 }
 
@@ -214,7 +289,11 @@ pub enum ResolveError {
     #[error("no data for {species}: not in the bundled table{hint}")]
     NotFound { species: String, hint: String },
     #[error("{species} is ambiguous: it matches {}; {advice}", candidates.join(", "))]
-    Ambiguous { species: String, candidates: Vec<String>, advice: &'static str },
+    Ambiguous {
+        species: String,
+        candidates: Vec<String>,
+        advice: &'static str,
+    },
     #[error("{species} is written by name but a name alone gives no formula; supply its formula with its values")]
     NameWithoutData { species: String },
     #[error("no data for {species}: not in the bundled table, and it cannot be estimated: {reason}")]
@@ -226,19 +305,157 @@ pub struct Table {
     pub records: Vec<Record>,
     by_name: HashMap<(String, i32), Vec<usize>>,
     by_formula: HashMap<String, Vec<usize>>,
-    /// Header comment of the data file: generator, versions, terms.
+    /// Header comments of the data files: generators, versions, terms.
     pub provenance: String,
-    pub source_name: String,
+    /// Every source the table's records come from, in load order.
+    pub sources: Vec<String>,
 }
 
 const NASA_TSV: &str = include_str!("../data/nasa_species.tsv");
-/// How results name the bundled data.
+/// How results name the bundled NASA data.
 pub const SOURCE_NAME: &str = "NASA thermo data (McBride, Gordon & Reno, NASA TM-4513, 1993; public domain) via Cantera 3.2.0";
 
 /// The bundled table, parsed on first use (a few milliseconds) and shared for the process.
 pub fn bundled() -> &'static Table {
     static TABLE: OnceLock<Table> = OnceLock::new();
-    TABLE.get_or_init(|| Table::from_tsv(NASA_TSV, SOURCE_NAME).unwrap_or_else(|e| panic!("{e}")))
+    TABLE.get_or_init(|| Table::from_sources(&[(NASA_TSV, SOURCE_NAME)], None).unwrap_or_else(|e| panic!("{e}")))
+}
+
+/// Append the records of one table in the `nasa_species.tsv` layout.
+fn parse_records(tsv: &str, source_name: &str, records: &mut Vec<Record>, provenance: &mut String) -> Result<(), String> {
+    let mut header: Option<Vec<&str>> = None;
+    for (i, line) in tsv.lines().enumerate() {
+        if let Some(c) = line.strip_prefix('#') {
+            provenance.push_str(c.trim());
+            provenance.push('\n');
+            continue;
+        }
+        if line.trim().is_empty() {
+            continue;
+        }
+        let f: Vec<&str> = line.split('\t').collect();
+        let Some(h) = &header else {
+            header = Some(f);
+            continue;
+        };
+        let col = |name: &str| -> Result<&str, String> {
+            let k = h
+                .iter()
+                .position(|c| *c == name)
+                .ok_or_else(|| format!("{source_name}: no column {name}"))?;
+            f.get(k).copied().ok_or_else(|| format!("line {}: missing {name}", i + 1))
+        };
+        let err = |what: &str| format!("{source_name}: species table line {}: {what}", i + 1);
+        let phase = match col("phase")? {
+            "g" => Phase::Gas,
+            "l" => Phase::Liquid,
+            "s" => Phase::Solid,
+            p => return Err(err(&format!("phase {p:?}"))),
+        };
+        let charge: i32 = col("charge")?.parse().map_err(|_| err("charge"))?;
+        let formula = match parse_composition(col("composition")?, charge) {
+            Ok(f) => f,
+            // Fractional compositions (non-stoichiometric solids) cannot be balanced in
+            // integers, and deuterium is not an element of the table: leave those out.
+            Err(e) if e.starts_with("non-integer") || e.contains("'D'") => continue,
+            Err(e) => return Err(err(&e)),
+        };
+        let nasa7 = match col("model")? {
+            "nasa9" => false,
+            "nasa7" => true,
+            m => return Err(err(&format!("model {m:?}"))),
+        };
+        let mut segments = Vec::new();
+        for seg in col("segments")?.split(';') {
+            let v: Vec<f64> = seg
+                .split(',')
+                .map(|x| x.trim().parse::<f64>())
+                .collect::<Result<_, _>>()
+                .map_err(|_| err("segment number"))?;
+            let s = match (nasa7, v.len()) {
+                (false, 11) => Segment {
+                    t_min_k: v[0],
+                    t_max_k: v[1],
+                    a: v[2..11].try_into().map_err(|_| err("segment"))?,
+                },
+                (true, 9) => Segment::from_nasa7(v[0], v[1], &v[2..9].try_into().map_err(|_| err("segment"))?),
+                _ => return Err(err("segment length")),
+            };
+            segments.push(s);
+        }
+        segments.sort_by(|a, b| a.t_min_k.total_cmp(&b.t_min_k));
+        // The CHEMKIN-format NASA files give 300 K as the lower limit of many condensed
+        // species (Al2O3, Fe2O3, CaO) and a few gases (SO2, SO3, HCl) whose fits start at the
+        // 298.15 K reference point; take them as valid from 298.15 K so standard values are
+        // not flagged for a 1.85 K step.
+        if let Some(first) = segments.first_mut() {
+            if first.t_min_k == 300.0 {
+                first.t_min_k = T_REF_K;
+            }
+        }
+        records.push(Record {
+            name: col("name")?.to_string(),
+            base: col("base")?.to_string(),
+            phase,
+            tag: col("tag")?.to_string(),
+            formula,
+            segments,
+            note: col("note").unwrap_or("").to_string(),
+            source: col("source").ok().filter(|s| !s.is_empty()).unwrap_or(source_name).to_string(),
+            dhf_uncertainty_kj_per_mol: match col("dhf_uncertainty_kj_per_mol") {
+                Ok("") | Err(_) => None,
+                Ok(v) => Some(v.parse().map_err(|_| err("dhf_uncertainty_kj_per_mol"))?),
+            },
+        });
+    }
+    Ok(())
+}
+
+/// Set ΔfH° uncertainties from an overlay keyed by record name.
+fn apply_uncertainties(tsv: &str, records: &mut [Record], provenance: &mut String) -> Result<(), String> {
+    let mut header: Option<Vec<&str>> = None;
+    let by_name: HashMap<String, usize> = records.iter().enumerate().map(|(k, r)| (r.name.clone(), k)).collect();
+    for (i, line) in tsv.lines().enumerate() {
+        if let Some(c) = line.strip_prefix('#') {
+            provenance.push_str(c.trim());
+            provenance.push('\n');
+            continue;
+        }
+        if line.trim().is_empty() {
+            continue;
+        }
+        let f: Vec<&str> = line.split('\t').collect();
+        let Some(h) = &header else {
+            header = Some(f);
+            continue;
+        };
+        let col = |name: &str| h.iter().position(|c| *c == name).and_then(|k| f.get(k).copied());
+        let (Some(name), Some(u)) = (col("name"), col("atct_uncertainty_kj_per_mol")) else {
+            return Err(format!(
+                "uncertainty overlay line {}: needs name and atct_uncertainty_kj_per_mol",
+                i + 1
+            ));
+        };
+        let u: f64 = u.parse().map_err(|_| format!("uncertainty overlay line {}: bad number", i + 1))?;
+        if let Some(&k) = by_name.get(name) {
+            records[k].dhf_uncertainty_kj_per_mol = Some(u);
+        }
+    }
+    Ok(())
+}
+
+/// Whether a polymorph asked for (`a` alpha, `b` beta, `c` gamma, `d` delta, `gr` graphite)
+/// names a record's tag. NASA labels polymorphs by letters, by `cr1`/`cr2` (sulfur) or by Roman
+/// and Arabic numerals in order of increasing temperature.
+fn form_matches(form: &str, tag: &str) -> bool {
+    let tags: &[&str] = match form {
+        "a" => &["a", "cr1", "I", "1"],
+        "b" => &["b", "cr2", "II", "2", "b,c"],
+        "c" => &["c", "III", "3", "b,c"],
+        "d" => &["d", "IV"],
+        other => return other == tag,
+    };
+    tags.contains(&tag)
 }
 
 fn parse_composition(s: &str, charge: i32) -> Result<Formula, String> {
@@ -265,97 +482,63 @@ fn strip_charge(name: &str) -> &str {
 }
 
 impl Table {
-    /// Parse a table in the `nasa_species.tsv` layout.
+    /// Parse one table in the `nasa_species.tsv` layout; `source_name` names its records' source
+    /// unless a `source` column does.
     ///
     /// # Errors
     /// A message naming the line when a row is malformed.
     pub fn from_tsv(tsv: &str, source_name: &str) -> Result<Table, String> {
+        Table::from_sources(&[(tsv, source_name)], None)
+    }
+
+    /// Parse several tables (later ones add records; they never replace earlier ones) and an
+    /// optional overlay of ΔfH° uncertainties keyed by record name (`name` and
+    /// `atct_uncertainty_kj_per_mol` columns).
+    ///
+    /// # Errors
+    /// A message naming the file and line when a row is malformed.
+    pub fn from_sources(tables: &[(&str, &str)], uncertainties: Option<&str>) -> Result<Table, String> {
         let mut provenance = String::new();
-        let mut header: Option<Vec<&str>> = None;
         let mut records = Vec::new();
-        for (i, line) in tsv.lines().enumerate() {
-            if let Some(c) = line.strip_prefix('#') {
-                provenance.push_str(c.trim());
-                provenance.push('\n');
-                continue;
-            }
-            if line.trim().is_empty() {
-                continue;
-            }
-            let f: Vec<&str> = line.split('\t').collect();
-            let Some(h) = &header else {
-                header = Some(f);
-                continue;
-            };
-            let col = |name: &str| -> Result<&str, String> {
-                let k = h.iter().position(|c| *c == name).ok_or_else(|| format!("no column {name}"))?;
-                f.get(k).copied().ok_or_else(|| format!("line {}: missing {name}", i + 1))
-            };
-            let err = |what: &str| format!("species table line {}: {what}", i + 1);
-            let phase = match col("phase")? {
-                "g" => Phase::Gas,
-                "l" => Phase::Liquid,
-                "s" => Phase::Solid,
-                p => return Err(err(&format!("phase {p:?}"))),
-            };
-            let charge: i32 = col("charge")?.parse().map_err(|_| err("charge"))?;
-            let formula = match parse_composition(col("composition")?, charge) {
-                Ok(f) => f,
-                // Fractional compositions (non-stoichiometric solids) cannot be balanced in
-                // integers, and deuterium is not an element of the table: leave those out.
-                Err(e) if e.starts_with("non-integer") || e.contains("'D'") => continue,
-                Err(e) => return Err(err(&e)),
-            };
-            let nasa7 = match col("model")? {
-                "nasa9" => false,
-                "nasa7" => true,
-                m => return Err(err(&format!("model {m:?}"))),
-            };
-            let mut segments = Vec::new();
-            for seg in col("segments")?.split(';') {
-                let v: Vec<f64> = seg.split(',').map(|x| x.trim().parse::<f64>()).collect::<Result<_, _>>().map_err(|_| err("segment number"))?;
-                let s = match (nasa7, v.len()) {
-                    (false, 11) => Segment { t_min_k: v[0], t_max_k: v[1], a: v[2..11].try_into().map_err(|_| err("segment"))? },
-                    (true, 9) => Segment::from_nasa7(v[0], v[1], &v[2..9].try_into().map_err(|_| err("segment"))?),
-                    _ => return Err(err("segment length")),
-                };
-                segments.push(s);
-            }
-            segments.sort_by(|a, b| a.t_min_k.total_cmp(&b.t_min_k));
-            // The CHEMKIN-format NASA files give 300 K as the lower limit of many condensed
-            // species (Al2O3, Fe2O3, CaO) and a few gases (SO2, SO3, HCl) whose fits start at the
-            // 298.15 K reference point; take them as valid from 298.15 K so standard values are
-            // not flagged for a 1.85 K step.
-            if let Some(first) = segments.first_mut() {
-                if first.t_min_k == 300.0 {
-                    first.t_min_k = T_REF_K;
-                }
-            }
-            records.push(Record {
-                name: col("name")?.to_string(),
-                base: col("base")?.to_string(),
-                phase,
-                tag: col("tag")?.to_string(),
-                formula,
-                segments,
-                note: col("note").unwrap_or("").to_string(),
-                dhf_uncertainty_kj_per_mol: None,
-            });
+        let mut sources = Vec::new();
+        for (tsv, source_name) in tables {
+            parse_records(tsv, source_name, &mut records, &mut provenance)?;
+            sources.push(source_name.to_string());
         }
+        if let Some(overlay) = uncertainties {
+            apply_uncertainties(overlay, &mut records, &mut provenance)?;
+        }
+        Ok(Table::index(records, provenance, sources))
+    }
+
+    fn index(records: Vec<Record>, provenance: String, sources: Vec<String>) -> Table {
         let mut by_name: HashMap<(String, i32), Vec<usize>> = HashMap::new();
         let mut by_formula: HashMap<String, Vec<usize>> = HashMap::new();
         for (k, r) in records.iter().enumerate() {
-            let base = if r.formula.charge != 0 { strip_charge(&r.base) } else { r.base.as_str() };
+            let base = if r.formula.charge != 0 {
+                strip_charge(&r.base)
+            } else {
+                r.base.as_str()
+            };
             by_name.entry((base.to_string(), r.formula.charge)).or_default().push(k);
             // NASA qualifies isomers after a comma (`C4H10,n-butane`): the qualifier is a name too.
             if let Some((_, alias)) = base.split_once(',') {
-                if alias.len() >= 3 && alias.starts_with(|c: char| c.is_ascii_lowercase()) && alias.chars().all(|c| c.is_ascii_alphanumeric() || c == '-') {
+                if alias.len() >= 3
+                    && alias.starts_with(|c: char| c.is_ascii_lowercase())
+                    && alias.chars().all(|c| c.is_ascii_alphanumeric() || c == '-')
+                {
                     by_name.entry((alias.to_string(), r.formula.charge)).or_default().push(k);
                 }
             }
             by_formula.entry(r.formula.hill()).or_default().push(k);
         }
-        Ok(Table { records, by_name, by_formula, provenance, source_name: source_name.to_string() })
+        Table {
+            records,
+            by_name,
+            by_formula,
+            provenance,
+            sources,
+        }
     }
 
     /// Records whose base name is `name` with this charge.
@@ -396,7 +579,7 @@ impl Table {
         let all = ids.clone();
         ids.retain(|&k| {
             let r = &self.records[k];
-            spec.phase.is_none_or(|p| p == r.phase) && spec.form.as_ref().is_none_or(|f| *f == r.tag)
+            spec.phase.is_none_or(|p| p == r.phase) && spec.form.as_ref().is_none_or(|f| form_matches(f, &r.tag))
         });
         if ids.is_empty() {
             let hint = if all.is_empty() {
@@ -415,14 +598,22 @@ impl Table {
         if bases.len() > 1 {
             let mut names: Vec<String> = bases.iter().map(|b| b.to_string()).collect();
             names.sort();
-            return Err(ResolveError::Ambiguous { species: shown, candidates: names, advice: "write the one you mean by its name" });
+            return Err(ResolveError::Ambiguous {
+                species: shown,
+                candidates: names,
+                advice: "write the one you mean by its name",
+            });
         }
         let mut notes = Vec::new();
         let phase = match spec.phase {
             Some(p) => p,
             None => {
                 let p = self.stable_phase_at_298(&ids);
-                notes.push(format!("{} has no phase tag: the stable phase at 298.15 K ({}) is used", spec.text, p.tag()));
+                notes.push(format!(
+                    "{} has no phase tag: the stable phase at 298.15 K ({}) is used",
+                    spec.text,
+                    p.tag()
+                ));
                 p
             }
         };
@@ -445,14 +636,33 @@ impl Table {
             (p, None) => format!("{}({})", spec.text_with_charge(), p.tag()),
         };
         let recs: Vec<&Record> = ids.iter().map(|&k| &self.records[k]).collect();
+        let rival_phases: &[Phase] = match phase {
+            Phase::Liquid => &[Phase::Gas],
+            Phase::Solid => &[Phase::Liquid, Phase::Gas],
+            Phase::Gas | Phase::Aqueous => &[],
+        };
+        let rivals: Vec<Segment> = all
+            .iter()
+            .map(|&k| &self.records[k])
+            .filter(|r| rival_phases.contains(&r.phase) && r.base.eq_ignore_ascii_case(&recs[0].base))
+            .flat_map(|r| r.segments.iter().copied())
+            .collect();
         Ok(Resolved {
             label,
             formula: recs[0].formula.clone(),
             phase,
             segments: recs.iter().flat_map(|r| r.segments.iter().copied()).collect(),
-            origin: recs.iter().map(|r| Origin::Tabulated { record: r.name.clone(), note: r.note.clone() }).collect(),
+            origin: recs
+                .iter()
+                .map(|r| Origin::Tabulated {
+                    record: r.name.clone(),
+                    note: r.note.clone(),
+                    source: r.source.clone(),
+                })
+                .collect(),
             dhf_uncertainty_kj_per_mol: recs[0].dhf_uncertainty_kj_per_mol,
             notes,
+            rivals,
         })
     }
 
@@ -485,24 +695,27 @@ impl SpeciesSpec {
     }
 }
 
-/// Build a resolved species from supplied values.
-pub fn from_supplied(spec: &SpeciesSpec, v: &SuppliedSpecies) -> Resolved {
+/// Build a resolved species from supplied values; `label` is the species as written.
+pub fn from_supplied(label: &str, v: &SuppliedSpecies) -> Resolved {
     let (cp, lo, hi) = match v.cp_j_per_mol_k {
         Some(cp) => (cp, v.t_min_k, v.t_max_k),
         None => (0.0, T_REF_K, T_REF_K),
     };
     let mut notes = Vec::new();
     if v.cp_j_per_mol_k.is_none() {
-        notes.push(format!("{spec}: no heat capacity supplied; its Cp is taken as 0 away from 298.15 K (flagged)"));
+        notes.push(format!(
+            "{label}: no heat capacity supplied; its Cp is taken as 0 away from 298.15 K (flagged)"
+        ));
     }
     Resolved {
-        label: format!("{}({})", spec.text_with_charge(), v.phase.tag()),
+        label: label.to_string(),
         formula: v.formula.clone(),
         phase: v.phase,
         segments: vec![Segment::constant_cp(lo, hi, v.dhf_kj_per_mol, v.s_j_per_mol_k, cp)],
         origin: vec![Origin::Supplied],
         dhf_uncertainty_kj_per_mol: v.dhf_uncertainty_kj_per_mol,
         notes,
+        rivals: Vec::new(),
     }
 }
 

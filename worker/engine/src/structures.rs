@@ -112,20 +112,12 @@ impl Structures {
                     .ok_or_else(|| format!("structures.tsv line {}: missing {name}", i + 1))
             };
             let (name, smiles) = (col("name")?, col("smiles")?);
-            let m = Molecule::parse(smiles, 0)
-                .map_err(|e| format!("structures.tsv line {}: {e}", i + 1))?;
+            let m = Molecule::parse(smiles, 0).map_err(|e| format!("structures.tsv line {}: {e}", i + 1))?;
             let key = m.canonical_key();
-            by_key
-                .entry(key.clone())
-                .or_default()
-                .push(name.to_string());
+            by_key.entry(key.clone()).or_default().push(name.to_string());
             named.insert(name.to_string(), key);
         }
-        Ok(Structures {
-            by_key,
-            named,
-            provenance,
-        })
+        Ok(Structures { by_key, named, provenance })
     }
 
     /// Table base names whose structure has this canonical key.
@@ -215,9 +207,7 @@ pub fn resolve_smiles(
             Ok(mut r) => {
                 // A table with only the gas of a compound that is liquid at 298.15 K: for the
                 // standard phase, take the liquid from the gas plus an estimated vaporization.
-                let liquid_listed = names
-                    .iter()
-                    .any(|n| table.resolve(&spec_for(n, Some(Phase::Liquid))).is_ok());
+                let liquid_listed = names.iter().any(|n| table.resolve(&spec_for(n, Some(Phase::Liquid))).is_ok());
                 if phase == DefaultPhase::Standard && r.phase == Phase::Gas && !liquid_listed {
                     if let Ok(e) = Estimate::of(&m) {
                         if e.tb_k > T_REF_K {
@@ -229,8 +219,7 @@ pub fn resolve_smiles(
                     }
                 }
                 r.notes.retain(|n| !n.contains("has no phase tag"));
-                r.notes
-                    .push(format!("{smiles}: bundled record {name} by structure"));
+                r.notes.push(format!("{smiles}: bundled record {name} by structure"));
                 return Ok(SmilesSpecies { resolved: r, key });
             }
             Err(ResolveError::NotFound { .. }) => {}
@@ -238,12 +227,10 @@ pub fn resolve_smiles(
         }
     }
     if phase == DefaultPhase::Liquid {
-        if let Some((name, gas)) = names.iter().find_map(|n| {
-            table
-                .resolve(&spec_for(n, Some(Phase::Gas)))
-                .ok()
-                .map(|g| (n, g))
-        }) {
+        if let Some((name, gas)) = names
+            .iter()
+            .find_map(|n| table.resolve(&spec_for(n, Some(Phase::Gas))).ok().map(|g| (n, g)))
+        {
             let e = Estimate::of(&m).map_err(|e| ResolveError::NotEstimable {
                 species: format!("{smiles}(l)"),
                 reason: e.to_string(),
@@ -255,35 +242,29 @@ pub fn resolve_smiles(
         }
     }
     if let Some(name) = names.first() {
-        notes.push(format!(
-            "{smiles}: the bundled table has {name} but not as {}",
-            phase.name()
-        ));
+        notes.push(format!("{smiles}: the bundled table has {name} but not as {}", phase.name()));
     }
     // 2. By formula, only where no record of this formula has a known structure.
     let hill = formula.hill();
     let ids = table.by_formula(&hill);
     if !ids.is_empty() && names.is_empty() {
-        let mut bases: Vec<&str> = ids
-            .iter()
-            .map(|&k| table.records[k].base.as_str())
-            .collect();
+        let mut bases: Vec<&str> = ids.iter().map(|&k| table.records[k].base.as_str()).collect();
         bases.sort_unstable_by_key(|b| b.to_ascii_uppercase());
         bases.dedup_by(|a, b| a.eq_ignore_ascii_case(b));
         let any_known = bases.iter().any(|b| structures.key_of(b).is_some());
         if bases.len() == 1 && !any_known {
             if let Ok(mut r) = table.resolve(&spec_for(bases[0], phase.phase())) {
                 r.notes.retain(|n| !n.contains("has no phase tag"));
-                r.notes.push(format!("{smiles}: matched bundled record {} by formula {hill} only (the table gives no structure; it could be an isomer)", bases[0]));
+                r.notes.push(format!(
+                    "{smiles}: matched bundled record {} by formula {hill} only (the table gives no structure; it could be an isomer)",
+                    bases[0]
+                ));
                 return Ok(SmilesSpecies { resolved: r, key });
             }
         }
     }
     // 3. Estimate.
-    let shown = format!(
-        "{smiles}({})",
-        phase.phase().map_or("standard", |p| p.tag())
-    );
+    let shown = format!("{smiles}({})", phase.phase().map_or("standard", |p| p.tag()));
     let e = Estimate::of(&m).map_err(|e| ResolveError::NotEstimable {
         species: shown.clone(),
         reason: e.to_string(),
@@ -318,10 +299,13 @@ fn liquid_from_gas(gas: &Resolved, e: &Estimate, name: &str) -> Result<Resolved,
     let cp_gas = seg.cp_over_r(T_REF_K) * crate::species::R;
     let (liquid, cp_l) = v.liquid_segment(st.h_j_per_mol / 1000.0, st.s_j_per_mol_k, cp_gas);
     let mut origin = gas.origin.clone();
-    origin.push(Origin::Estimated { method: format!("vaporization from {}: Watson (0.38) and Clausius–Clapeyron from the estimated Tb, Rowlinson–Bondi liquid Cp", joback::METHOD) });
-    let sigma = (gas.dhf_uncertainty_kj_per_mol.unwrap_or(0.0).powi(2)
-        + joback::DHVAP_SIGMA_KJ_PER_MOL.powi(2))
-    .sqrt();
+    origin.push(Origin::Estimated {
+        method: format!(
+            "vaporization from {}: Watson (0.38) and Clausius–Clapeyron from the estimated Tb, Rowlinson–Bondi liquid Cp",
+            joback::METHOD
+        ),
+    });
+    let sigma = (gas.dhf_uncertainty_kj_per_mol.unwrap_or(0.0).powi(2) + joback::DHVAP_SIGMA_KJ_PER_MOL.powi(2)).sqrt();
     Ok(Resolved {
         label,
         formula: gas.formula.clone(),
@@ -333,6 +317,7 @@ fn liquid_from_gas(gas: &Resolved, e: &Estimate, name: &str) -> Result<Resolved,
             "{name}(l): the bundled table has only the gas; liquid = gas − estimated vaporization at 298.15 K (ΔvapH {:.1} kJ/mol, p_sat {:.3} bar, estimated Tb {:.0} K), liquid Cp {cp_l:.0} J/mol/K held constant",
             v.dhvap_298_kj_per_mol, v.p_sat_298_bar, e.tb_k
         )],
+        rivals: gas.segments.clone(),
     })
 }
 
@@ -358,10 +343,7 @@ mod tests {
         let t = table();
         for names in s.by_key.values() {
             for n in names {
-                assert!(
-                    !t.by_name(n, 0).is_empty() || n.ends_with(['+', '-']),
-                    "{n} is not a table record"
-                );
+                assert!(!t.by_name(n, 0).is_empty() || n.ends_with(['+', '-']), "{n} is not a table record");
             }
         }
     }
@@ -386,13 +368,9 @@ mod tests {
             r.origin
         );
         let r = resolve("CCCC", DefaultPhase::Gas);
-        assert!(
-            matches!(&r.origin[0], Origin::Tabulated { record, .. } if record == "C4H10,n-butane")
-        );
+        assert!(matches!(&r.origin[0], Origin::Tabulated { record, .. } if record == "C4H10,n-butane"));
         let r = resolve("CC(C)C", DefaultPhase::Gas);
-        assert!(
-            matches!(&r.origin[0], Origin::Tabulated { record, .. } if record == "C4H10,isobutane")
-        );
+        assert!(matches!(&r.origin[0], Origin::Tabulated { record, .. } if record == "C4H10,isobutane"));
     }
 
     #[test]

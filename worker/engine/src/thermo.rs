@@ -55,9 +55,31 @@ impl TemperatureGrid {
 }
 
 /// Fixed temperatures at which each species is tabulated once, to look for ΔrG° = 0 without
-/// evaluating polynomials per reaction: 200 K to 6000 K in 50 K steps.
-pub fn ladder_k() -> impl Iterator<Item = f64> {
-    (0..=116).map(|k| 200.0 + 50.0 * k as f64)
+/// evaluating polynomials per reaction.
+pub struct Ladder {
+    pub start_k: f64,
+    pub step_k: f64,
+    pub count: usize,
+}
+
+/// 200 K to 6000 K in 50 K steps.
+pub const LADDER: Ladder = Ladder {
+    start_k: 200.0,
+    step_k: 50.0,
+    count: 117,
+};
+
+impl Ladder {
+    pub fn t(&self, i: usize) -> f64 {
+        self.start_k + self.step_k * i as f64
+    }
+
+    /// First and last index with temperatures inside `[lo, hi]`, if any.
+    pub fn indices_within(&self, lo: f64, hi: f64) -> Option<(usize, usize)> {
+        let first = ((lo - self.start_k) / self.step_k).ceil().max(0.0) as usize;
+        let last = (((hi - self.start_k) / self.step_k).floor() as isize).min(self.count as isize - 1);
+        (last >= first as isize).then_some((first, last as usize))
+    }
 }
 
 /// Reaction properties at one temperature.
@@ -68,7 +90,8 @@ pub struct ThermoPoint {
     pub delta_s_j_per_mol_k: f64,
     pub delta_g_kj_per_mol: f64,
     pub log10_k: f64,
-    /// False when any species is outside the range its data is valid for (values extrapolated).
+    /// False when any species is outside the range its data is valid for (values extrapolated),
+    /// or is past a phase change (a liquid above its boiling point at 1 bar).
     pub in_valid_range: bool,
 }
 
@@ -78,7 +101,7 @@ pub fn point<'a>(t: f64, terms: impl Iterator<Item = (f64, &'a State)>) -> Therm
     for (nu, s) in terms {
         dh += nu * s.h_j_per_mol;
         ds += nu * s.s_j_per_mol_k;
-        ok &= s.in_range;
+        ok &= s.in_range && s.stable;
     }
     let dg = dh - t * ds;
     ThermoPoint {

@@ -60,6 +60,7 @@ fn reactions_match_cantera_on_the_same_polynomials() {
         assert!(kinds.contains(&k), "no {k} reactions in the reference set");
     }
     let mut failures = Vec::new();
+    let mut crossings = 0;
     for (id, rs) in &all {
         assert!(rs.len() >= 3, "{id}: fewer than 3 temperatures");
         let grid = TemperatureGrid::new(rs.iter().map(|r| r.t).collect()).expect("grid");
@@ -84,8 +85,26 @@ fn reactions_match_cantera_on_the_same_polynomials() {
                     failures.push(format!("{id} at {} K: {what} {got} vs Cantera {want}", r.t));
                 }
             }
-            if !p.in_valid_range {
-                failures.push(format!("{id} at {} K: flagged out of range, but Cantera evaluated it in range", r.t));
+            // Cantera checks only the data range; the engine also flags a liquid past its boiling
+            // point, so a flag is expected exactly there.
+            let past_transition = s.species.iter().any(|sp| sp.species.transition_k.is_some_and(|tt| tt < r.t));
+            if p.in_valid_range == past_transition {
+                failures.push(format!(
+                    "{id} at {} K: in_valid_range = {} but past a phase change = {past_transition}",
+                    r.t, p.in_valid_range
+                ));
+            }
+        }
+        // Where Cantera's ΔrG° changes sign between two reference temperatures (and not before),
+        // the engine's ΔrG° = 0 temperature must lie between them.
+        if let Some(w) = rs.windows(2).find(|w| w[0].dg.signum() != w[1].dg.signum()) {
+            crossings += 1;
+            match s.delta_g_zero_k {
+                Some(t0) if t0 >= w[0].t && t0 <= w[1].t => {}
+                other => failures.push(format!(
+                    "{id}: ΔrG° = 0 at {other:?}, Cantera's sign changes between {} and {} K",
+                    w[0].t, w[1].t
+                )),
             }
         }
         // The same reaction with its coefficients left out must balance to the same equation.
@@ -101,6 +120,7 @@ fn reactions_match_cantera_on_the_same_polynomials() {
         }
     }
     assert!(failures.is_empty(), "{} mismatches:\n{}", failures.len(), failures.join("\n"));
+    assert!(crossings >= 3, "only {crossings} reference reactions change the sign of ΔrG°");
 }
 
 #[test]
@@ -109,7 +129,34 @@ fn formation_enthalpies_against_codata_key_values() {
     // ΔfH°(H2O, l, 298.15 K) = −285.830 ± 0.040 kJ/mol; ΔfH°(CO2, g) = −393.51 ± 0.13 kJ/mol.
     let mut s = Screener::new(species::bundled(), TemperatureGrid::new(vec![298.15]).unwrap());
     let water = s.screen("H2(g) + 1/2 O2(g) -> H2O(l)").unwrap();
-    assert!((water.standard.delta_h_kj_per_mol - -285.830).abs() < 0.040, "{}", water.standard.delta_h_kj_per_mol);
+    assert!(
+        (water.standard.delta_h_kj_per_mol - -285.830).abs() < 0.040,
+        "{}",
+        water.standard.delta_h_kj_per_mol
+    );
     let co2 = s.screen("C(gr) + O2(g) -> CO2(g)").unwrap();
-    assert!((co2.standard.delta_h_kj_per_mol - -393.51).abs() < 0.13, "{}", co2.standard.delta_h_kj_per_mol);
+    assert!(
+        (co2.standard.delta_h_kj_per_mol - -393.51).abs() < 0.13,
+        "{}",
+        co2.standard.delta_h_kj_per_mol
+    );
+}
+
+#[test]
+fn boiling_points_from_the_data() {
+    // Normal boiling points (from memory): water 373.12 K at 1 atm, 372.76 K at 1 bar (IAPWS-95);
+    // bromine 332.0 K (CRC Handbook). The data's liquid/gas pair must put ΔrG° = 0 there, and the
+    // liquid's phase change must be found at the same temperature.
+    let mut s = Screener::new(species::bundled(), TemperatureGrid::new(vec![298.15, 400.0]).unwrap());
+    for (eq, want, tol) in [("H2O(l) -> H2O(g)", 372.76, 1.0), ("Br2(l) -> Br2(g)", 332.0, 1.5)] {
+        let r = s.screen(eq).unwrap();
+        let t0 = r.delta_g_zero_k.expect("a crossing");
+        assert!((t0 - want).abs() < tol, "{eq}: {t0}");
+        let tb = r.species[0].species.transition_k.expect("the liquid boils");
+        assert!((tb - t0).abs() < 0.05, "{eq}: transition {tb} vs ΔrG° = 0 at {t0}");
+        assert!(
+            r.points[0].in_valid_range && !r.points[1].in_valid_range,
+            "{eq}: 400 K must be flagged"
+        );
+    }
 }

@@ -41,10 +41,7 @@ fn compare(text: &str) -> Stats {
         .map(|s| Molecule::parse(s, 0).unwrap().canonical_key())
         .collect();
     let (mut n, mut abs_sum, mut inside, mut skipped) = (0usize, 0.0, 0usize, 0usize);
-    let mut lines = vec![format!(
-        "{:<40} {:>9} {:>9} {:>8} {:>6}",
-        "molecule", "exp", "Joback", "error", "σ"
-    )];
+    let mut lines = vec![format!("{:<40} {:>9} {:>9} {:>8} {:>6}", "molecule", "exp", "Joback", "error", "σ")];
     for r in &t.rows {
         let Ok(m) = Molecule::parse(&r[smi], 0) else {
             skipped += 1;
@@ -87,7 +84,10 @@ fn compare(text: &str) -> Stats {
 fn rule_setting_set_atct() {
     let s = compare(include_str!("reference/atct_hfg.tsv"));
     println!("{}", s.table);
-    println!("Joback vs ATcT 1.112 (rule-setting, in-sample): {} molecules ({} not estimable), MAE {:.1} kJ/mol, inside 2σ {:.2}", s.n, s.skipped, s.mae, s.coverage);
+    println!(
+        "Joback vs ATcT 1.112 (rule-setting, in-sample): {} molecules ({} not estimable), MAE {:.1} kJ/mol, inside 2σ {:.2}",
+        s.n, s.skipped, s.mae, s.coverage
+    );
     assert!(s.n >= 50, "only {} molecules compared", s.n);
 }
 
@@ -95,12 +95,10 @@ fn rule_setting_set_atct() {
 fn held_out_set_crc_inside_two_sigma() {
     let s = compare(include_str!("reference/crc_hfg.tsv"));
     println!("{}", s.table);
-    println!("Joback vs CRC Handbook (held out): {} molecules ({} not estimable), MAE {:.1} kJ/mol, inside 2σ {:.2}", s.n, s.skipped, s.mae, s.coverage);
-    assert!(s.n >= 50, "only {} molecules compared", s.n);
-    assert!(
-        s.coverage >= 0.80,
-        "2σ coverage {:.2} (MAE {:.1} kJ/mol)",
-        s.coverage,
-        s.mae
+    println!(
+        "Joback vs CRC Handbook (held out): {} molecules ({} not estimable), MAE {:.1} kJ/mol, inside 2σ {:.2}",
+        s.n, s.skipped, s.mae, s.coverage
     );
+    assert!(s.n >= 50, "only {} molecules compared", s.n);
+    assert!(s.coverage >= 0.80, "2σ coverage {:.2} (MAE {:.1} kJ/mol)", s.coverage, s.mae);
 }

@@ -46,12 +46,7 @@ fn joback_matches_thermo() {
             .map(|(k, n)| format!("{}:{n}", k + 1))
             .collect();
         if ours.join(",") != r[groups] {
-            failures.push(format!(
-                "{}: groups {} vs thermo {}",
-                r[smi],
-                ours.join(","),
-                r[groups]
-            ));
+            failures.push(format!("{}: groups {} vs thermo {}", r[smi], ours.join(","), r[groups]));
             continue;
         }
         let checks = [

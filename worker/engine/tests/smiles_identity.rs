@@ -14,10 +14,7 @@ fn molecules() -> &'static Vec<Molecule> {
     M.get_or_init(|| {
         let t = Tsv::parse(include_str!("reference/smiles_rdkit.tsv"));
         let c = t.col("smiles");
-        t.rows
-            .iter()
-            .filter_map(|r| Molecule::parse(&r[c], 0).ok())
-            .collect()
+        t.rows.iter().filter_map(|r| Molecule::parse(&r[c], 0).ok()).collect()
     })
 }
 

@@ -10,17 +10,9 @@ use thermosieve_engine::smiles::Molecule;
 
 fn composition(m: &Molecule) -> String {
     let f = m.formula();
-    let mut parts: Vec<(String, u32)> = f
-        .atoms
-        .iter()
-        .map(|&(z, n)| (elements::symbol(z).to_string(), n))
-        .collect();
+    let mut parts: Vec<(String, u32)> = f.atoms.iter().map(|&(z, n)| (elements::symbol(z).to_string(), n)).collect();
     parts.sort();
-    parts
-        .iter()
-        .map(|(s, n)| format!("{s}:{n}"))
-        .collect::<Vec<_>>()
-        .join(" ")
+    parts.iter().map(|(s, n)| format!("{s}:{n}")).collect::<Vec<_>>().join(" ")
 }
 
 #[test]

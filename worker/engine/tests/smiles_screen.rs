@@ -14,16 +14,9 @@ fn tabulated_reaction_smiles_matches_the_formula_equation() {
     // Same NASA records either way: methane combustion, gas phase.
     let mut s = screener();
     let smiles = s.screen_with("C.O=O>>O=C=O.O", DefaultPhase::Gas).unwrap();
-    assert_eq!(
-        smiles.balanced_equation.matches(" 2 ").count(),
-        2,
-        "{}",
-        smiles.balanced_equation
-    );
+    assert_eq!(smiles.balanced_equation.matches(" 2 ").count(), 2, "{}", smiles.balanced_equation);
     let formula = s.screen("CH4(g) + 2 O2(g) -> CO2(g) + 2 H2O(g)").unwrap();
-    assert!(
-        (smiles.standard.delta_h_kj_per_mol - formula.standard.delta_h_kj_per_mol).abs() < 1e-9
-    );
+    assert!((smiles.standard.delta_h_kj_per_mol - formula.standard.delta_h_kj_per_mol).abs() < 1e-9);
     assert_eq!(smiles.estimated_species, 0);
     // NASA TM-4513 data: ΔrH°(298) = −802.3 kJ/mol for CH4 + 2 O2 -> CO2 + 2 H2O(g).
     assert!(
@@ -39,41 +32,25 @@ fn estimated_species_are_counted_and_named() {
     // Ethyl acetate hydrolysis: ethyl acetate is not in the NASA table (estimated, liquid);
     // water, acetic acid and ethanol are tabulated (the last two as gas only, so their liquids
     // take an estimated vaporization).
-    let r = s
-        .screen_with("CCOC(C)=O.O>>CC(=O)O.CCO", DefaultPhase::Liquid)
-        .unwrap();
+    let r = s.screen_with("CCOC(C)=O.O>>CC(=O)O.CCO", DefaultPhase::Liquid).unwrap();
     assert_eq!(
         r.estimated_species,
         3,
         "{:#?}",
-        r.species
-            .iter()
-            .map(|t| &t.species.resolved.origin)
-            .collect::<Vec<_>>()
+        r.species.iter().map(|t| &t.species.resolved.origin).collect::<Vec<_>>()
     );
     let ester = r
         .species
         .iter()
         .find(|t| t.species.resolved.label.starts_with("CCOC(C)=O"))
         .unwrap();
-    assert!(matches!(
-        ester.species.resolved.origin[0],
-        Origin::Estimated { .. }
-    ));
-    assert!(ester
-        .species
-        .resolved
-        .source_line(species::bundled())
-        .contains("Joback"));
+    assert!(matches!(ester.species.resolved.origin[0], Origin::Estimated { .. }));
+    assert!(ester.species.resolved.source_line(species::bundled()).contains("Joback"));
     assert!(ester.species.resolved.dhf_uncertainty_kj_per_mol.unwrap() > 10.0);
     // The NASA records carry no uncertainty, so the reaction's root-sum-square is not given.
     assert_eq!(r.delta_h_uncertainty_kj_per_mol, None);
     // Balanced 1:1:1:1 with no coefficient shown.
-    assert!(
-        !r.balanced_equation.contains(" 2 "),
-        "{}",
-        r.balanced_equation
-    );
+    assert!(!r.balanced_equation.contains(" 2 "), "{}", r.balanced_equation);
 }
 
 #[test]
@@ -89,39 +66,26 @@ fn two_spellings_are_one_species() {
 #[test]
 fn default_phase_decides_the_record() {
     let mut s = screener();
-    let g = s
-        .screen_with("c1ccccc1.[H][H]>>C1CCCCC1", DefaultPhase::Gas)
-        .unwrap();
-    let l = s
-        .screen_with("c1ccccc1.[H][H]>>C1CCCCC1", DefaultPhase::Standard)
-        .unwrap();
-    assert!(
-        g.balanced_equation.contains("3 H2"),
-        "{}",
-        g.balanced_equation
-    );
+    let g = s.screen_with("c1ccccc1.[H][H]>>C1CCCCC1", DefaultPhase::Gas).unwrap();
+    let l = s.screen_with("c1ccccc1.[H][H]>>C1CCCCC1", DefaultPhase::Standard).unwrap();
+    assert!(g.balanced_equation.contains("3 H2"), "{}", g.balanced_equation);
     assert!(g
         .species
         .iter()
         .all(|t| t.species.resolved.phase == thermosieve_engine::formula::Phase::Gas));
     assert_ne!(g.standard.delta_h_kj_per_mol, l.standard.delta_h_kj_per_mol);
-    let e = s
-        .screen_with("CCO>>C=C.O", DefaultPhase::Solid)
-        .unwrap_err();
+    let e = s.screen_with("CCO>>C=C.O", DefaultPhase::Solid).unwrap_err();
     assert!(e.to_string().contains("solid"), "{e}");
 }
 
 #[test]
 fn agents_are_recorded_not_balanced() {
     let mut s = screener();
-    let r = s
-        .screen_with("C=C.[H][H]>[Pd]>CC", DefaultPhase::Gas)
-        .unwrap();
+    let r = s.screen_with("C=C.[H][H]>[Pd]>CC", DefaultPhase::Gas).unwrap();
     assert_eq!(r.agents, ["[Pd]"]);
     assert!(r.notes.iter().any(|n| n.contains("agents")));
     assert!(
-        r.balanced_equation
-            .starts_with("C2H4(g) + H2(g) -> C2H6(g)"),
+        r.balanced_equation.starts_with("C2H4(g) + H2(g) -> C2H6(g)"),
         "{}",
         r.balanced_equation
     );
@@ -131,18 +95,9 @@ fn agents_are_recorded_not_balanced() {
 fn smiles_errors_carry_positions() {
     let mut s = screener();
     let e = s.screen("CCO.C1CC>>CC").unwrap_err();
-    assert!(
-        matches!(&e, ScreenError::Smiles(x) if x.position == 5),
-        "{e}"
-    );
+    assert!(matches!(&e, ScreenError::Smiles(x) if x.position == 5), "{e}");
     let e = s.screen("CCO>>CC[Xx]").unwrap_err();
-    assert!(
-        matches!(&e, ScreenError::Smiles(x) if x.position == 8),
-        "{e}"
-    );
+    assert!(matches!(&e, ScreenError::Smiles(x) if x.position == 8), "{e}");
     let e = s.screen("CCO>>CS(C)=O").unwrap_err();
-    assert!(
-        matches!(&e, ScreenError::Species { position: 5, .. }),
-        "{e}"
-    );
+    assert!(matches!(&e, ScreenError::Species { position: 5, .. }), "{e}");
 }

@@ -7,18 +7,9 @@ pub struct Tsv {
 
 impl Tsv {
     pub fn parse(text: &str) -> Tsv {
-        let mut lines = text
-            .lines()
-            .filter(|l| !l.starts_with('#') && !l.trim().is_empty());
-        let header = lines
-            .next()
-            .expect("header row")
-            .split('\t')
-            .map(str::to_string)
-            .collect();
-        let rows = lines
-            .map(|l| l.split('\t').map(str::to_string).collect())
-            .collect();
+        let mut lines = text.lines().filter(|l| !l.starts_with('#') && !l.trim().is_empty());
+        let header = lines.next().expect("header row").split('\t').map(str::to_string).collect();
+        let rows = lines.map(|l| l.split('\t').map(str::to_string).collect()).collect();
         Tsv { header, rows }
     }
 

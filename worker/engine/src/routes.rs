@@ -1,0 +1,236 @@
+//! Route roll-up: the steps of each route (cases sharing a `route_id`, ordered by `step`) summed
+//! and compared, and the routes of a batch ranked.
+//!
+//! # Score
+//! Routes are ranked by, in order (lower is better, rank 1 is the least hazardous):
+//! 1. whether a step failed (routes with a failed step rank last);
+//! 2. the worst criticality class over the steps, a step whose class was not assessed counting
+//!    as worse than class 5 (an unknown hazard is not a small one);
+//! 3. the worst adiabatic rise ΔT_ad over the steps (K);
+//! 4. the total heat released over the steps at their scales (kJ per batch);
+//! 5. the route id, so ties have a fixed order.
+//!
+//! Every number sums the steps as the cases give them: the heat per kg of final product assumes
+//! each step's scale is the amount that step runs to make one batch of the final product.
+
+use crate::process::{CaseProcess, CriticalityClass, Scale};
+use crate::CAUTION;
+use std::cmp::Ordering;
+use std::collections::BTreeMap;
+
+/// One case as the roll-up sees it.
+#[derive(Clone, Copy, Debug)]
+pub struct RouteStep<'a> {
+    pub case_id: &'a str,
+    pub route_id: &'a str,
+    pub step: i64,
+    /// The case's process view, or its error message.
+    pub result: Result<&'a CaseProcess, &'a str>,
+}
+
+/// A step singled out by the roll-up.
+#[derive(Clone, Debug, PartialEq)]
+pub struct StepValue<T> {
+    pub case_id: String,
+    pub step: i64,
+    pub value: T,
+}
+
+/// A step that needs attention, with why.
+#[derive(Clone, Debug, PartialEq)]
+pub struct FlaggedStep {
+    pub case_id: String,
+    pub step: i64,
+    pub reasons: Vec<String>,
+}
+
+/// Heat over the whole route per unit of final product.
+#[derive(Clone, Debug, PartialEq)]
+pub enum HeatPerProduct {
+    /// kJ per kg of the last step's product (its scale was given in kg of that product).
+    KjPerKg { species: String, value: f64 },
+    /// kJ per mole of the last step's reaction (its scale was in mol of reaction).
+    KjPerMolOfFinalReaction(f64),
+}
+
+/// The roll-up of one route.
+#[derive(Clone, Debug, PartialEq)]
+pub struct RouteSummary {
+    pub route_id: String,
+    /// 1 = least hazardous in this batch (see the module's score).
+    pub rank: usize,
+    /// Case ids in step order.
+    pub case_ids: Vec<String>,
+    /// The first failed step (in step order), with its error message.
+    pub failed: Option<StepValue<String>>,
+    /// Sum of Q per batch over the steps, kJ; `None` when a step failed.
+    pub total_heat_kj: Option<f64>,
+    pub heat_per_final_product: Option<HeatPerProduct>,
+    /// Sum of the gas evolved over the steps, mol and m³ at 0 °C, 1 atm; `None` when a step failed.
+    pub total_gas_mol: Option<f64>,
+    pub total_gas_m3_at_stp: Option<f64>,
+    /// Over the steps that succeeded.
+    pub worst_adiabatic_rise_k: Option<StepValue<f64>>,
+    /// Over the steps whose class was assessed.
+    pub worst_class: Option<StepValue<CriticalityClass>>,
+    /// Steps whose class was not assessed (missing MTT or T_D24).
+    pub class_not_assessed: Vec<String>,
+    /// Steps with class ≥ 3, thermo data extrapolated (or a phase past its boiling or melting
+    /// point) at the process temperature, or estimated species.
+    pub flagged_steps: Vec<FlaggedStep>,
+    pub notes: Vec<String>,
+    /// [`CAUTION`], carried with every result.
+    pub caution: &'static str,
+}
+
+/// Roll up every route in `steps` and rank the routes. Steps with an empty `route_id` belong to
+/// no route and are skipped. The result is in rank order.
+pub fn roll_up(steps: &[RouteStep]) -> Vec<RouteSummary> {
+    let mut by_route: BTreeMap<&str, Vec<&RouteStep>> = BTreeMap::new();
+    for s in steps.iter().filter(|s| !s.route_id.is_empty()) {
+        by_route.entry(s.route_id).or_default().push(s);
+    }
+    let mut summaries: Vec<(ScoreKey, RouteSummary)> = by_route
+        .into_iter()
+        .map(|(id, mut route)| {
+            route.sort_by(|a, b| a.step.cmp(&b.step).then_with(|| a.case_id.cmp(b.case_id)));
+            roll_up_route(id, &route)
+        })
+        .collect();
+    summaries.sort_by(|a, b| a.0.cmp(&b.0));
+    summaries
+        .into_iter()
+        .enumerate()
+        .map(|(i, (_, mut s))| {
+            s.rank = i + 1;
+            s
+        })
+        .collect()
+}
+
+/// Orders routes: failed last, then worst class (not assessed = 6), worst ΔT_ad, total heat, id.
+#[derive(Debug)]
+struct ScoreKey {
+    failed: bool,
+    class: u8,
+    worst_rise_k: f64,
+    total_heat_kj: f64,
+    route_id: String,
+}
+
+impl ScoreKey {
+    fn cmp(&self, o: &ScoreKey) -> Ordering {
+        self.failed
+            .cmp(&o.failed)
+            .then(self.class.cmp(&o.class))
+            .then(self.worst_rise_k.total_cmp(&o.worst_rise_k))
+            .then(self.total_heat_kj.total_cmp(&o.total_heat_kj))
+            .then_with(|| self.route_id.cmp(&o.route_id))
+    }
+}
+
+fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> (ScoreKey, RouteSummary) {
+    let mut notes = Vec::new();
+    for w in route.windows(2) {
+        if w[0].step == w[1].step {
+            notes.push(format!("cases {} and {} are both step {}", w[0].case_id, w[1].case_id, w[0].step));
+        }
+    }
+    let failed = route.iter().find_map(|s| match s.result {
+        Err(m) => Some(StepValue {
+            case_id: s.case_id.to_string(),
+            step: s.step,
+            value: m.to_string(),
+        }),
+        Ok(_) => None,
+    });
+    let ok: Vec<(&RouteStep, &CaseProcess)> = route.iter().filter_map(|s| s.result.ok().map(|p| (*s, p))).collect();
+
+    let mut worst_rise: Option<StepValue<f64>> = None;
+    let mut worst_class: Option<StepValue<CriticalityClass>> = None;
+    let mut class_not_assessed = Vec::new();
+    let mut flagged_steps = Vec::new();
+    for (s, p) in &ok {
+        let rise = p.heat.adiabatic_rise_k;
+        if worst_rise.as_ref().is_none_or(|w| rise > w.value) {
+            worst_rise = Some(StepValue {
+                case_id: s.case_id.to_string(),
+                step: s.step,
+                value: rise,
+            });
+        }
+        let mut reasons = Vec::new();
+        match p.criticality.value() {
+            Some(c) => {
+                if worst_class.as_ref().is_none_or(|w| c.class > w.value) {
+                    worst_class = Some(StepValue {
+                        case_id: s.case_id.to_string(),
+                        step: s.step,
+                        value: c.class,
+                    });
+                }
+                if c.class >= CriticalityClass::Class3 {
+                    reasons.push(format!("criticality class {}", c.class.number()));
+                }
+            }
+            None => class_not_assessed.push(s.case_id.to_string()),
+        }
+        if !p.heat.in_valid_range {
+            reasons.push("thermo data extrapolated, or a phase past its boiling or melting point, at the process temperature".to_string());
+        }
+        if !p.estimated_species.is_empty() {
+            reasons.push(format!("estimated species: {}", p.estimated_species.join(", ")));
+        }
+        if !reasons.is_empty() {
+            flagged_steps.push(FlaggedStep {
+                case_id: s.case_id.to_string(),
+                step: s.step,
+                reasons,
+            });
+        }
+    }
+
+    let complete = failed.is_none();
+    let total_heat_kj = complete.then(|| ok.iter().map(|(_, p)| p.heat.heat_kj_per_batch).sum::<f64>());
+    let total_gas_mol = complete.then(|| ok.iter().map(|(_, p)| p.gas.gas_mol_per_batch).sum::<f64>());
+    let total_gas_m3_at_stp = complete.then(|| ok.iter().map(|(_, p)| p.gas.gas_m3_at_stp).sum::<f64>());
+    let heat_per_final_product = match (total_heat_kj, ok.last()) {
+        (Some(q), Some((_, last))) => Some(match &last.conditions.scale {
+            Scale::KgOfProduct { species, kg } => HeatPerProduct::KjPerKg {
+                species: species.clone(),
+                value: q / kg,
+            },
+            Scale::MolOfReaction(_) => HeatPerProduct::KjPerMolOfFinalReaction(q / last.conditions.reaction_mol),
+        }),
+        _ => None,
+    };
+
+    let key = ScoreKey {
+        failed: !complete,
+        class: if class_not_assessed.is_empty() {
+            worst_class.as_ref().map_or(6, |w| w.value.number())
+        } else {
+            6
+        },
+        worst_rise_k: worst_rise.as_ref().map_or(f64::INFINITY, |w| w.value),
+        total_heat_kj: total_heat_kj.unwrap_or(f64::INFINITY),
+        route_id: route_id.to_string(),
+    };
+    let summary = RouteSummary {
+        route_id: route_id.to_string(),
+        rank: 0,
+        case_ids: route.iter().map(|s| s.case_id.to_string()).collect(),
+        failed,
+        total_heat_kj,
+        heat_per_final_product,
+        total_gas_mol,
+        total_gas_m3_at_stp,
+        worst_adiabatic_rise_k: worst_rise,
+        worst_class,
+        class_not_assessed,
+        flagged_steps,
+        notes,
+        caution: CAUTION,
+    };
+    (key, summary)
+}

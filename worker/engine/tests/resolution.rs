@@ -1,0 +1,87 @@
+//! How written species find their data.
+
+use thermosieve_engine::formula::{parse_species, Phase};
+use thermosieve_engine::species::{self, ResolveError, SuppliedSpecies};
+use thermosieve_engine::{ScreenError, Screener, TemperatureGrid};
+
+fn resolve(s: &str) -> Result<species::Resolved, ResolveError> {
+    species::bundled().resolve(&parse_species(s, 0).unwrap())
+}
+
+#[test]
+fn bundled_table_loads_every_usable_record() {
+    // 1,130 NASA records (748 gas + 382 condensed in Cantera 3.2.0) less 25 deuterated ones.
+    assert_eq!(species::bundled().records.len(), 1105);
+    assert!(species::bundled().provenance.contains("Cantera 3.2.0"));
+}
+
+#[test]
+fn isomers_and_several_solids_are_errors_that_name_the_candidates() {
+    let e = resolve("C2H6O(g)").unwrap_err();
+    assert!(
+        matches!(&e, ResolveError::Ambiguous { candidates, .. } if candidates == &["C2H5OH", "CH3OCH3"]),
+        "{e}"
+    );
+    let e = resolve("C4H10(g)").unwrap_err();
+    assert!(
+        e.to_string().contains("C4H10,isobutane") && e.to_string().contains("C4H10,n-butane"),
+        "{e}"
+    );
+    assert_eq!(resolve("n-butane(g)").unwrap().formula.hill(), "C4H10");
+    assert_eq!(resolve("C2H5OH(g)").unwrap().label, "C2H5OH(g)");
+}
+
+#[test]
+fn untagged_species_take_the_stable_phase_at_298() {
+    assert_eq!(resolve("H2O").unwrap().phase, Phase::Liquid);
+    assert_eq!(resolve("CO2").unwrap().phase, Phase::Gas);
+    assert_eq!(resolve("Br2").unwrap().phase, Phase::Liquid);
+    assert_eq!(resolve("Fe").unwrap().phase, Phase::Solid);
+}
+
+#[test]
+fn polymorphs_form_a_series_and_tags_pick_one() {
+    let fe = resolve("Fe(cr)").unwrap();
+    assert_eq!(fe.origin.len(), 3, "alpha, gamma, delta iron");
+    let alpha = resolve("Fe(alpha)").unwrap();
+    assert_eq!(alpha.origin.len(), 1);
+    assert_eq!(resolve("C(gr)").unwrap().label, "C(gr)");
+    let sulfur = resolve("S(cr,rhombic)").unwrap();
+    assert_eq!(sulfur.origin.len(), 1);
+    assert!(matches!(resolve("NaCl(aq)"), Err(ResolveError::NotFound { .. })));
+    assert!(matches!(resolve("XeF8(g)"), Err(ResolveError::NotFound { .. })));
+}
+
+#[test]
+fn supplied_values_win_and_unknown_species_point_at_their_position() {
+    let mut s = Screener::new(species::bundled(), TemperatureGrid::new(vec![298.15, 350.0]).unwrap());
+    let e = s.screen("C2H4(g) + H2O(g) -> C2H5OH(g) + Xe2O(s)").unwrap_err();
+    assert!(matches!(e, ScreenError::Species { position: 32, .. }), "{e}");
+    // Illustrative values for a fictional species (not a check of data).
+    s.supply(
+        "HX(l)",
+        SuppliedSpecies {
+            formula: parse_species("HBr", 0).unwrap().formula.unwrap(),
+            phase: Phase::Liquid,
+            dhf_kj_per_mol: -100.0,
+            s_j_per_mol_k: 100.0,
+            cp_j_per_mol_k: None,
+            t_min_k: 298.15,
+            t_max_k: 298.15,
+            dhf_uncertainty_kj_per_mol: Some(5.0),
+        },
+    );
+    let r = s.screen("H2(g) + Br2(l) -> 2 HX(l)").unwrap();
+    // 2 × (−100) − 0 − 0: Br2(l) and H2(g) are reference elements with ΔfH° = 0 in the NASA data.
+    assert!(
+        (r.standard.delta_h_kj_per_mol + 200.0).abs() < 0.01,
+        "{}",
+        r.standard.delta_h_kj_per_mol
+    );
+    // Without Cp, points away from 298.15 K are flagged.
+    assert!(!r.points[1].in_valid_range);
+    assert!(
+        r.delta_h_uncertainty_kj_per_mol.is_none(),
+        "H2 and Br2 have no uncertainty in the NASA files"
+    );
+}

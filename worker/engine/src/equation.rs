@@ -225,13 +225,21 @@ fn split_reaction_smiles(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
     let gts: Vec<usize> = s.match_indices('>').map(|(i, _)| i).collect();
     if gts.len() != 2 {
         let at = gts.get(2).copied().unwrap_or(s.len());
-        return Err(SyntaxError::Unexpected { position: at, expected: "a reaction SMILES with exactly two '>' (reactants>>products or reactants>agents>products)", found: format!("{} '>'", gts.len()) });
+        return Err(SyntaxError::Unexpected {
+            position: at,
+            expected: "a reaction SMILES with exactly two '>' (reactants>>products or reactants>agents>products)",
+            found: format!("{} '>'", gts.len()),
+        });
     }
     let part = |from: usize, to: usize, what: &'static str, required: bool| -> Result<Vec<RawTerm<'_>>, SyntaxError> {
         let text = &s[from..to];
         if text.trim().is_empty() {
             if required {
-                return Err(SyntaxError::Unexpected { position: from, expected: what, found: "nothing".into() });
+                return Err(SyntaxError::Unexpected {
+                    position: from,
+                    expected: what,
+                    found: "nothing".into(),
+                });
             }
             return Ok(Vec::new());
         }
@@ -241,9 +249,17 @@ fn split_reaction_smiles(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
             let lead = piece.len() - piece.trim_start().len();
             let t = piece.trim();
             if t.is_empty() {
-                return Err(SyntaxError::Unexpected { position: start, expected: what, found: "an empty component between '.'".into() });
+                return Err(SyntaxError::Unexpected {
+                    position: start,
+                    expected: what,
+                    found: "an empty component between '.'".into(),
+                });
             }
-            out.push(RawTerm { coefficient: None, text: t, position: start + lead });
+            out.push(RawTerm {
+                coefficient: None,
+                text: t,
+                position: start + lead,
+            });
             start += piece.len() + 1;
         }
         Ok(out)
@@ -252,9 +268,19 @@ fn split_reaction_smiles(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
     let agents = part(gts[0] + 1, gts[1], "an agent SMILES", false)?;
     let products = part(gts[1] + 1, s.len(), "a product SMILES", true)?;
     if reactants.len() + products.len() + agents.len() > MAX_TERMS {
-        return Err(SyntaxError::Limit { position: 0, what: "species terms per equation", limit: MAX_TERMS as u64 });
+        return Err(SyntaxError::Limit {
+            position: 0,
+            what: "species terms per equation",
+            limit: MAX_TERMS as u64,
+        });
     }
-    Ok(RawEquation { reactants, products, arrow: Arrow::Forward, notation: Notation::Smiles, agents })
+    Ok(RawEquation {
+        reactants,
+        products,
+        arrow: Arrow::Forward,
+        notation: Notation::Smiles,
+        agents,
+    })
 }
 
 fn split_side<'a>(s: &'a str, base: usize, side: &'static str, out: &mut Vec<RawTerm<'a>>) -> Result<(), SyntaxError> {
@@ -336,7 +362,11 @@ pub fn split_equation(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
 pub fn parse_equation(s: &str) -> Result<Equation, SyntaxError> {
     let raw = split_equation(s)?;
     if raw.notation == Notation::Smiles {
-        return Err(SyntaxError::Unexpected { position: 0, expected: "a formula equation (read reaction SMILES with split_equation and the structures module)", found: "a reaction SMILES".into() });
+        return Err(SyntaxError::Unexpected {
+            position: 0,
+            expected: "a formula equation (read reaction SMILES with split_equation and the structures module)",
+            found: "a reaction SMILES".into(),
+        });
     }
     let term = |t: &RawTerm| -> Result<Term, SyntaxError> {
         Ok(Term {

@@ -12,11 +12,11 @@
 use crate::balance::{self, Balance, BalanceError, Column, Outcome, Side};
 use crate::equation::{split_equation, Arrow, Notation, RawTerm};
 use crate::formula::{parse_species, SyntaxError};
+use crate::rational::Rational;
 use crate::smiles::SmilesError;
 use crate::species::Origin;
-use crate::structures::{self, DefaultPhase, SmilesSpeciesError, Structures};
-use crate::rational::Rational;
 use crate::species::{from_supplied, ResolveError, Resolved, State, SuppliedSpecies, Table, T_REF_K};
+use crate::structures::{self, DefaultPhase, SmilesSpeciesError, Structures};
 use crate::thermo::{self, TemperatureGrid, ThermoPoint, LADDER};
 use std::collections::HashMap;
 use std::hash::{BuildHasherDefault, Hasher};
@@ -371,7 +371,10 @@ impl<'t> Screener<'t> {
             delta_g_zero_k,
             delta_h_uncertainty_kj_per_mol: sq.map(f64::sqrt),
             valid_range_k: (lo, hi),
-            estimated_species: species.iter().filter(|s| s.species.resolved.origin.iter().any(|o| matches!(o, Origin::Estimated { .. }))).count(),
+            estimated_species: species
+                .iter()
+                .filter(|s| s.species.resolved.origin.iter().any(|o| matches!(o, Origin::Estimated { .. })))
+                .count(),
             species,
             notes,
             agents: Vec::new(),

@@ -607,8 +607,8 @@ impl Molecule {
         }
         matcher.solve();
         let bare_n = (0..n).any(|i| need[i] && self.atoms[i].element == 7 && !self.atoms[i].bracket);
-        for i in 0..n {
-            if need[i] && matcher.mate[i] == NONE {
+        for (i, &needed) in need.iter().enumerate() {
+            if needed && matcher.mate[i] == NONE {
                 let a = &self.atoms[i];
                 let hint = if bare_n { " (a pyrrole-type nitrogen is written [nH])" } else { "" };
                 return err(
@@ -1075,9 +1075,8 @@ impl Molecule {
             if order_seen[s] {
                 continue;
             }
-            let mut stack = vec![s];
             order_seen[s] = true;
-            self.dfs_tree(s, rank, &mut order_seen, &mut tree_bond, &mut stack);
+            self.dfs_tree(s, rank, &mut order_seen, &mut tree_bond);
         }
         for &s in &starts {
             if visited[s] {
@@ -1097,10 +1096,12 @@ impl Molecule {
         nb
     }
 
-    fn dfs_tree(&self, v: usize, rank: &[u32], seen: &mut [bool], tree: &mut [bool], _stack: &mut Vec<usize>) {
-        // Iterative DFS in the same visiting order as write_from.
-        let mut stack: Vec<(usize, Vec<(usize, usize)>, usize)> = vec![(v, self.sorted_neighbours(v, rank), 0)];
-        while let Some((_, nbs, next)) = stack.last_mut() {
+    /// Mark the bonds of a depth-first tree from `v`, visiting neighbours in rank order (the
+    /// order [`Molecule::write_from`] writes them in); the other bonds become ring closures.
+    fn dfs_tree(&self, v: usize, rank: &[u32], seen: &mut [bool], tree: &mut [bool]) {
+        // Each frame: the atom's neighbours in rank order and the next one to look at.
+        let mut stack: Vec<(Vec<(usize, usize)>, usize)> = vec![(self.sorted_neighbours(v, rank), 0)];
+        while let Some((nbs, next)) = stack.last_mut() {
             if *next >= nbs.len() {
                 stack.pop();
                 continue;
@@ -1110,8 +1111,7 @@ impl Molecule {
             if !seen[w] {
                 seen[w] = true;
                 tree[b] = true;
-                let nb = self.sorted_neighbours(w, rank);
-                stack.push((w, nb, 0));
+                stack.push((self.sorted_neighbours(w, rank), 0));
             }
         }
     }

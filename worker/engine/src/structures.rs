@@ -231,12 +231,29 @@ pub fn resolve_smiles(
             .iter()
             .find_map(|n| table.resolve(&spec_for(n, Some(Phase::Gas))).ok().map(|g| (n, g)))
         {
-            let e = Estimate::of(&m).map_err(|e| ResolveError::NotEstimable {
-                species: format!("{smiles}(l)"),
-                reason: e.to_string(),
-            })?;
+            // A liquid from the gas where the estimated Tb says it is one at 298.15 K; a
+            // permanent gas (H2, CO2, ethylene) in a liquid-phase case stays a gas, with a note.
+            match Estimate::of(&m) {
+                Ok(e) if e.tb_k > T_REF_K => {
+                    return Ok(SmilesSpecies {
+                        resolved: liquid_from_gas(&gas, &e, name)?,
+                        key,
+                    })
+                }
+                _ => {
+                    return Ok(SmilesSpecies {
+                        resolved: fallback(gas, smiles, phase),
+                        key,
+                    })
+                }
+            }
+        }
+    }
+    if phase == DefaultPhase::Solid {
+        // No solid record: the stable phase at 298.15 K is used, with a note.
+        if let Some(r) = names.iter().find_map(|n| table.resolve(&spec_for(n, None)).ok()) {
             return Ok(SmilesSpecies {
-                resolved: liquid_from_gas(&gas, &e, name)?,
+                resolved: fallback(r, smiles, phase),
                 key,
             });
         }
@@ -279,6 +296,18 @@ pub fn resolve_smiles(
     notes.append(&mut r.notes);
     r.notes = notes;
     Ok(SmilesSpecies { resolved: r, key })
+}
+
+/// A tabulated species used in another phase than the case's default, saying so.
+fn fallback(mut r: Resolved, smiles: &str, phase: DefaultPhase) -> Resolved {
+    r.notes.retain(|n| !n.contains("has no phase tag"));
+    r.notes.push(format!(
+        "{smiles}: the default phase is {} but the bundled table has no {} data for it; {} is used",
+        phase.name(),
+        phase.name(),
+        r.label
+    ));
+    r
 }
 
 /// The liquid from a tabulated gas and an estimated vaporization at 298.15 K.

@@ -74,7 +74,16 @@ fn default_phase_decides_the_record() {
         .iter()
         .all(|t| t.species.resolved.phase == thermosieve_engine::formula::Phase::Gas));
     assert_ne!(g.standard.delta_h_kj_per_mol, l.standard.delta_h_kj_per_mol);
-    let e = s.screen_with("CCO>>C=C.O", DefaultPhase::Solid).unwrap_err();
+    // Permanent gases keep their gas data in a liquid-phase case, with a note.
+    let l = s.screen_with("C=C.O>>CCO", DefaultPhase::Liquid).unwrap();
+    assert!(
+        l.balanced_equation.starts_with("C2H4(g) + H2O(l) -> C2H5OH(l)"),
+        "{}",
+        l.balanced_equation
+    );
+    assert!(l.notes.iter().any(|n| n.contains("default phase is liquid")));
+    // Joback has no solids: an estimated species in a solid-phase case is an error.
+    let e = s.screen_with("CC(C)(C)OC>>CC(C)=C.CO", DefaultPhase::Solid).unwrap_err();
     assert!(e.to_string().contains("solid"), "{e}");
 }
 

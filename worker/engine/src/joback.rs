@@ -24,6 +24,7 @@ use crate::elements::Z;
 use crate::formula::{Formula, Phase};
 use crate::smiles::Molecule;
 use crate::species::{Origin, Resolved, Segment, R, T_REF_K};
+use std::borrow::Cow;
 
 /// The method, as results name it.
 pub const METHOD: &str = "Joback & Reid (1987) group contributions (Poling et al., 5th ed., Table 2-2)";
@@ -540,7 +541,7 @@ pub struct Groups {
 pub struct WeakSpot {
     /// Occurrences of one kind add linearly; kinds add in quadrature.
     pub kind: &'static str,
-    pub what: String,
+    pub what: Cow<'static, str>,
     pub sigma_kj_per_mol: f64,
 }
 
@@ -612,7 +613,7 @@ impl Assign<'_> {
         self.counts[group - 1] += 1;
     }
 
-    fn weak(&mut self, kind: &'static str, what: impl Into<String>, sigma: f64) {
+    fn weak(&mut self, kind: &'static str, what: impl Into<Cow<'static, str>>, sigma: f64) {
         self.weak.push(WeakSpot {
             kind,
             what: what.into(),
@@ -849,15 +850,18 @@ impl Assign<'_> {
         }
         // Rings: strain is not in the ring groups (cyclopropane ≈ 115 kJ/mol), unsaturation in a
         // small ring still less; aliphatic rings are fitted loosely.
-        for ring in m.rings(8) {
-            let double_inside = m
-                .bonds
-                .iter()
-                .any(|b| b.kekule_order >= 2 && ring.binary_search(&b.a).is_ok() && ring.binary_search(&b.b).is_ok());
-            let triple_inside = m
-                .bonds
-                .iter()
-                .any(|b| b.kekule_order == 3 && ring.binary_search(&b.a).is_ok() && ring.binary_search(&b.b).is_ok());
+        let rings = m.rings();
+        for ring in rings {
+            let (mut double_inside, mut triple_inside) = (false, false);
+            for &i in ring {
+                for (w, b) in m.neighbours(i) {
+                    let order = m.bonds[b].kekule_order;
+                    if order >= 2 && ring.binary_search(&w).is_ok() {
+                        double_inside = true;
+                        triple_inside |= order == 3;
+                    }
+                }
+            }
             let aromatic = ring.iter().all(|&i| m.atoms[i].aromatic);
             match (ring.len(), double_inside) {
                 (3, true) => self.weak("strain", "an unsaturated three-membered ring", 120.0),
@@ -881,12 +885,12 @@ impl Assign<'_> {
         }
         for i in 0..n {
             let a = &m.atoms[i];
-            let ring_bonds: Vec<usize> = m.neighbours(i).filter(|&(_, b)| m.bonds[b].in_ring).map(|x| x.1).collect();
-            if ring_bonds.len() >= 3 {
-                let smallest = ring_bonds
+            let ring_bonds = m.neighbours(i).filter(|&(_, b)| m.bonds[b].in_ring).count();
+            if ring_bonds >= 3 {
+                let smallest = rings
                     .iter()
-                    .filter_map(|&b| m.ring_path(b, 8))
-                    .map(|r| r.len())
+                    .filter(|r| r.binary_search(&i).is_ok())
+                    .map(Vec::len)
                     .min()
                     .unwrap_or(8);
                 if smallest <= 5 {
@@ -931,11 +935,14 @@ impl Assign<'_> {
             }
         }
         // Carbonyl carbons next to each other or carrying a halogen.
-        let carbonyl = |i: usize| {
-            m.atoms[i].element == 6
-                && m.neighbours(i)
-                    .any(|(w, b)| m.bonds[b].kekule_order == 2 && m.atoms[w].element == 8 && m.degree(w) == 1)
-        };
+        let carbonyl: Vec<bool> = (0..n)
+            .map(|i| {
+                m.atoms[i].element == 6
+                    && m.neighbours(i)
+                        .any(|(w, b)| m.bonds[b].kekule_order == 2 && m.atoms[w].element == 8 && m.degree(w) == 1)
+            })
+            .collect();
+        let carbonyl = |i: usize| carbonyl[i];
         for b in &m.bonds {
             if carbonyl(b.a) && carbonyl(b.b) {
                 self.weak("adjacent carbonyls", "two carbonyl groups bonded to each other", 30.0);
@@ -1082,13 +1089,19 @@ impl Groups {
 
     /// Ideal-gas Cp = a + bT + cT² + dT³ (J/(mol·K)): the four coefficients.
     pub fn cp_coefficients(&self) -> Result<[f64; 4], JobackError> {
-        let part = |k: usize| move |g: &Group| g.cp.map(|c| c[k]);
-        Ok([
-            self.sum("Cp", part(0))? - 37.93,
-            self.sum("Cp", part(1))? + 0.210,
-            self.sum("Cp", part(2))? - 3.91e-4,
-            self.sum("Cp", part(3))? + 2.06e-7,
-        ])
+        let mut c = [-37.93, 0.210, -3.91e-4, 2.06e-7];
+        for (k, &n) in self.counts.iter().enumerate() {
+            if n > 0 {
+                let g = GROUPS[k].cp.ok_or(JobackError::MissingContribution {
+                    property: "Cp",
+                    group: GROUPS[k].name,
+                })?;
+                for (acc, v) in c.iter_mut().zip(g) {
+                    *acc += n as f64 * v;
+                }
+            }
+        }
+        Ok(c)
     }
 
     /// ΔvapH at the normal boiling point, kJ/mol: 15.30 + Σ.
@@ -1293,7 +1306,17 @@ impl Estimate {
         let origin = vec![Origin::Estimated {
             method: METHOD.to_string(),
         }];
-        let weak: Vec<&str> = self.groups.weak_spots.iter().map(|w| w.what.as_str()).collect();
+        let mut counted: Vec<(&str, usize)> = Vec::new();
+        for w in &self.groups.weak_spots {
+            match counted.iter_mut().find(|c| c.0 == w.what.as_ref()) {
+                Some(c) => c.1 += 1,
+                None => counted.push((w.what.as_ref(), 1)),
+            }
+        }
+        let weak: Vec<String> = counted
+            .iter()
+            .map(|&(w, n)| if n > 1 { format!("{w} (×{n})") } else { w.to_string() })
+            .collect();
         if !weak.is_empty() {
             notes.push(format!("{label_base}: estimate widened for {}", weak.join("; ")));
         }

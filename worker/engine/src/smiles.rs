@@ -31,6 +31,8 @@ pub const MAX_SMILES_BYTES: usize = 2000;
 pub const MAX_HEAVY_ATOMS: usize = 500;
 /// Most atoms of any kind as written (explicit `[H]` included).
 pub const MAX_ATOMS: usize = 1000;
+/// Largest ring [`Molecule::rings`] lists (aromaticity and the Joback ring rules look no further).
+pub const MAX_RING_SIZE: usize = 8;
 /// Largest absolute formal charge on one atom.
 pub const MAX_ATOM_CHARGE: i32 = 15;
 
@@ -103,6 +105,10 @@ pub struct Molecule {
     /// `adjacency[adj_start[i]..adj_start[i+1]]` = (neighbour, bond index) of atom i.
     adj_start: Vec<u32>,
     adjacency: Vec<(u32, u32)>,
+    /// Smallest ring (up to 8 atoms) through each ring bond, sorted atom indices, no repeats.
+    ring_list: Vec<Vec<usize>>,
+    /// Connected parts (found with the rings).
+    components: usize,
 }
 
 /// What went wrong reading a SMILES, and where (byte offset into the text given).
@@ -349,11 +355,12 @@ impl Parser<'_> {
         self.push_atom(atom)
     }
 
-    fn add_bond(&mut self, a: usize, b: usize, written: Option<BondOrder>, position: usize) -> Result<(), SmilesError> {
+    /// `closure`: a ring-closure bond, the only kind that can repeat an existing bond.
+    fn add_bond(&mut self, a: usize, b: usize, written: Option<BondOrder>, position: usize, closure: bool) -> Result<(), SmilesError> {
         if a == b {
             return err(position, "a ring closure back to the same atom");
         }
-        if self.bonds.iter().any(|x| (x.a == a && x.b == b) || (x.a == b && x.b == a)) {
+        if closure && self.bonds.iter().any(|x| (x.a == a && x.b == b) || (x.a == b && x.b == a)) {
             return err(position, "a second bond between the same two atoms");
         }
         let order = written.unwrap_or(if self.atoms[a].aromatic && self.atoms[b].aromatic {
@@ -458,7 +465,7 @@ impl Parser<'_> {
                                 }
                                 (a, b) => a.or(b),
                             };
-                            self.add_bond(open.atom, p, order, at)?;
+                            self.add_bond(open.atom, p, order, at, true)?;
                         }
                     }
                 }
@@ -480,7 +487,7 @@ impl Parser<'_> {
                         }
                     };
                     if let Some(p) = prev {
-                        self.add_bond(p, k, bond.take().map(|b| b.0), at)?;
+                        self.add_bond(p, k, bond.take().map(|b| b.0), at, false)?;
                     } else if let Some((_, bpos)) = bond {
                         return err(bpos, "a bond with no atom before it");
                     }
@@ -520,8 +527,9 @@ impl Molecule {
             s: smiles.as_bytes(),
             i: 0,
             base,
-            atoms: Vec::new(),
-            bonds: Vec::new(),
+            // At most one atom per byte; a typical SMILES has about one atom per 1.3 bytes.
+            atoms: Vec::with_capacity(smiles.len()),
+            bonds: Vec::with_capacity(smiles.len()),
         };
         p.parse()?;
         let heavy = p.atoms.iter().filter(|a| a.element != 1).count();
@@ -533,6 +541,8 @@ impl Molecule {
             bonds: p.bonds,
             adj_start: Vec::new(),
             adjacency: Vec::new(),
+            ring_list: Vec::new(),
+            components: 0,
         };
         m.build_adjacency();
         m.kekulize()?;
@@ -540,6 +550,7 @@ impl Molecule {
         m.charge_separate();
         m.fold_explicit_hydrogens();
         m.perceive_rings();
+        m.ring_list = m.find_rings(MAX_RING_SIZE);
         m.perceive_aromaticity();
         Ok(m)
     }
@@ -599,12 +610,13 @@ impl Molecule {
         }
         let n = self.atoms.len();
         let need: Vec<bool> = (0..n).map(|i| self.atoms[i].aromatic && self.needs_pi(i)).collect();
-        let mut matcher = Matching::new(n);
-        for (k, b) in self.bonds.iter().enumerate() {
-            if b.order == BondOrder::Aromatic && need[b.a] && need[b.b] {
-                matcher.add_edge(b.a, b.b, k);
-            }
-        }
+        let edges: Vec<(u32, u32)> = self
+            .bonds
+            .iter()
+            .filter(|b| b.order == BondOrder::Aromatic && need[b.a] && need[b.b])
+            .map(|b| (b.a as u32, b.b as u32))
+            .collect();
+        let mut matcher = Matching::new(n, &edges);
         matcher.solve();
         let bare_n = (0..n).any(|i| need[i] && self.atoms[i].element == 7 && !self.atoms[i].bracket);
         for (i, &needed) in need.iter().enumerate() {
@@ -728,10 +740,12 @@ impl Molecule {
         let mut is_bridge = vec![false; self.bonds.len()];
         // Stack of (atom, bond used to enter it, next adjacency offset).
         let mut stack: Vec<(usize, usize, usize)> = Vec::new();
+        self.components = 0;
         for root in 0..n {
             if disc[root] != u32::MAX {
                 continue;
             }
+            self.components += 1;
             disc[root] = time;
             low[root] = time;
             time += 1;
@@ -789,7 +803,7 @@ impl Molecule {
         if !candidate {
             return;
         }
-        let rings = self.rings(8);
+        let rings = std::mem::take(&mut self.ring_list);
         // Fused rings: a ring whose double bond leaves it into a ring already found aromatic
         // (naphthalene's Kekulé form) is judged after that ring, so repeat until nothing changes.
         let mut done = vec![false; rings.len()];
@@ -808,6 +822,7 @@ impl Molecule {
                 break;
             }
         }
+        self.ring_list = rings;
     }
 
     fn huckel(&self, ring: &[usize]) -> bool {
@@ -842,12 +857,17 @@ impl Molecule {
         electrons % 4 == 2
     }
 
-    /// The smallest ring (at most `max_size` atoms) through each ring bond, without repeats;
-    /// each ring as its sorted atom indices.
-    pub fn rings(&self, max_size: usize) -> Vec<Vec<usize>> {
+    /// The smallest ring of at most [`MAX_RING_SIZE`] atoms through each ring bond, without
+    /// repeats; each ring as its sorted atom indices (found once, when the SMILES is read).
+    pub fn rings(&self) -> &[Vec<usize>] {
+        &self.ring_list
+    }
+
+    fn find_rings(&self, max_size: usize) -> Vec<Vec<usize>> {
         let mut rings: Vec<Vec<usize>> = Vec::new();
+        let mut scratch = RingScratch::new(self.atoms.len());
         for k in 0..self.bonds.len() {
-            let Some(mut ring) = self.ring_path(k, max_size) else {
+            let Some(mut ring) = self.ring_path_with(k, max_size, &mut scratch) else {
                 continue;
             };
             ring.sort_unstable();
@@ -860,35 +880,54 @@ impl Molecule {
 
     /// Atoms of the smallest ring (at most `max_size` atoms) through bond `k`.
     pub fn ring_path(&self, k: usize, max_size: usize) -> Option<Vec<usize>> {
+        self.ring_path_with(k, max_size, &mut RingScratch::new(self.atoms.len()))
+    }
+
+    /// Breadth-first from one end of bond `k` to the other without using `k`.
+    fn ring_path_with(&self, k: usize, max_size: usize, s: &mut RingScratch) -> Option<Vec<usize>> {
         let b = self.bonds[k];
         if !b.in_ring {
             return None;
         }
-        let mut parent: Vec<(usize, usize)> = vec![(b.a, usize::MAX)];
-        let mut frontier = vec![b.a];
-        for _ in 1..max_size {
-            let mut next = Vec::new();
-            for &v in &frontier {
-                for (w, bond) in self.neighbours(v) {
-                    if bond == k || parent.iter().any(|p| p.0 == w) {
-                        continue;
-                    }
-                    parent.push((w, v));
-                    if w == b.b {
-                        let mut path = vec![w];
-                        let mut cur = v;
-                        while cur != usize::MAX {
-                            path.push(cur);
-                            cur = parent.iter().find(|p| p.0 == cur).map_or(usize::MAX, |p| p.1);
-                        }
-                        return Some(path);
-                    }
-                    next.push(w);
+        s.queue.clear();
+        s.queue.push(b.a as u32);
+        s.parent[b.a] = b.a as u32;
+        s.depth[b.a] = 1;
+        let mut head = 0;
+        let mut found = None;
+        'search: while head < s.queue.len() {
+            let v = s.queue[head] as usize;
+            head += 1;
+            if s.depth[v] as usize >= max_size {
+                continue;
+            }
+            for (w, bond) in self.neighbours(v) {
+                // A ring is made of ring bonds only, so bridges are never crossed.
+                if bond == k || s.depth[w] != 0 || !self.bonds[bond].in_ring {
+                    continue;
+                }
+                s.parent[w] = v as u32;
+                s.depth[w] = s.depth[v] + 1;
+                s.queue.push(w as u32);
+                if w == b.b {
+                    found = Some(w);
+                    break 'search;
                 }
             }
-            frontier = next;
         }
-        None
+        let path = found.map(|end| {
+            let mut path = vec![end];
+            let mut cur = end;
+            while cur != b.a {
+                cur = s.parent[cur] as usize;
+                path.push(cur);
+            }
+            path
+        });
+        for &v in &s.queue {
+            s.depth[v as usize] = 0;
+        }
+        path
     }
 
     /// Element counts (hydrogens included) and net charge.
@@ -916,27 +955,7 @@ impl Molecule {
 
     /// Number of connected parts (`.`-separated pieces that share no bond).
     pub fn component_count(&self) -> usize {
-        let n = self.atoms.len();
-        let mut seen = vec![false; n];
-        let mut parts = 0;
-        let mut stack = Vec::new();
-        for s in 0..n {
-            if seen[s] {
-                continue;
-            }
-            parts += 1;
-            seen[s] = true;
-            stack.push(s);
-            while let Some(v) = stack.pop() {
-                for (w, _) in self.neighbours(v) {
-                    if !seen[w] {
-                        seen[w] = true;
-                        stack.push(w);
-                    }
-                }
-            }
-        }
-        parts
+        self.components
     }
 
     /// Length of the smallest ring through bond `k` when it is at most `max_size`, else `None`.
@@ -983,14 +1002,26 @@ impl Molecule {
         let keys: Vec<u64> = (0..n).map(invariant).collect();
         let mut rank = ranks_from_keys(&keys);
         let mut scratch = Refiner::default();
+        let mut counts: Vec<u32> = Vec::with_capacity(n);
         loop {
             refine(self, &mut rank, &mut scratch);
-            // Tie-break: the lowest tied rank keeps one atom (the first in input order), the rest
-            // move up by one; refine again until every rank is distinct.
-            let mut counts = vec![0u32; n];
+            counts.clear();
+            counts.resize(n, 0);
             for &r in &rank {
                 counts[r as usize] += 1;
             }
+            // Tied leaves of one parent (the methyls of a t-butyl, the F of a CF3) are swapped by
+            // an automorphism: give them consecutive ranks in input order, no refinement needed
+            // (their parent's class holds only that parent, or the class would span parents).
+            if self.split_leaf_ties(&mut rank, &counts, &mut scratch.leaf) {
+                counts.clear();
+                counts.resize(n, 0);
+                for &r in &rank {
+                    counts[r as usize] += 1;
+                }
+            }
+            // Tie-break: the lowest tied rank keeps one atom (the first in input order), the rest
+            // move up by one; refine again until every rank is distinct.
             let Some(tied) = (0..n).find(|&r| counts[r] > 1) else {
                 break;
             };
@@ -1002,6 +1033,44 @@ impl Molecule {
             }
         }
         rank
+    }
+
+    /// Split every tied class made only of leaves on one parent; true when any was split.
+    fn split_leaf_ties(&self, rank: &mut [u32], counts: &[u32], parent: &mut Vec<u32>) -> bool {
+        const UNSET: u32 = u32::MAX;
+        const MIXED: u32 = u32::MAX - 1;
+        let n = rank.len();
+        parent.clear();
+        parent.resize(n, UNSET);
+        for (i, &r) in rank.iter().enumerate() {
+            let r = r as usize;
+            if counts[r] < 2 {
+                continue;
+            }
+            let p = if self.degree(i) == 1 {
+                self.neighbours(i).next().map_or(MIXED, |(w, _)| w as u32)
+            } else {
+                MIXED
+            };
+            parent[r] = match parent[r] {
+                UNSET => p,
+                q if q == p => q,
+                _ => MIXED,
+            };
+        }
+        let splits = |r: usize| counts[r] >= 2 && parent[r] < MIXED;
+        if !(0..n).any(splits) {
+            return false;
+        }
+        let mut offset = vec![0u32; n];
+        for r in rank.iter_mut() {
+            let c = *r as usize;
+            if splits(c) {
+                *r = c as u32 + offset[c];
+                offset[c] += 1;
+            }
+        }
+        true
     }
 
     /// The identity of the structure: atoms in canonical order with element, isotope, charge,
@@ -1021,17 +1090,18 @@ impl Molecule {
                 out.push(';');
             }
             if let Some(iso) = a.isotope {
-                out.push_str(&iso.to_string());
+                push_number(&mut out, iso as u32);
             }
             out.push_str(elements::symbol(a.element));
             if a.hydrogens > 0 {
                 out.push('H');
-                out.push_str(&a.hydrogens.to_string());
+                push_number(&mut out, a.hydrogens as u32);
             }
             out.push('v');
-            out.push_str(&a.valence.to_string());
+            push_number(&mut out, a.valence as u32);
             if a.charge != 0 {
-                out.push_str(&format!("{:+}", a.charge));
+                out.push(if a.charge > 0 { '+' } else { '-' });
+                push_number(&mut out, a.charge.unsigned_abs() as u32);
             }
         }
         out.push('|');
@@ -1045,9 +1115,9 @@ impl Molecule {
             if k > 0 {
                 out.push(',');
             }
-            out.push_str(&x.to_string());
+            push_number(&mut out, *x);
             out.push('-');
-            out.push_str(&y.to_string());
+            push_number(&mut out, *y);
         }
         out
     }
@@ -1208,9 +1278,30 @@ impl Molecule {
             bonds,
             adj_start: Vec::new(),
             adjacency: Vec::new(),
+            ring_list: Vec::new(),
+            components: 0,
         };
         m.build_adjacency();
+        m.perceive_rings();
+        m.ring_list = m.find_rings(MAX_RING_SIZE);
         m
+    }
+}
+
+/// Decimal digits of `v` appended without a temporary string.
+fn push_number(out: &mut String, mut v: u32) {
+    let mut buf = [0u8; 10];
+    let mut k = buf.len();
+    loop {
+        k -= 1;
+        buf[k] = b'0' + (v % 10) as u8;
+        v /= 10;
+        if v == 0 {
+            break;
+        }
+    }
+    for &d in &buf[k..] {
+        out.push(d as char);
     }
 }
 
@@ -1232,6 +1323,23 @@ fn push_ring(out: &mut String, id: usize) {
     }
 }
 
+/// Reusable breadth-first search state for ring finding (depth 0 = not reached).
+struct RingScratch {
+    parent: Vec<u32>,
+    depth: Vec<u16>,
+    queue: Vec<u32>,
+}
+
+impl RingScratch {
+    fn new(n: usize) -> RingScratch {
+        RingScratch {
+            parent: vec![0; n],
+            depth: vec![0; n],
+            queue: Vec::with_capacity(n),
+        }
+    }
+}
+
 /// Rank = number of atoms with a smaller key (tied atoms share the lowest position).
 fn ranks_from_keys(keys: &[u64]) -> Vec<u32> {
     let mut idx: Vec<u32> = (0..keys.len() as u32).collect();
@@ -1250,45 +1358,87 @@ fn ranks_from_keys(keys: &[u64]) -> Vec<u32> {
 
 #[derive(Default)]
 struct Refiner {
+    leaf: Vec<u32>,
+    order: Vec<u32>,
+    next: Vec<u32>,
+    packed: Vec<(u128, u32)>,
+    seen: Vec<bool>,
     sig: Vec<u32>,
     start: Vec<usize>,
     idx: Vec<u32>,
 }
 
 /// Refine ranks by (rank, sorted neighbour ranks) until the number of classes stops growing.
+/// Ranks are below 1024 (at most [`MAX_ATOMS`] atoms), so an atom of degree ≤ 11 packs its
+/// signature into one u128 (rank in the top bits, then the sorted neighbour ranks); within one
+/// rank class degrees are equal, so comparing packed values is comparing the lists.
 fn refine(m: &Molecule, rank: &mut [u32], s: &mut Refiner) {
     let n = rank.len();
-    let mut classes = count_classes(rank);
+    let packable = n <= 1024 && (0..n).all(|i| m.degree(i) <= 11);
+    if packable {
+        refine_packed(m, rank, s);
+        return;
+    }
+    let mut classes = count_classes(rank, &mut s.seen);
     loop {
         if classes == n {
             return;
         }
-        s.sig.clear();
-        s.start.clear();
-        for i in 0..n {
+        let new_classes = if packable {
+            s.packed.clear();
+            for i in 0..n {
+                let mut nb = [0u32; 11];
+                let d = m.degree(i);
+                for (slot, (w, _)) in nb.iter_mut().zip(m.neighbours(i)) {
+                    *slot = rank[w];
+                }
+                nb[..d].sort_unstable();
+                let mut key = (rank[i] as u128) << 110;
+                for (j, &r) in nb[..d].iter().enumerate() {
+                    key |= (r as u128) << (100 - 10 * j);
+                }
+                s.packed.push((key, i as u32));
+            }
+            s.packed.sort_unstable();
+            let mut c = 0;
+            for k in 0..n {
+                let (key, i) = s.packed[k];
+                if k == 0 || s.packed[k - 1].0 != key {
+                    c += 1;
+                    rank[i as usize] = k as u32;
+                } else {
+                    rank[i as usize] = rank[s.packed[k - 1].1 as usize];
+                }
+            }
+            c
+        } else {
+            s.sig.clear();
+            s.start.clear();
+            for i in 0..n {
+                s.start.push(s.sig.len());
+                s.sig.push(rank[i]);
+                let from = s.sig.len();
+                s.sig.extend(m.neighbours(i).map(|(w, _)| rank[w]));
+                s.sig[from..].sort_unstable();
+            }
             s.start.push(s.sig.len());
-            s.sig.push(rank[i]);
-            let from = s.sig.len();
-            s.sig.extend(m.neighbours(i).map(|(w, _)| rank[w]));
-            s.sig[from..].sort_unstable();
-        }
-        s.start.push(s.sig.len());
-        s.idx.clear();
-        s.idx.extend(0..n as u32);
-        let (sig, start) = (&s.sig, &s.start);
-        let slice = |i: u32| &sig[start[i as usize]..start[i as usize + 1]];
-        s.idx.sort_unstable_by(|&a, &b| slice(a).cmp(slice(b)));
-        let mut new_rank = vec![0u32; n];
-        for k in 0..n {
-            let i = s.idx[k];
-            new_rank[i as usize] = if k > 0 && slice(s.idx[k - 1]) == slice(i) {
-                new_rank[s.idx[k - 1] as usize]
-            } else {
-                k as u32
-            };
-        }
-        let new_classes = count_classes(&new_rank);
-        rank.copy_from_slice(&new_rank);
+            s.idx.clear();
+            s.idx.extend(0..n as u32);
+            let (sig, start) = (&s.sig, &s.start);
+            let slice = |i: u32| &sig[start[i as usize]..start[i as usize + 1]];
+            s.idx.sort_unstable_by(|&a, &b| slice(a).cmp(slice(b)));
+            let mut c = 0;
+            for k in 0..n {
+                let i = s.idx[k];
+                if k > 0 && slice(s.idx[k - 1]) == slice(i) {
+                    rank[i as usize] = rank[s.idx[k - 1] as usize];
+                } else {
+                    c += 1;
+                    rank[i as usize] = k as u32;
+                }
+            }
+            c
+        };
         if new_classes == classes {
             return;
         }
@@ -1296,8 +1446,65 @@ fn refine(m: &Molecule, rank: &mut [u32], s: &mut Refiner) {
     }
 }
 
-fn count_classes(rank: &[u32]) -> usize {
-    let mut seen = vec![false; rank.len()];
+/// The packed form of [`refine`]: only classes with more than one atom are re-sorted, by their
+/// atoms' sorted neighbour ranks packed into a u128 (10 bits a rank, up to 11 neighbours), and a
+/// class that splits keeps its place before and after the other classes. Same result as sorting
+/// every atom by (rank, neighbour ranks).
+fn refine_packed(m: &Molecule, rank: &mut [u32], s: &mut Refiner) {
+    let n = rank.len();
+    s.order.clear();
+    s.order.extend(0..n as u32);
+    s.order.sort_unstable_by_key(|&i| rank[i as usize]);
+    s.next.clear();
+    s.next.extend_from_slice(rank);
+    loop {
+        let mut changed = false;
+        let mut k = 0;
+        while k < n {
+            let r = rank[s.order[k] as usize];
+            let mut e = k + 1;
+            while e < n && rank[s.order[e] as usize] == r {
+                e += 1;
+            }
+            if e - k > 1 {
+                s.packed.clear();
+                for &i in &s.order[k..e] {
+                    let i = i as usize;
+                    let mut nb = [0u32; 11];
+                    let d = m.degree(i);
+                    for (slot, (w, _)) in nb.iter_mut().zip(m.neighbours(i)) {
+                        *slot = rank[w];
+                    }
+                    nb[..d].sort_unstable();
+                    let mut key = 0u128;
+                    for (j, &x) in nb[..d].iter().enumerate() {
+                        key |= (x as u128) << (110 - 10 * j);
+                    }
+                    s.packed.push((key, i as u32));
+                }
+                s.packed.sort_unstable();
+                let mut first = k;
+                for (j, &(key, i)) in s.packed.iter().enumerate() {
+                    if j > 0 && s.packed[j - 1].0 != key {
+                        first = k + j;
+                        changed = true;
+                    }
+                    s.next[i as usize] = first as u32;
+                    s.order[k + j] = i;
+                }
+            }
+            k = e;
+        }
+        rank.copy_from_slice(&s.next);
+        if !changed {
+            return;
+        }
+    }
+}
+
+fn count_classes(rank: &[u32], seen: &mut Vec<bool>) -> usize {
+    seen.clear();
+    seen.resize(rank.len(), false);
     let mut c = 0;
     for &r in rank {
         if !seen[r as usize] {
@@ -1313,34 +1520,53 @@ const NONE: u32 = u32::MAX;
 /// Maximum matching in a general graph: Edmonds' blossom algorithm, O(V³), after a greedy start.
 struct Matching {
     n: usize,
-    adj: Vec<Vec<u32>>,
+    /// Neighbours of v: `adj[start[v]..start[v + 1]]`.
+    start: Vec<u32>,
+    adj: Vec<u32>,
     mate: Vec<u32>,
 }
 
 impl Matching {
-    fn new(n: usize) -> Matching {
+    fn new(n: usize, edges: &[(u32, u32)]) -> Matching {
+        let mut start = vec![0u32; n + 1];
+        for &(a, b) in edges {
+            start[a as usize + 1] += 1;
+            start[b as usize + 1] += 1;
+        }
+        for v in 0..n {
+            start[v + 1] += start[v];
+        }
+        let mut fill = start.clone();
+        let mut adj = vec![0u32; 2 * edges.len()];
+        for &(a, b) in edges {
+            adj[fill[a as usize] as usize] = b;
+            fill[a as usize] += 1;
+            adj[fill[b as usize] as usize] = a;
+            fill[b as usize] += 1;
+        }
         Matching {
             n,
-            adj: vec![Vec::new(); n],
+            start,
+            adj,
             mate: vec![NONE; n],
         }
     }
 
-    fn add_edge(&mut self, a: usize, b: usize, _bond: usize) {
-        self.adj[a].push(b as u32);
-        self.adj[b].push(a as u32);
+    fn nb(&self, v: usize) -> &[u32] {
+        &self.adj[self.start[v] as usize..self.start[v + 1] as usize]
     }
 
     fn solve(&mut self) {
         // Greedy: atoms with fewest options first.
-        let mut order: Vec<usize> = (0..self.n).filter(|&v| !self.adj[v].is_empty()).collect();
-        order.sort_by_key(|&v| self.adj[v].len());
+        let mut order: Vec<usize> = (0..self.n).filter(|&v| !self.nb(v).is_empty()).collect();
+        order.sort_by_key(|&v| self.nb(v).len());
         for &v in &order {
             if self.mate[v] == NONE {
-                if let Some(&w) = self.adj[v]
+                if let Some(&w) = self
+                    .nb(v)
                     .iter()
                     .filter(|&&w| self.mate[w as usize] == NONE)
-                    .min_by_key(|&&w| self.adj[w as usize].len())
+                    .min_by_key(|&&w| self.nb(w as usize).len())
                 {
                     self.mate[v] = w;
                     self.mate[w as usize] = v as u32;
@@ -1362,8 +1588,8 @@ impl Matching {
         used[root] = true;
         let mut queue = std::collections::VecDeque::from([root]);
         while let Some(v) = queue.pop_front() {
-            for k in 0..self.adj[v].len() {
-                let to = self.adj[v][k] as usize;
+            for k in self.start[v] as usize..self.start[v + 1] as usize {
+                let to = self.adj[k] as usize;
                 if base[v] == base[to] || self.mate[v] == to as u32 {
                     continue;
                 }

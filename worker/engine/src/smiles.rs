@@ -737,7 +737,10 @@ impl Molecule {
         let mut disc = vec![u32::MAX; n];
         let mut low = vec![0u32; n];
         let mut time = 0u32;
-        let mut is_bridge = vec![false; self.bonds.len()];
+        // Every bond starts as a ring bond; bridges are cleared as the search finds them.
+        for b in &mut self.bonds {
+            b.in_ring = true;
+        }
         // Stack of (atom, bond used to enter it, next adjacency offset).
         let mut stack: Vec<(usize, usize, usize)> = Vec::new();
         self.components = 0;
@@ -771,7 +774,7 @@ impl Molecule {
                     if let Some(&(u, _, _)) = stack.last() {
                         low[u] = low[u].min(low[v]);
                         if low[v] > disc[u] {
-                            is_bridge[via] = true;
+                            self.bonds[via].in_ring = false;
                         }
                     }
                 }
@@ -780,8 +783,7 @@ impl Molecule {
         for a in &mut self.atoms {
             a.in_ring = false;
         }
-        for (k, b) in self.bonds.iter_mut().enumerate() {
-            b.in_ring = !is_bridge[k];
+        for b in &self.bonds {
             if b.in_ring {
                 self.atoms[b.a].in_ring = true;
                 self.atoms[b.b].in_ring = true;
@@ -865,6 +867,9 @@ impl Molecule {
 
     fn find_rings(&self, max_size: usize) -> Vec<Vec<usize>> {
         let mut rings: Vec<Vec<usize>> = Vec::new();
+        if !self.bonds.iter().any(|b| b.in_ring) {
+            return rings;
+        }
         let mut scratch = RingScratch::new(self.atoms.len());
         for k in 0..self.bonds.len() {
             let Some(mut ring) = self.ring_path_with(k, max_size, &mut scratch) else {
@@ -1001,22 +1006,34 @@ impl Molecule {
         };
         let keys: Vec<u64> = (0..n).map(invariant).collect();
         let mut rank = ranks_from_keys(&keys);
-        let mut scratch = Refiner::default();
-        let mut counts: Vec<u32> = Vec::with_capacity(n);
+        // Scratch buffers live per thread so a batch does not allocate them per molecule.
+        thread_local! {
+            static SCRATCH: std::cell::RefCell<Refiner> = std::cell::RefCell::new(Refiner::default());
+        }
+        SCRATCH.with(|cell| {
+            let mut guard = cell.borrow_mut();
+            self.rank_with(&mut rank, &mut guard);
+        });
+        rank
+    }
+
+    fn rank_with(&self, rank: &mut [u32], scratch: &mut Refiner) {
+        let n = rank.len();
+        let mut counts = std::mem::take(&mut scratch.counts);
         loop {
-            refine(self, &mut rank, &mut scratch);
+            refine(self, rank, scratch);
             counts.clear();
             counts.resize(n, 0);
-            for &r in &rank {
+            for &r in rank.iter() {
                 counts[r as usize] += 1;
             }
             // Tied leaves of one parent (the methyls of a t-butyl, the F of a CF3) are swapped by
             // an automorphism: give them consecutive ranks in input order, no refinement needed
             // (their parent's class holds only that parent, or the class would span parents).
-            if self.split_leaf_ties(&mut rank, &counts, &mut scratch.leaf) {
+            if self.split_leaf_ties(rank, &counts, &mut scratch.leaf) {
                 counts.clear();
                 counts.resize(n, 0);
-                for &r in &rank {
+                for &r in rank.iter() {
                     counts[r as usize] += 1;
                 }
             }
@@ -1032,7 +1049,7 @@ impl Molecule {
                 }
             }
         }
-        rank
+        scratch.counts = counts;
     }
 
     /// Split every tied class made only of leaves on one parent; true when any was split.
@@ -1358,6 +1375,7 @@ fn ranks_from_keys(keys: &[u64]) -> Vec<u32> {
 
 #[derive(Default)]
 struct Refiner {
+    counts: Vec<u32>,
     leaf: Vec<u32>,
     order: Vec<u32>,
     next: Vec<u32>,

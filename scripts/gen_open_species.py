@@ -200,7 +200,6 @@ SPECIES = [
     ("67-63-0", "C3H8O,2propanol", False, ""),         # 2-propanol
     ("71-36-3", "C4H10O,1butanol", True, ""),          # 1-butanol
     ("78-83-1", "C4H10O,isobutanol", True, ""),        # 2-methyl-1-propanol
-    ("107-21-1", "(CH2OH)2", True, ""),                # ethylene glycol
     ("67-64-1", "CH3COCH3", True, "NASA 'C3H6O' gas is propylene oxide (dHf(298) = -93.7 kJ/mol), not acetone"),
     ("78-93-3", "CH3COC2H5", True, ""),                # 2-butanone
     ("64-18-6", "HCOOH", False, ""),                   # formic acid
@@ -213,7 +212,6 @@ SPECIES = [
     ("109-99-9", "C4H8O,tetrahydrofuran", True, ""),   # THF
     ("123-91-1", "C4H8O2,dioxane", True, ""),          # 1,4-dioxane
     ("68-12-2", "HCON(CH3)2", True, ""),               # DMF
-    ("67-68-5", "(CH3)2SO", True, ""),                 # DMSO
     ("872-50-4", "C5H9NO,methylpyrrolidone", True, ""),  # NMP
     ("75-05-8", "CH3CN", False, ""),                   # acetonitrile
     ("110-86-1", "C5H5N", True, ""),                   # pyridine
@@ -238,6 +236,20 @@ SPECIES = [
     ("108-95-2", "C6H5OH,phenol", False, ""),          # phenol: solid at 298.15 K, skipped
     ("75-07-0", "CH3CHO,ethanal", False, ""),          # acetaldehyde: boils at 294 K, skipped
 ]
+# Left out after the cross-check below (the derivation or a ChemSep value fails):
+#   acetic acid (l): its vapour dimerizes, so S(ig) - dvapS misses by 80 J/mol/K;
+#   ethylene glycol (l, g): derived S(l) 12.5 below WebBook and ChemSep S(ig) 7 below WebBook S0g;
+#   DMSO (l, g): ChemSep dHf(ig) -209.2 kJ/mol against WebBook -150.5.
+SKIP_LIQUID = {"64-19-7": "vapour dimerizes: ideal-vapour derivation of S(l) invalid (80 J/mol/K off)"}
+# Differences > XCHECK_TOL from the WebBook-constants table that were examined and kept:
+XCHECK_TOL = 6.0
+ACCEPTED = {
+    ("CH3COCH3(L)", "S"): "WebBook-constants S0l 208.2 exceeds S(ig) - dvapS (its own dvapH 31.28 ~ ChemSep 31.36)",
+    ("C6H5Cl(L)", "S"): "WebBook-constants S0l 197.5 would imply S(ig) 300 against ChemSep 314.1 (its dvapH 41.0 ~ ChemSep 40.9)",
+    ("C2H5OC2H5(L)", "H"): "WebBook-constants Hfg - Hfl = 19.8 kJ/mol disagrees with its own Hvap 27.1",
+    ("C8H10,ethylbenz(L)", "H"): "ChemSep dHf(ig) 29.92 agrees with the NASA C8H10,ethylbenz gas record (29.92); WebBook-constants Hfg 48.8 does not",
+    ("C8H8,styrene(L)", "H"): "ChemSep dHf(ig) 147.4 agrees with the NASA C8H8,styrene gas record (148.30); WebBook-constants Hfg 136.5 does not",
+}
 # Compounds whose liquid the NASA table already has (not written): water H2O(L), benzene
 # C6H6(L), toluene C7H8(L), n-octane C8H18(L),n-octa.
 
@@ -316,6 +328,22 @@ def split_fit(cp_fn, cuts, degree):
             return cuts
 
 
+def build_segments(cp_fn, cuts, degree, h_ref, s_ref):
+    """Fitted segments on cuts; the one holding 298.15 K is anchored to h_ref, s_ref and the
+    others are joined to it with H and S continuous. Returns (segments, max deviation)."""
+    fits = [fit_cp(cp_fn, cuts[i], cuts[i + 1], degree) for i in range(len(cuts) - 1)]
+    k0 = next(i for i in range(len(cuts) - 1) if cuts[i] <= T_REF <= cuts[i + 1])
+    coef = {k0: anchor(fits[k0][0], T_REF, h_ref, s_ref)}
+    for i in range(k0 + 1, len(fits)):
+        prev, tj = coef[i - 1], cuts[i]
+        coef[i] = anchor(fits[i][0], tj, h_rt(prev, tj) * R * tj, s_r(prev, tj) * R)
+    for i in range(k0 - 1, -1, -1):
+        nxt, tj = coef[i + 1], cuts[i + 1]
+        coef[i] = anchor(fits[i][0], tj, h_rt(nxt, tj) * R * tj, s_r(nxt, tj) * R)
+    segs = [(cuts[i], cuts[i + 1], coef[i]) for i in range(len(fits))]
+    return segs, max(f[1] for f in fits)
+
+
 def anchor(a7, t_ref, h_j, s_j):
     """[a1..a7, b1, b2] with H(t_ref) = h_j (J/mol) and S(t_ref) = s_j (J/mol/K)."""
     a = list(a7) + [0.0, 0.0]
@@ -360,7 +388,9 @@ def main() -> int:
 
     for cas, base, add_gas, isomer_note in SPECIES:
         c = cs.get(cas)
-        assert c is not None, f"{cas} not in ChemSep"
+        if c is None:
+            skipped.append(f"{base} (CAS {cas}): not in the ChemSep table, no open S and Cp")
+            continue
         cs_name = c.find("CompoundID").get("value")
         hill = identifiers.search_chemical(cas).formula
         comp = parse_formula(hill)
@@ -386,7 +416,9 @@ def main() -> int:
         cpl = cs_corr(c, "LiquidHeatCapacityCp")
         t_lo = max(cpl[2], tm if tm else cpl[2])
         t_hi = min(cpl[3], tb)
-        if not (t_lo <= T_REF <= t_hi):
+        if cas in SKIP_LIQUID:
+            skipped.append(f"{base}(L) ({cs_name}): {SKIP_LIQUID[cas]}")
+        elif not (t_lo <= T_REF <= t_hi):
             skipped.append(f"{base}(L) ({cs_name}): liquid range {t_lo:.2f}-{t_hi:.2f} K does not contain 298.15 K")
         else:
             if hfl_atct is not None:
@@ -407,18 +439,20 @@ def main() -> int:
                 a7 = [0.0, 0.0] + [k.get(x, 0.0) / 1000.0 / R for x in "ABCDE"]
                 exact, dev = True, 0.0
             elif cpl[0] == 16:
-                a7, dev = fit_cp(cp_fn, t_lo, t_hi, 4)
                 exact = False
             else:
                 skipped.append(f"{base}(L): ChemSep liquid Cp eqno {cpl[0]} not handled")
                 continue
+            if exact:
+                segs, dev, cuts = [(t_lo, t_hi, anchor(a7, T_REF, hf_l, s_l))], 0.0, [t_lo, t_hi]
+            else:
+                cuts = split_fit(cp_fn, [t_lo, t_hi], 4)
+                segs, dev = build_segments(cp_fn, cuts, 4, hf_l, s_l)
             assert dev <= CP_FIT_TOL, (base, dev)
-            a = anchor(a7, T_REF, hf_l, s_l)
-            segs = [(t_lo, t_hi, a)]
             note = (f"{hf_src}; S(l) = ChemSep S(ig) {s_ig_atm:.3f} J/mol/K (1 atm) -> 1 bar "
                     f"+ R ln(1 bar/Psat {psat:.1f} Pa) - dvapH/T = {s_l:.3f} J/mol/K; "
                     + (f"Cp ChemSep eq.{cpl[0]} converted exactly" if exact else
-                       f"Cp ChemSep eq.16 fitted by quartic, max rel. dev. {dev:.1e}")
+                       (f"Cp ChemSep eq.16 fitted by quartic" + (f" per segment (joins {' '.join(f'{t:g}' for t in cuts[1:-1])} K)" if len(cuts) > 2 else "") + f", max rel. dev. {dev:.1e}"))
                     + f"; range max(Cp Tmin {cpl[2]:g}, Tm {tm:g}) - min(Cp Tmax {cpl[3]:g}, Tb {tb:g}) K")
             src = ("ATcT 1.112 (Argonne) dHf + ChemSep v8.3 S, Cp (via chemicals "
                    f"{chemicals.__version__})") if hfl_atct is not None or hfg_atct is not None else \
@@ -447,21 +481,11 @@ def main() -> int:
                 hf_g, u_g = hf_ig_cs, None
                 hf_src = "dHf(g) ChemSep dHf(ig)"
             cuts = split_fit(cpg_fn, [g_lo, 1000.0, g_hi] if g_hi > 1100.0 else [g_lo, g_hi], 4)
-            segs, devs = [], []
-            for i in range(len(cuts) - 1):
-                a7, dev = fit_cp(cpg_fn, cuts[i], cuts[i + 1], 4)
-                devs.append(dev)
-                if i == 0:
-                    a = anchor(a7, T_REF, hf_g, s_ig)
-                else:
-                    prev = segs[-1][2]
-                    tj = cuts[i]
-                    a = anchor(a7, tj, h_rt(prev, tj) * R * tj, s_r(prev, tj) * R)
-                segs.append((cuts[i], cuts[i + 1], a))
-            assert max(devs) <= CP_FIT_TOL, (base, devs)
+            segs, gdev = build_segments(cpg_fn, cuts, 4, hf_g, s_ig)
+            assert gdev <= CP_FIT_TOL, (base, gdev)
             note = (f"{hf_src}; S(g) = ChemSep S(ig) {s_ig_atm:.3f} J/mol/K (1 atm) -> 1 bar {s_ig:.3f}; "
-                    f"Cp ChemSep eq.16 fitted by quartic per segment (joins {", ".join(f"{t:g}" for t in cuts[1:-1])} K), max rel. dev. "
-                    f"{max(devs):.1e}; range = ChemSep Cp range {g_lo:g}-{g_hi:g} K")
+                    f"Cp ChemSep eq.16 fitted by quartic per segment (joins {' '.join(f'{t:g}' for t in cuts[1:-1])} K), max rel. dev. "
+                    f"{gdev:.1e}; range = ChemSep Cp range {g_lo:g}-{g_hi:g} K")
             src = (f"ATcT 1.112 (Argonne) dHf + ChemSep v8.3 S, Cp (via chemicals {chemicals.__version__})"
                    if hfg_atct is not None else f"ChemSep v8.3 (via chemicals {chemicals.__version__})")
             files = ";".join(x for x in (ATCT_G_FILE if hfg_atct is not None else "", "ChemSep8.32.xml") if x)
@@ -480,7 +504,7 @@ def main() -> int:
         seg_txt = ";".join(",".join([fmt(t0), fmt(t1)] + [fmt(x) for x in a]) for t0, t1, a in r["segs"])
         r["segments"] = seg_txt
         back = [list(map(float, s.split(","))) for s in seg_txt.split(";")]
-        a0 = back[0][2:]
+        a0 = next(b[2:] for b in back if b[0] <= T_REF <= b[1])
         assert abs(h_rt(a0, T_REF) * R * T_REF - r["h"]) / 1000.0 <= ANCHOR_TOL, r["name"]
         assert abs(s_r(a0, T_REF) * R - r["s"]) <= ANCHOR_TOL, r["name"]
         for s0, s1 in zip(back, back[1:]):
@@ -543,10 +567,12 @@ def main() -> int:
         dh = (h_l - wb_h) / 1000.0
         print(f"  {name:32s} S {s_l:8.2f}  WebBook {wb_s:8.2f}  diff {ds:+6.2f} J/mol/K | "
               f"dHf {h_l / 1000:9.2f}  WebBook {wb_h / 1000:9.2f}  diff {dh:+6.2f} kJ/mol")
-        if not math.isnan(ds) and abs(ds) > 6.0:
-            big.append((name, ds))
-        if not math.isnan(dh) and abs(dh) > 6.0:
-            big.append((name, dh))
+        for q, d in (("S", ds), ("H", dh)):
+            if not math.isnan(d) and abs(d) > XCHECK_TOL:
+                if (name, q) in ACCEPTED:
+                    print(f"    accepted {q} difference: {ACCEPTED[(name, q)]}")
+                else:
+                    big.append((name, q, d))
     assert not big, f"derived values far from the WebBook cross-check: {big}"
     return 0
 

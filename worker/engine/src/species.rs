@@ -315,10 +315,21 @@ const NASA_TSV: &str = include_str!("../data/nasa_species.tsv");
 /// How results name the bundled NASA data.
 pub const SOURCE_NAME: &str = "NASA thermo data (McBride, Gordon & Reno, NASA TM-4513, 1993; public domain) via Cantera 3.2.0";
 
+/// Organic liquids and gases NASA lacks, from open tables shipped in `chemicals`
+/// (`scripts/gen_open_species.py`; origins and terms in `scripts/README-open-data.md`).
+const OPEN_TSV: &str = include_str!("../data/open_species.tsv");
+/// How results name the open tables when a record has no `source` of its own.
+pub const OPEN_SOURCE_NAME: &str = "ATcT 1.112 (Argonne) + ChemSep 8.3 (Artistic License 2.0) via chemicals 1.5.2";
+/// ATcT 1.112 uncertainties of ΔfH° for NASA records (`scripts/gen_nasa_uncertainty.py`).
+const NASA_UNCERTAINTY_TSV: &str = include_str!("../data/nasa_uncertainty.tsv");
+
 /// The bundled table, parsed on first use (a few milliseconds) and shared for the process.
 pub fn bundled() -> &'static Table {
     static TABLE: OnceLock<Table> = OnceLock::new();
-    TABLE.get_or_init(|| Table::from_sources(&[(NASA_TSV, SOURCE_NAME)], None).unwrap_or_else(|e| panic!("{e}")))
+    TABLE.get_or_init(|| {
+        Table::from_sources(&[(NASA_TSV, SOURCE_NAME), (OPEN_TSV, OPEN_SOURCE_NAME)], Some(NASA_UNCERTAINTY_TSV))
+            .unwrap_or_else(|e| panic!("{e}"))
+    })
 }
 
 /// Append the records of one table in the `nasa_species.tsv` layout.
@@ -507,6 +518,18 @@ impl Table {
         }
         if let Some(overlay) = uncertainties {
             apply_uncertainties(overlay, &mut records, &mut provenance)?;
+        }
+        // An element in its reference state has ΔfH° = 0 by definition: no uncertainty.
+        let ln_t = T_REF_K.ln();
+        for r in records
+            .iter_mut()
+            .filter(|r| r.dhf_uncertainty_kj_per_mol.is_none() && r.formula.atoms.len() == 1 && r.formula.charge == 0)
+        {
+            if let Some(seg) = r.segments.iter().find(|s| s.covers(T_REF_K)) {
+                if (seg.h_rt_s_r(T_REF_K, ln_t).0 * R * T_REF_K).abs() < 1.0 {
+                    r.dhf_uncertainty_kj_per_mol = Some(0.0);
+                }
+            }
         }
         Ok(Table::index(records, provenance, sources))
     }

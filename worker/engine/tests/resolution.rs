@@ -10,8 +10,9 @@ fn resolve(s: &str) -> Result<species::Resolved, ResolveError> {
 
 #[test]
 fn bundled_table_loads_every_usable_record() {
-    // 1,130 NASA records (748 gas + 382 condensed in Cantera 3.2.0) less 25 deuterated ones.
-    assert_eq!(species::bundled().records.len(), 1105);
+    // 1,130 NASA records (748 gas + 382 condensed in Cantera 3.2.0) less 25 deuterated ones,
+    // plus 55 open records (34 liquids, 21 gases) from data/open_species.tsv.
+    assert_eq!(species::bundled().records.len(), 1105 + 55);
     assert!(species::bundled().provenance.contains("Cantera 3.2.0"));
 }
 
@@ -80,8 +81,24 @@ fn supplied_values_win_and_unknown_species_point_at_their_position() {
     );
     // Without Cp, points away from 298.15 K are flagged.
     assert!(!r.points[1].in_valid_range);
+    // Reference elements carry σ = 0, so only 2 × 5 kJ/mol of the supplied species remains.
+    assert_eq!(r.delta_h_uncertainty_kj_per_mol, Some(10.0));
+}
+
+#[test]
+fn open_liquids_and_atct_uncertainties() {
+    let mut s = Screener::new(species::bundled(), TemperatureGrid::new(vec![298.15]).unwrap());
+    // Standard enthalpy of combustion of liquid methanol, −726.1 kJ/mol (NIST WebBook, from memory).
+    let r = s.screen("CH3OH(l) + 3/2 O2(g) -> CO2(g) + 2 H2O(l)").unwrap();
     assert!(
-        r.delta_h_uncertainty_kj_per_mol.is_none(),
-        "H2 and Br2 have no uncertainty in the NASA files"
+        (r.standard.delta_h_kj_per_mol - -726.1).abs() < 1.5,
+        "{}",
+        r.standard.delta_h_kj_per_mol
     );
+    assert!(r.species[0].species.resolved.source_line(s.table()).contains("ATcT"));
+    // Water formation: H2 and O2 are reference elements (σ = 0), H2O(l) carries ATcT 1.112's
+    // ±0.027 kJ/mol (data/nasa_uncertainty.tsv), so the reaction's uncertainty is that one.
+    let w = s.screen("H2(g) + 1/2 O2(g) -> H2O(l)").unwrap();
+    let u = w.delta_h_uncertainty_kj_per_mol.expect("uncertainty");
+    assert!((u - 0.027).abs() < 1e-9, "{u}");
 }

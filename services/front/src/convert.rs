@@ -56,16 +56,13 @@ pub fn case_from_pb(c: pb::Case) -> CaseInput {
             input_error = Some(format!("column phase: expected one of gas, liquid, solid, standard, got {p:?}"));
         }
     }
-    let mut conditions = conditions_from_pb(c.conditions);
+    let conditions = conditions_from_pb(c.conditions);
     for (name, v) in thermosieve_queue::CONDITION_FIELDS.iter().zip(conditions.values()) {
         if let Some(v) = v {
             if !v.is_finite() && input_error.is_none() {
                 input_error = Some(format!("column {name}: expected a finite number, got {v}"));
             }
         }
-    }
-    if input_error.is_some() {
-        conditions.extra.clear();
     }
     CaseInput {
         case_id: c.case_id,

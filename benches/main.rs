@@ -25,6 +25,9 @@ struct Args {
     /// Worker processes (one engine thread each).
     #[arg(long, default_value_t = 2)]
     workers: usize,
+    /// Cases per chunk (0: the front's default, 2000).
+    #[arg(long, default_value_t = 0)]
+    chunk_size: u32,
     /// The thermosieve binary (default: next to this one).
     #[arg(long)]
     thermosieve: Option<PathBuf>,
@@ -123,7 +126,7 @@ async fn main() -> anyhow::Result<()> {
     let n = a.cases;
     let demo2 = demo.clone();
     let feeder = tokio::task::spawn_blocking(move || {
-        let _ = tx.blocking_send(pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Header(pb::BatchHeader { label: "bench".into(), ..Default::default() })) });
+        let _ = tx.blocking_send(pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Header(pb::BatchHeader { label: "bench".into(), chunk_size: a.chunk_size, ..Default::default() })) });
         for c in cases(&demo2, n) {
             if tx.blocking_send(pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Case(convert::case_to_pb(&c))) }).is_err() {
                 break;

@@ -32,7 +32,7 @@ pub struct RunArgs {
     #[arg(long, env = "THERMOSIEVE_FORMAT")]
     pub format: Option<String>,
     /// Cases per chunk.
-    #[arg(long, default_value_t = 500, env = "THERMOSIEVE_CHUNK_SIZE")]
+    #[arg(long, default_value_t = 2000, env = "THERMOSIEVE_CHUNK_SIZE")]
     pub chunk_size: usize,
     /// Engine threads (default: all cores).
     #[arg(long, env = "THERMOSIEVE_THREADS")]
@@ -66,7 +66,7 @@ pub struct ServeArgs {
     #[command(flatten)]
     pub redis: RedisArgs,
     /// Default cases per chunk.
-    #[arg(long, default_value_t = 500, env = "THERMOSIEVE_CHUNK_SIZE")]
+    #[arg(long, default_value_t = 2000, env = "THERMOSIEVE_CHUNK_SIZE")]
     pub chunk_size: usize,
     /// Queue depth (chunks) above which submissions get RESOURCE_EXHAUSTED.
     #[arg(long, default_value_t = 10_000, env = "THERMOSIEVE_MAX_QUEUE_DEPTH")]

@@ -38,7 +38,7 @@ pub struct IngestLimits {
 
 impl Default for IngestLimits {
     fn default() -> Self {
-        IngestLimits { default_chunk_size: 500, max_queue_depth: 10_000, enqueue_wait: Duration::from_secs(30) }
+        IngestLimits { default_chunk_size: 2000, max_queue_depth: 10_000, enqueue_wait: Duration::from_secs(30) }
     }
 }
 

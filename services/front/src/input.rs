@@ -321,6 +321,27 @@ mod tests {
     }
 
     #[test]
+    fn parquet_input_with_numeric_columns() {
+        use polars::prelude::*;
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("in.parquet");
+        let mut df = DataFrame::new(
+            2,
+            vec![
+                Column::new("case_id".into(), vec!["A", "B"]),
+                Column::new("reaction".into(), vec![Some("CO + O2 -> CO2"), None]),
+                Column::new("step".into(), vec![1i64, 2]),
+                Column::new("process_temperature_c".into(), vec![25.0f64, 80.0]),
+            ],
+        )
+        .unwrap();
+        ParquetWriter::new(std::fs::File::create(&p).unwrap()).finish(&mut df).unwrap();
+        let c: Vec<CaseInput> = open(&p, None).unwrap().collect();
+        assert_eq!((c[0].step, c[0].conditions.process_temperature_k), (Some(1), Some(298.15)));
+        assert!(c[1].input_error.as_deref().unwrap().contains("column reaction: missing"));
+    }
+
+    #[test]
     fn json_lines_numbers_and_bad_lines() {
         let r = std::io::Cursor::new("{\"case_id\": \"A\", \"reaction\": \"CO + O2 -> CO2\", \"step\": 2, \"pressure_bar\": 1.5}\nnot json\n");
         let c: Vec<CaseInput> = json_lines(r).collect();

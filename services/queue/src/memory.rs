@@ -289,6 +289,12 @@ mod tests {
     }
 
     #[test]
+    fn conditions_with_an_unknown_key_are_refused() {
+        let e = serde_json::from_str::<Conditions>(r#"{"scale_mol": 1.0, "scale_kmol": 2.0}"#).unwrap_err();
+        assert!(e.to_string().contains("unknown field `scale_kmol`"), "{e}");
+    }
+
+    #[test]
     fn row_conditions_win_over_defaults() {
         let row = Conditions { scale_mol: Some(2.0), ..Default::default() };
         let d = Conditions { scale_mol: Some(9.0), pressure_bar: Some(1.5), ..Default::default() };

@@ -67,13 +67,26 @@ pub fn write_atomic(path: &Path, write: impl FnOnce(&mut File) -> Result<(), Wor
     result
 }
 
-/// Write one frame as a Parquet file, atomically, with file key-value metadata.
+/// Write one frame as a Parquet file, atomically, with file key-value metadata (zstd, the
+/// default, for tables people keep).
 ///
 /// # Errors
 /// I/O and Polars errors.
 pub fn write_parquet(path: &Path, df: &mut DataFrame, metadata: Option<Vec<(String, String)>>) -> Result<(), WorkerError> {
     write_atomic(path, |f| {
         ParquetWriter::new(f).with_key_value_metadata(metadata.map(KeyValueMetadata::from_static)).finish(df)?;
+        Ok(())
+    })
+}
+
+/// Write a part file: short-lived, so LZ4 (fast) rather than zstd, and single-threaded, since
+/// each engine thread writes its own parts and a thread pool per write only contends.
+///
+/// # Errors
+/// I/O and Polars errors.
+pub fn write_part(path: &Path, df: &mut DataFrame) -> Result<(), WorkerError> {
+    write_atomic(path, |f| {
+        ParquetWriter::new(f).with_compression(ParquetCompression::Lz4Raw).set_parallel(false).finish(df)?;
         Ok(())
     })
 }

@@ -9,7 +9,7 @@
 //! reclaimed by another after `reclaim_idle`.
 
 use crate::finalize::{finalize, Manifest};
-use crate::parts::{part_path, write_parquet};
+use crate::parts::{part_path, write_part};
 use crate::process::ChunkProcessor;
 use crate::rows::{self, build_rows};
 use crate::WorkerError;
@@ -95,8 +95,8 @@ pub fn commit_dead_chunk(results_dir: &Path, spec: &BatchSpec, chunk: &Chunk, re
 fn write_parts(results_dir: &Path, spec: &BatchSpec, seq: u64, cases: &[rows::CaseRow], trends: &[rows::TrendRow], dead: bool) -> Result<ChunkReport, WorkerError> {
     let errors = cases.iter().filter(|r| !r.ok).count() as u64;
     // Trends first: the cases part is what the finalizer checks for, so it lands last.
-    write_parquet(&part_path(results_dir, &spec.batch_id, "trends", seq)?, &mut rows::trends_frame(trends)?, None)?;
-    write_parquet(&part_path(results_dir, &spec.batch_id, "cases", seq)?, &mut rows::cases_frame(cases)?, None)?;
+    write_part(&part_path(results_dir, &spec.batch_id, "trends", seq)?, &mut rows::trends_frame(trends)?)?;
+    write_part(&part_path(results_dir, &spec.batch_id, "cases", seq)?, &mut rows::cases_frame(cases)?)?;
     Ok(ChunkReport { cases: cases.len() as u64, errors, dead_lettered: dead })
 }
 

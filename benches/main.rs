@@ -1,0 +1,164 @@
+//! `thermosieve-bench`: N cases end to end (a `thermosieve serve` front + redis-server + 2
+//! `thermosieve work` processes + Parquet), then the same cases through the engine alone on the
+//! same number of threads, and the ratio. Reports cases/s and peak RSS (VmHWM) of the front
+//! and the workers. Everything runs on loopback and stops at the end.
+//!
+//! Build and run (release): `cargo build --release --locked -p thermosieve-cli -p thermosieve-bench`
+//! then `target/release/thermosieve-bench --cases 1000000`.
+
+use anyhow::{bail, Context};
+use clap::Parser;
+use std::path::PathBuf;
+use std::process::{Child, Command, Stdio};
+use std::time::{Duration, Instant};
+use thermosieve_engine::{species, Screener, TemperatureGrid};
+use thermosieve_front::{convert, input};
+use thermosieve_proto::v1 as pb;
+use thermosieve_proto::v1::screening_client::ScreeningClient;
+use thermosieve_queue::CaseInput;
+
+#[derive(Parser, Debug)]
+struct Args {
+    /// Cases to screen (the demo batch repeated with fresh ids).
+    #[arg(long, default_value_t = 1_000_000)]
+    cases: usize,
+    /// Worker processes (one engine thread each).
+    #[arg(long, default_value_t = 2)]
+    workers: usize,
+    /// Cases per chunk (0: the front's default, 2000).
+    #[arg(long, default_value_t = 0)]
+    chunk_size: u32,
+    /// The thermosieve binary (default: next to this one).
+    #[arg(long)]
+    thermosieve: Option<PathBuf>,
+    /// Demo input to repeat.
+    #[arg(long, default_value = "examples/nightly_screen.csv")]
+    input: PathBuf,
+}
+
+struct Proc(Child);
+
+impl Drop for Proc {
+    fn drop(&mut self) {
+        let _ = Command::new("kill").arg("-TERM").arg(self.0.id().to_string()).status();
+        let _ = self.0.wait();
+    }
+}
+
+fn vm_hwm_kb(pid: u32) -> u64 {
+    std::fs::read_to_string(format!("/proc/{pid}/status"))
+        .ok()
+        .and_then(|s| s.lines().find(|l| l.starts_with("VmHWM:")).and_then(|l| l.split_whitespace().nth(1)).and_then(|v| v.parse().ok()))
+        .unwrap_or(0)
+}
+
+fn free_port() -> anyhow::Result<u16> {
+    Ok(std::net::TcpListener::bind("127.0.0.1:0")?.local_addr()?.port())
+}
+
+fn cases(demo: &[CaseInput], n: usize) -> impl Iterator<Item = CaseInput> + '_ {
+    (0..n).map(move |i| {
+        let mut c = demo[i % demo.len()].clone();
+        let rep = i / demo.len();
+        c.case_id = format!("{}-x{rep}", c.case_id);
+        c.route_id = c.route_id.map(|r| format!("{r}-x{rep}"));
+        c.row = i as u64 + 1;
+        c
+    })
+}
+
+fn engine_only(demo: &[CaseInput], n: usize, threads: usize) -> f64 {
+    let t0 = Instant::now();
+    std::thread::scope(|s| {
+        for t in 0..threads {
+            s.spawn(move || {
+                let mut screener = Screener::new(species::bundled(), TemperatureGrid::default_process());
+                let mut ok = 0usize;
+                for c in cases(demo, n).skip(t).step_by(threads) {
+                    ok += usize::from(screener.screen(&c.reaction).is_ok());
+                }
+                std::hint::black_box(ok);
+            });
+        }
+    });
+    n as f64 / t0.elapsed().as_secs_f64()
+}
+
+#[tokio::main]
+async fn main() -> anyhow::Result<()> {
+    let a = Args::parse();
+    let bin = match a.thermosieve {
+        Some(b) => b,
+        None => std::env::current_exe()?.parent().context("exe dir")?.join("thermosieve"),
+    };
+    if !bin.exists() {
+        bail!("{} not found: build it with cargo build --release -p thermosieve-cli", bin.display());
+    }
+    let demo: Vec<CaseInput> = input::open(&a.input, None)?.collect();
+    let dir = std::env::temp_dir().join(format!("thermosieve-bench-{}", std::process::id()));
+    std::fs::create_dir_all(&dir)?;
+    let rport = free_port()?;
+    let redis = Proc(
+        Command::new("redis-server")
+            .args(["--port", &rport.to_string(), "--bind", "127.0.0.1", "--save", "", "--appendonly", "no", "--dir"])
+            .arg(&dir)
+            .stdout(Stdio::null())
+            .spawn()
+            .context("redis-server (apt-get install -y redis-server)")?,
+    );
+    tokio::time::sleep(Duration::from_millis(300)).await;
+    let fport = free_port()?;
+    let env = [("THERMOSIEVE_REDIS_URL", format!("redis://127.0.0.1:{rport}/")), ("THERMOSIEVE_RESULTS_DIR", dir.join("results").display().to_string()), ("THERMOSIEVE_LOG", "warn".into())];
+    let front = Proc(Command::new(&bin).args(["serve", "--listen", &format!("127.0.0.1:{fport}")]).envs(env.clone()).stdout(Stdio::null()).spawn()?);
+    let mut workers = Vec::new();
+    for w in 0..a.workers {
+        workers.push(Proc(Command::new(&bin).args(["work", "--threads", "1", "--consumer", &format!("bench-{w}")]).envs(env.clone()).stdout(Stdio::null()).spawn()?));
+    }
+    let url = format!("http://127.0.0.1:{fport}");
+    let mut client = loop {
+        match ScreeningClient::connect(url.clone()).await {
+            Ok(c) => break c,
+            Err(_) => tokio::time::sleep(Duration::from_millis(100)).await,
+        }
+    };
+    let t0 = Instant::now();
+    let (tx, rx) = tokio::sync::mpsc::channel(1024);
+    let n = a.cases;
+    let demo2 = demo.clone();
+    let feeder = tokio::task::spawn_blocking(move || {
+        let _ = tx.blocking_send(pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Header(pb::BatchHeader { label: "bench".into(), chunk_size: a.chunk_size, ..Default::default() })) });
+        for c in cases(&demo2, n) {
+            if tx.blocking_send(pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Case(convert::case_to_pb(&c))) }).is_err() {
+                break;
+            }
+        }
+    });
+    let id = client.submit_batch(tokio_stream::wrappers::ReceiverStream::new(rx)).await?.into_inner().batch_id;
+    feeder.await?;
+    let submitted = t0.elapsed().as_secs_f64();
+    let mut watch = client.watch_batch(pb::WatchBatchRequest { batch_id: id.clone() }).await?.into_inner();
+    let mut last = None;
+    while let Some(s) = watch.message().await? {
+        last = Some(s);
+    }
+    let e2e_s = t0.elapsed().as_secs_f64();
+    let last = last.context("no status")?;
+    if last.state != pb::BatchState::Done as i32 {
+        bail!("batch ended in state {}: {}", last.state, last.message);
+    }
+    let front_kb = vm_hwm_kb(front.0.id());
+    let worker_kb: Vec<u64> = workers.iter().map(|w| vm_hwm_kb(w.0.id())).collect();
+    let e2e_rate = n as f64 / e2e_s;
+    drop(workers);
+    drop(front);
+    drop(redis);
+    let engine_rate = engine_only(&demo, n, a.workers);
+    println!("cases: {n} ({} errors), workers: {} x 1 thread", last.cases_error, a.workers);
+    println!("submit stream finished after {submitted:.1} s");
+    println!("end to end: {e2e_s:.1} s, {e2e_rate:.0} cases/s (front + redis + workers + parquet, finalize included)");
+    println!("engine only ({} threads): {engine_rate:.0} cases/s", a.workers);
+    println!("ratio e2e / engine: {:.2}", e2e_rate / engine_rate);
+    println!("peak RSS (VmHWM): front {} MB, workers {:?} MB", front_kb / 1024, worker_kb.iter().map(|k| k / 1024).collect::<Vec<_>>());
+    let _ = std::fs::remove_dir_all(&dir);
+    Ok(())
+}

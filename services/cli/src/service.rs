@@ -1,0 +1,410 @@
+//! The service commands. `anyhow` lives here (binary start-up and reporting) and nowhere below.
+
+use anyhow::{bail, Context};
+use indicatif::{ProgressBar, ProgressStyle};
+use std::net::SocketAddr;
+use std::path::PathBuf;
+use std::process::ExitCode;
+use std::sync::Arc;
+use std::time::Duration;
+use thermosieve_front::ingest::{BatchOptions, IngestLimits};
+use thermosieve_front::input::{self, Format};
+use thermosieve_front::{convert, Front, FrontConfig};
+use thermosieve_proto::v1 as pb;
+use thermosieve_proto::v1::screening_client::ScreeningClient;
+use thermosieve_queue::{Queue, RedisConfig, RedisQueue};
+use thermosieve_worker::WorkerConfig;
+
+/// Exit code: the batch ended failed or cancelled.
+const EXIT_BATCH_FAILED: u8 = 4;
+
+#[derive(clap::Args, Debug)]
+pub struct RunArgs {
+    /// Input table: .csv, .tsv, .jsonl or .parquet; required columns case_id, reaction.
+    pub input: PathBuf,
+    /// Folder for the batch folder (<out>/<batch_id>/cases.parquet ...).
+    #[arg(long, env = "THERMOSIEVE_OUT")]
+    pub out: PathBuf,
+    /// Grid temperatures in K, comma-separated (default 273.15 to 623.15 K in 25 K steps).
+    #[arg(long, value_delimiter = ',', env = "THERMOSIEVE_TEMPERATURES_K")]
+    pub temperatures_k: Option<Vec<f64>>,
+    /// Input format when the extension does not tell: csv, tsv, jsonl, parquet.
+    #[arg(long, env = "THERMOSIEVE_FORMAT")]
+    pub format: Option<String>,
+    /// Cases per chunk.
+    #[arg(long, default_value_t = 2000, env = "THERMOSIEVE_CHUNK_SIZE")]
+    pub chunk_size: usize,
+    /// Engine threads (default: all cores).
+    #[arg(long, env = "THERMOSIEVE_THREADS")]
+    pub threads: Option<usize>,
+    /// Free text stored in the manifest.
+    #[arg(long, default_value = "", env = "THERMOSIEVE_LABEL")]
+    pub label: String,
+}
+
+#[derive(clap::Args, Debug)]
+pub struct RedisArgs {
+    /// Redis URL (a password belongs in this variable, never on a command line).
+    #[arg(long, default_value = "redis://127.0.0.1:6379/", env = "THERMOSIEVE_REDIS_URL", hide_env_values = true)]
+    pub redis_url: String,
+    /// Key prefix in Redis.
+    #[arg(long, default_value = "thermosieve", env = "THERMOSIEVE_REDIS_PREFIX")]
+    pub redis_prefix: String,
+    /// Hours a finished batch's state is kept in Redis.
+    #[arg(long, default_value_t = 168, env = "THERMOSIEVE_RETENTION_HOURS")]
+    pub retention_hours: u64,
+}
+
+#[derive(clap::Args, Debug)]
+pub struct ServeArgs {
+    /// Address to listen on.
+    #[arg(long, default_value = "0.0.0.0:50051", env = "THERMOSIEVE_LISTEN")]
+    pub listen: SocketAddr,
+    /// Results folder shared with the workers.
+    #[arg(long, env = "THERMOSIEVE_RESULTS_DIR")]
+    pub results_dir: PathBuf,
+    #[command(flatten)]
+    pub redis: RedisArgs,
+    /// Default cases per chunk.
+    #[arg(long, default_value_t = 2000, env = "THERMOSIEVE_CHUNK_SIZE")]
+    pub chunk_size: usize,
+    /// Queue depth (chunks) above which submissions get RESOURCE_EXHAUSTED.
+    #[arg(long, default_value_t = 10_000, env = "THERMOSIEVE_MAX_QUEUE_DEPTH")]
+    pub max_queue_depth: u64,
+    /// Seconds a submission waits for queue room before RESOURCE_EXHAUSTED.
+    #[arg(long, default_value_t = 30, env = "THERMOSIEVE_ENQUEUE_WAIT_S")]
+    pub enqueue_wait_s: u64,
+}
+
+#[derive(clap::Args, Debug)]
+pub struct WorkArgs {
+    /// Results folder shared with the front.
+    #[arg(long, env = "THERMOSIEVE_RESULTS_DIR")]
+    pub results_dir: PathBuf,
+    #[command(flatten)]
+    pub redis: RedisArgs,
+    /// Engine threads (default: all cores).
+    #[arg(long, env = "THERMOSIEVE_THREADS")]
+    pub threads: Option<usize>,
+    /// Consumer name (unique per worker; default: hostname-pid).
+    #[arg(long, env = "THERMOSIEVE_CONSUMER")]
+    pub consumer: Option<String>,
+    /// Seconds a chunk may stay unacknowledged before another worker reclaims it.
+    #[arg(long, default_value_t = 60, env = "THERMOSIEVE_RECLAIM_IDLE_S")]
+    pub reclaim_idle_s: u64,
+    /// Deliveries after which a chunk is dead-lettered (its cases become error rows).
+    #[arg(long, default_value_t = 3, env = "THERMOSIEVE_MAX_DELIVERIES")]
+    pub max_deliveries: u64,
+    /// Keep part files after finalizing.
+    #[arg(long, env = "THERMOSIEVE_KEEP_PARTS")]
+    pub keep_parts: bool,
+}
+
+#[derive(clap::Args, Debug)]
+pub struct SubmitArgs {
+    /// Input table: .csv, .tsv, .jsonl or .parquet.
+    pub input: PathBuf,
+    /// Front address.
+    #[arg(long, default_value = "http://127.0.0.1:50051", env = "THERMOSIEVE_FRONT")]
+    pub front: String,
+    /// Grid temperatures in K, comma-separated.
+    #[arg(long, value_delimiter = ',', env = "THERMOSIEVE_TEMPERATURES_K")]
+    pub temperatures_k: Option<Vec<f64>>,
+    /// Input format when the extension does not tell.
+    #[arg(long, env = "THERMOSIEVE_FORMAT")]
+    pub format: Option<String>,
+    /// Cases per chunk (0: the front's default).
+    #[arg(long, default_value_t = 0, env = "THERMOSIEVE_CHUNK_SIZE")]
+    pub chunk_size: u32,
+    /// Free text stored in the manifest.
+    #[arg(long, default_value = "", env = "THERMOSIEVE_LABEL")]
+    pub label: String,
+}
+
+#[derive(clap::Args, Debug)]
+pub struct WatchArgs {
+    /// The batch id printed by submit.
+    pub batch_id: String,
+    #[arg(long, default_value = "http://127.0.0.1:50051", env = "THERMOSIEVE_FRONT")]
+    pub front: String,
+}
+
+#[derive(clap::Args, Debug)]
+pub struct FetchArgs {
+    /// The batch id printed by submit.
+    pub batch_id: String,
+    /// Folder to write cases.parquet, trends.parquet, routes.parquet and manifest.json into.
+    #[arg(long, env = "THERMOSIEVE_OUT")]
+    pub out: PathBuf,
+    #[arg(long, default_value = "http://127.0.0.1:50051", env = "THERMOSIEVE_FRONT")]
+    pub front: String,
+}
+
+pub enum Cmd {
+    Run(RunArgs),
+    Serve(ServeArgs),
+    Work(WorkArgs),
+    Submit(SubmitArgs),
+    Watch(WatchArgs),
+    Fetch(FetchArgs),
+}
+
+/// An error that means "you asked for something invalid" (exit 2) rather than "it broke" (exit 1).
+#[derive(Debug)]
+struct Usage(String);
+
+impl std::fmt::Display for Usage {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.0)
+    }
+}
+
+impl std::error::Error for Usage {}
+
+/// The batch ended failed or cancelled (exit 4).
+#[derive(Debug)]
+struct BatchEnded(String);
+
+impl std::fmt::Display for BatchEnded {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(&self.0)
+    }
+}
+
+impl std::error::Error for BatchEnded {}
+
+pub fn main(cmd: Cmd) -> ExitCode {
+    tracing_subscriber::fmt()
+        .with_env_filter(tracing_subscriber::EnvFilter::try_from_env("THERMOSIEVE_LOG").unwrap_or_else(|_| tracing_subscriber::EnvFilter::new("info")))
+        .with_writer(std::io::stderr)
+        .init();
+    let rt = match tokio::runtime::Builder::new_multi_thread().enable_all().build() {
+        Ok(rt) => rt,
+        Err(e) => {
+            eprintln!("error: cannot start the async runtime: {e}");
+            return ExitCode::FAILURE;
+        }
+    };
+    let r = rt.block_on(async move {
+        match cmd {
+            Cmd::Run(a) => run(a).await,
+            Cmd::Serve(a) => serve(a).await,
+            Cmd::Work(a) => work(a).await,
+            Cmd::Submit(a) => submit(a).await,
+            Cmd::Watch(a) => watch(a).await,
+            Cmd::Fetch(a) => fetch(a).await,
+        }
+    });
+    match r {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(e) => {
+            eprintln!("error: {e:#}");
+            if e.downcast_ref::<Usage>().is_some() {
+                ExitCode::from(2)
+            } else if e.downcast_ref::<BatchEnded>().is_some() {
+                ExitCode::from(EXIT_BATCH_FAILED)
+            } else {
+                ExitCode::FAILURE
+            }
+        }
+    }
+}
+
+fn format_arg(f: &Option<String>) -> anyhow::Result<Option<Format>> {
+    match f {
+        None => Ok(None),
+        Some(s) => Format::parse(s).map(Some).ok_or_else(|| Usage(format!("--format {s:?}: expected csv, tsv, jsonl or parquet")).into()),
+    }
+}
+
+fn open_input(path: &std::path::Path, format: &Option<String>) -> anyhow::Result<input::Cases> {
+    input::open(path, format_arg(format)?).map_err(|e| Usage(e.to_string()).into())
+}
+
+async fn shutdown_signal() {
+    let ctrl_c = tokio::signal::ctrl_c();
+    #[cfg(unix)]
+    {
+        let mut term = match tokio::signal::unix::signal(tokio::signal::unix::SignalKind::terminate()) {
+            Ok(s) => s,
+            Err(e) => {
+                tracing::warn!(error = %e, "cannot listen for SIGTERM; only ctrl-c stops this process");
+                let _ = ctrl_c.await;
+                return;
+            }
+        };
+        tokio::select! {
+            _ = ctrl_c => {}
+            _ = term.recv() => {}
+        }
+    }
+    #[cfg(not(unix))]
+    let _ = ctrl_c.await;
+    tracing::info!("shutdown requested");
+}
+
+fn threads(t: Option<usize>) -> usize {
+    t.unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get())).max(1)
+}
+
+async fn run(a: RunArgs) -> anyhow::Result<()> {
+    let cases = open_input(&a.input, &a.format)?;
+    let options = BatchOptions { temperatures_k: a.temperatures_k.unwrap_or_default(), chunk_size: a.chunk_size, label: a.label, ..BatchOptions::default() };
+    std::fs::create_dir_all(&a.out).with_context(|| format!("creating {}", a.out.display()))?;
+    let t0 = std::time::Instant::now();
+    let outcome = thermosieve_front::embedded::run_cases(cases, options, &a.out, threads(a.threads)).await.map_err(|e| match e {
+        thermosieve_front::FrontError::InvalidArgument { field, reason } => anyhow::Error::new(Usage(format!("{}: {reason}", field.replace("header.", "--").replace('_', "-")))),
+        other => anyhow::Error::new(other),
+    })?;
+    let s = &outcome.submitted;
+    let p = &outcome.progress;
+    let secs = t0.elapsed().as_secs_f64();
+    println!("batch {}: {} cases ({} ok, {} error) in {:.2} s ({:.0} cases/s)", s.batch_id, p.cases_done, p.cases_done - p.cases_error, p.cases_error, secs, p.cases_done as f64 / secs.max(1e-9));
+    for f in [thermosieve_worker::CASES_FILE, thermosieve_worker::TRENDS_FILE, thermosieve_worker::ROUTES_FILE, thermosieve_worker::MANIFEST_FILE] {
+        println!("  {}", outcome.batch_dir.join(f).display());
+    }
+    println!("caution: {}", thermosieve_engine::CAUTION);
+    Ok(())
+}
+
+async fn redis_queue(r: &RedisArgs) -> anyhow::Result<Arc<dyn Queue>> {
+    let mut cfg = RedisConfig::new(r.redis_url.clone());
+    cfg.prefix = r.redis_prefix.clone();
+    cfg.retention = Duration::from_secs(r.retention_hours * 3600);
+    // The URL may hold a password: never print it.
+    let q = RedisQueue::connect(cfg).await.context("connecting to redis (THERMOSIEVE_REDIS_URL)")?;
+    Ok(Arc::new(q))
+}
+
+async fn serve(a: ServeArgs) -> anyhow::Result<()> {
+    let queue = redis_queue(&a.redis).await?;
+    std::fs::create_dir_all(&a.results_dir).with_context(|| format!("creating {}", a.results_dir.display()))?;
+    let cfg = FrontConfig {
+        results_dir: a.results_dir,
+        limits: IngestLimits { default_chunk_size: a.chunk_size, max_queue_depth: a.max_queue_depth, enqueue_wait: Duration::from_secs(a.enqueue_wait_s) },
+        watch_interval: Duration::from_millis(250),
+    };
+    let listener = tokio::net::TcpListener::bind(a.listen).await.with_context(|| format!("binding {}", a.listen))?;
+    println!("listening on {}", listener.local_addr()?);
+    thermosieve_front::serve(listener, Arc::new(Front::new(queue, cfg)), shutdown_signal()).await?;
+    Ok(())
+}
+
+async fn work(a: WorkArgs) -> anyhow::Result<()> {
+    let queue = redis_queue(&a.redis).await?;
+    let mut cfg = WorkerConfig::new(&a.results_dir);
+    cfg.threads = threads(a.threads);
+    if let Some(c) = a.consumer {
+        cfg.consumer = c;
+    } else {
+        let host = std::fs::read_to_string("/etc/hostname").map(|h| h.trim().to_string()).unwrap_or_else(|_| "worker".into());
+        cfg.consumer = format!("{host}-{}", std::process::id());
+    }
+    cfg.reclaim_idle = Duration::from_secs(a.reclaim_idle_s.max(1));
+    cfg.max_deliveries = a.max_deliveries.max(1);
+    cfg.keep_parts = a.keep_parts;
+    tracing::info!(consumer = %cfg.consumer, threads = cfg.threads, "worker starting");
+    let stats = thermosieve_worker::run(queue, cfg, shutdown_signal()).await?;
+    println!("worker stopped: {} chunks, {} cases, {} dead-lettered, {} batches finalized", stats.chunks, stats.cases, stats.dead_lettered, stats.finalized);
+    Ok(())
+}
+
+async fn client(front: &str) -> anyhow::Result<ScreeningClient<tonic::transport::Channel>> {
+    let c = ScreeningClient::connect(front.to_string()).await.with_context(|| format!("connecting to the front at {front} (THERMOSIEVE_FRONT)"))?;
+    Ok(c.max_decoding_message_size(64 << 20))
+}
+
+fn status_error(what: &str, s: tonic::Status) -> anyhow::Error {
+    match s.code() {
+        tonic::Code::InvalidArgument | tonic::Code::NotFound => Usage(format!("{what}: {}", s.message())).into(),
+        _ => anyhow::anyhow!("{what}: {} ({:?})", s.message(), s.code()),
+    }
+}
+
+async fn submit(a: SubmitArgs) -> anyhow::Result<()> {
+    let cases = open_input(&a.input, &a.format)?;
+    let mut c = client(&a.front).await?;
+    let header = pb::BatchHeader { temperatures_k: a.temperatures_k.unwrap_or_default(), default_conditions: None, chunk_size: a.chunk_size, label: a.label };
+    let (tx, rx) = tokio::sync::mpsc::channel::<pb::SubmitBatchRequest>(256);
+    // Reading the file is blocking I/O: a thread of its own feeds the stream.
+    let reader = tokio::task::spawn_blocking(move || {
+        if tx.blocking_send(pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Header(header)) }).is_err() {
+            return;
+        }
+        for case in cases {
+            if tx.blocking_send(pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Case(convert::case_to_pb(&case))) }).is_err() {
+                return;
+            }
+        }
+    });
+    let r = c.submit_batch(tokio_stream::wrappers::ReceiverStream::new(rx)).await.map_err(|s| status_error("submit", s))?.into_inner();
+    let _ = reader.await;
+    eprintln!("submitted {} cases ({} input errors) in {} chunks", r.cases_received, r.input_errors, r.chunks);
+    println!("{}", r.batch_id);
+    Ok(())
+}
+
+fn state_name(s: i32) -> &'static str {
+    match pb::BatchState::try_from(s) {
+        Ok(pb::BatchState::Receiving) => "receiving",
+        Ok(pb::BatchState::Running) => "running",
+        Ok(pb::BatchState::Finalizing) => "finalizing",
+        Ok(pb::BatchState::Done) => "done",
+        Ok(pb::BatchState::Failed) => "failed",
+        Ok(pb::BatchState::Cancelled) => "cancelled",
+        _ => "unknown",
+    }
+}
+
+async fn watch(a: WatchArgs) -> anyhow::Result<()> {
+    let mut c = client(&a.front).await?;
+    let mut stream = c.watch_batch(pb::WatchBatchRequest { batch_id: a.batch_id.clone() }).await.map_err(|s| status_error("watch", s))?.into_inner();
+    let bar = ProgressBar::new(0);
+    bar.set_style(
+        ProgressStyle::with_template("{spinner} {msg:>10} [{bar:40}] {pos}/{len} cases  {per_sec}  eta {eta}")
+            .unwrap_or_else(|_| ProgressStyle::default_bar())
+            .progress_chars("=> "),
+    );
+    let mut last: Option<pb::BatchStatus> = None;
+    while let Some(s) = stream.message().await.map_err(|s| status_error("watch", s))? {
+        bar.set_length(s.cases_total);
+        bar.set_position(s.cases_done);
+        bar.set_message(state_name(s.state));
+        last = Some(s);
+    }
+    bar.finish();
+    let Some(s) = last else { bail!("the front ended the watch without a status") };
+    println!("batch {}: {} — {} cases, {} errors, {} chunks dead-lettered, {:.1} s{}", s.batch_id, state_name(s.state), s.cases_done, s.cases_error, s.chunks_dead_lettered, s.elapsed_seconds, if s.message.is_empty() { String::new() } else { format!(" ({})", s.message) });
+    if s.state != pb::BatchState::Done as i32 {
+        return Err(BatchEnded(format!("batch {} ended {}", s.batch_id, state_name(s.state))).into());
+    }
+    Ok(())
+}
+
+async fn fetch(a: FetchArgs) -> anyhow::Result<()> {
+    let mut c = client(&a.front).await?;
+    std::fs::create_dir_all(&a.out).with_context(|| format!("creating {}", a.out.display()))?;
+    for table in [pb::Table::Cases, pb::Table::Trends, pb::Table::Routes, pb::Table::Manifest] {
+        let mut stream = c.fetch_table(pb::FetchTableRequest { batch_id: a.batch_id.clone(), table: table as i32 }).await.map_err(|s| status_error("fetch", s))?.into_inner();
+        // Streamed to a temp file, renamed when complete: memory stays at one message.
+        let tmp = a.out.join(format!(".fetch-{}-{}.part", table as i32, std::process::id()));
+        let mut file = std::io::BufWriter::new(std::fs::File::create(&tmp).with_context(|| format!("writing {}", tmp.display()))?);
+        let mut name = String::new();
+        let mut written = 0u64;
+        while let Some(chunk) = stream.message().await.map_err(|s| status_error("fetch", s))? {
+            name = chunk.file_name;
+            std::io::Write::write_all(&mut file, &chunk.data).with_context(|| format!("writing {}", tmp.display()))?;
+            written += chunk.data.len() as u64;
+        }
+        std::io::Write::flush(&mut file).with_context(|| format!("writing {}", tmp.display()))?;
+        drop(file);
+        if name.is_empty() {
+            let _ = std::fs::remove_file(&tmp);
+            bail!("the front sent no data for {table:?}");
+        }
+        let path = a.out.join(&name);
+        std::fs::rename(&tmp, &path).with_context(|| format!("writing {}", path.display()))?;
+        println!("{} ({written} bytes)", path.display());
+    }
+    Ok(())
+}

@@ -1,0 +1,157 @@
+//! Wire types ↔ the queue's model and the worker's rows. Kept in one module so a new field is
+//! mapped in one place.
+
+use thermosieve_proto::v1 as pb;
+use thermosieve_queue::{BatchState, CaseInput, Conditions, Progress};
+use thermosieve_worker::rows::{CaseRow, TrendRow, STATUS_ERROR, STATUS_OK};
+
+pub fn conditions_from_pb(c: Option<pb::ProcessConditions>) -> Conditions {
+    let Some(c) = c else { return Conditions::default() };
+    Conditions {
+        process_temperature_k: c.process_temperature_k,
+        pressure_bar: c.pressure_bar,
+        scale_mol: c.scale_mol,
+        reaction_mass_kg: c.reaction_mass_kg,
+        cp_kj_per_kg_k: c.cp_kj_per_kg_k,
+        dosing_time_h: c.dosing_time_h,
+        accumulation_fraction: c.accumulation_fraction,
+        mtt_k: c.mtt_k,
+        t_d24_k: c.t_d24_k,
+        dsc_onset_k: c.dsc_onset_k,
+        coolant_temperature_k: c.coolant_temperature_k,
+        ua_w_per_k: c.ua_w_per_k,
+        extra: c.extra.into_iter().collect(),
+    }
+}
+
+pub fn conditions_to_pb(c: &Conditions) -> pb::ProcessConditions {
+    pb::ProcessConditions {
+        process_temperature_k: c.process_temperature_k,
+        pressure_bar: c.pressure_bar,
+        scale_mol: c.scale_mol,
+        reaction_mass_kg: c.reaction_mass_kg,
+        cp_kj_per_kg_k: c.cp_kj_per_kg_k,
+        dosing_time_h: c.dosing_time_h,
+        accumulation_fraction: c.accumulation_fraction,
+        mtt_k: c.mtt_k,
+        t_d24_k: c.t_d24_k,
+        dsc_onset_k: c.dsc_onset_k,
+        coolant_temperature_k: c.coolant_temperature_k,
+        ua_w_per_k: c.ua_w_per_k,
+        extra: c.extra.clone().into_iter().collect(),
+    }
+}
+
+fn non_empty(s: String) -> Option<String> {
+    (!s.is_empty()).then_some(s)
+}
+
+/// A wire case as the queue carries it. Nothing is rejected here: checks that make a case an
+/// error row happen in the ingest.
+pub fn case_from_pb(c: pb::Case) -> CaseInput {
+    let mut input_error = non_empty(c.input_error);
+    let phase = non_empty(c.phase).map(|p| p.to_ascii_lowercase());
+    if let Some(p) = &phase {
+        if input_error.is_none() && !crate::input::PHASES.contains(&p.as_str()) {
+            input_error = Some(format!("column phase: expected one of gas, liquid, solid, standard, got {p:?}"));
+        }
+    }
+    let conditions = conditions_from_pb(c.conditions);
+    for (name, v) in thermosieve_queue::CONDITION_FIELDS.iter().zip(conditions.values()) {
+        if let Some(v) = v {
+            if !v.is_finite() && input_error.is_none() {
+                input_error = Some(format!("column {name}: expected a finite number, got {v}"));
+            }
+        }
+    }
+    CaseInput {
+        case_id: c.case_id,
+        reaction: c.reaction,
+        route_id: non_empty(c.route_id),
+        step: c.step,
+        phase,
+        conditions,
+        input_error: input_error.map(|e| if e.starts_with("row ") || c.row_number == 0 { e } else { format!("row {}, {e}", c.row_number) }),
+        row: c.row_number,
+    }
+}
+
+/// A model case on the wire (the CLI's `submit`).
+pub fn case_to_pb(c: &CaseInput) -> pb::Case {
+    pb::Case {
+        case_id: c.case_id.clone(),
+        reaction: c.reaction.clone(),
+        route_id: c.route_id.clone().unwrap_or_default(),
+        step: c.step,
+        phase: c.phase.clone().unwrap_or_default(),
+        conditions: Some(conditions_to_pb(&c.conditions)),
+        input_error: c.input_error.clone().unwrap_or_default(),
+        row_number: c.row,
+    }
+}
+
+pub fn case_row_to_pb(r: &CaseRow) -> pb::CaseRow {
+    pb::CaseRow {
+        case_id: r.case_id.clone(),
+        route_id: r.route_id.clone().unwrap_or_default(),
+        step: r.step,
+        status: (if r.ok { STATUS_OK } else { STATUS_ERROR }).to_string(),
+        error_message: r.error_message.clone().unwrap_or_default(),
+        balanced_equation: r.balanced_equation.clone().unwrap_or_default(),
+        delta_h_298_kj_per_mol: r.delta_h_298_kj_per_mol,
+        delta_s_298_j_per_mol_k: r.delta_s_298_j_per_mol_k,
+        delta_g_298_kj_per_mol: r.delta_g_298_kj_per_mol,
+        log10_k_298: r.log10_k_298,
+        delta_g_zero_k: r.delta_g_zero_k,
+        delta_h_uncertainty_kj_per_mol: r.delta_h_uncertainty_kj_per_mol,
+        estimated_species: r.estimated_species,
+        all_points_in_valid_range: r.all_points_in_valid_range,
+        species_sources: r.species_sources.clone().unwrap_or_default(),
+        notes: r.notes.clone().unwrap_or_default(),
+    }
+}
+
+pub fn trend_row_to_pb(r: &TrendRow) -> pb::TrendRow {
+    pb::TrendRow {
+        case_id: r.case_id.clone(),
+        temperature_k: r.temperature_k,
+        delta_h_kj_per_mol: r.delta_h_kj_per_mol,
+        delta_s_j_per_mol_k: r.delta_s_j_per_mol_k,
+        delta_g_kj_per_mol: r.delta_g_kj_per_mol,
+        log10_k: r.log10_k,
+        in_valid_range: r.in_valid_range,
+    }
+}
+
+pub fn state_to_pb(s: BatchState) -> pb::BatchState {
+    match s {
+        BatchState::Receiving => pb::BatchState::Receiving,
+        BatchState::Running => pb::BatchState::Running,
+        BatchState::Finalizing => pb::BatchState::Finalizing,
+        BatchState::Done => pb::BatchState::Done,
+        BatchState::Failed => pb::BatchState::Failed,
+        BatchState::Cancelled => pb::BatchState::Cancelled,
+    }
+}
+
+pub fn status_to_pb(batch_id: &str, p: &Progress) -> pb::BatchStatus {
+    let end = p.finished_unix_ms.unwrap_or_else(thermosieve_queue::now_unix_ms);
+    let tables = if p.state == BatchState::Done {
+        vec![pb::Table::Cases as i32, pb::Table::Trends as i32, pb::Table::Routes as i32, pb::Table::Manifest as i32]
+    } else {
+        Vec::new()
+    };
+    pb::BatchStatus {
+        batch_id: batch_id.to_string(),
+        state: state_to_pb(p.state) as i32,
+        cases_total: p.cases_total,
+        cases_done: p.cases_done,
+        cases_error: p.cases_error,
+        chunks_total: p.chunks_total,
+        chunks_done: p.chunks_done,
+        chunks_dead_lettered: p.chunks_dead,
+        elapsed_seconds: end.saturating_sub(p.created_unix_ms) as f64 / 1000.0,
+        message: p.message.clone(),
+        tables,
+    }
+}

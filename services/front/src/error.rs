@@ -1,0 +1,47 @@
+//! The front's one error enum, mapped once to `tonic::Code`.
+
+use thermosieve_queue::QueueError;
+
+/// Why a front request failed.
+#[derive(Debug, thiserror::Error)]
+pub enum FrontError {
+    /// A malformed request: names the field.
+    #[error("{field}: {reason}")]
+    InvalidArgument { field: String, reason: String },
+    #[error("no batch {0}")]
+    NotFound(String),
+    #[error("the queue holds {depth} chunks, more than the limit of {limit}; retry later")]
+    QueueFull { depth: u64, limit: u64 },
+    #[error("{0}")]
+    FailedPrecondition(String),
+    #[error("queue: {0}")]
+    Queue(#[from] QueueError),
+    #[error("{path}: {source}")]
+    Io { path: String, source: std::io::Error },
+    #[error("{0}")]
+    Internal(String),
+}
+
+impl FrontError {
+    pub fn invalid(field: &str, reason: impl Into<String>) -> FrontError {
+        FrontError::InvalidArgument { field: field.to_string(), reason: reason.into() }
+    }
+}
+
+impl From<FrontError> for tonic::Status {
+    fn from(e: FrontError) -> tonic::Status {
+        let code = match &e {
+            FrontError::InvalidArgument { .. } => tonic::Code::InvalidArgument,
+            FrontError::NotFound(_) => tonic::Code::NotFound,
+            FrontError::QueueFull { .. } => tonic::Code::ResourceExhausted,
+            FrontError::FailedPrecondition(_) => tonic::Code::FailedPrecondition,
+            FrontError::Queue(q) if q.retryable() => tonic::Code::Unavailable,
+            FrontError::Queue(QueueError::UnknownBatch(_)) => tonic::Code::NotFound,
+            FrontError::Queue(_) | FrontError::Io { .. } | FrontError::Internal(_) => tonic::Code::Internal,
+        };
+        if code == tonic::Code::Internal {
+            tracing::error!(error = %e, "internal error");
+        }
+        tonic::Status::new(code, e.to_string())
+    }
+}

@@ -1,0 +1,324 @@
+//! The `thermosieve.v1.Screening` service and the server around it (health and reflection on).
+
+use crate::convert::{case_from_pb, case_row_to_pb, conditions_from_pb, status_to_pb, trend_row_to_pb};
+use crate::error::FrontError;
+use crate::ingest::{batch_spec, is_batch_id, BatchOptions, Ingest, IngestLimits};
+use std::collections::HashMap;
+use std::future::Future;
+use std::path::PathBuf;
+use std::pin::Pin;
+use std::sync::{Arc, Mutex};
+use std::time::Duration;
+use thermosieve_engine::formula::parse_species;
+use thermosieve_engine::species::{self, T_REF_K};
+use thermosieve_proto::v1 as pb;
+use thermosieve_proto::v1::screening_server::{Screening, ScreeningServer};
+use thermosieve_queue::{BatchState, Progress, Queue};
+use thermosieve_worker::parts::batch_dir;
+use thermosieve_worker::process::ChunkProcessor;
+use tokio::io::AsyncReadExt;
+use tokio::net::TcpListener;
+use tokio_stream::wrappers::{ReceiverStream, TcpListenerStream};
+use tonic::{Request, Response, Status, Streaming};
+
+/// Most cases of one ScreenInline call, and species of one ResolveSpecies call.
+pub const MAX_INLINE: usize = 100;
+/// Bytes per FetchTable message.
+pub const FETCH_CHUNK_BYTES: usize = 1 << 20;
+/// Batch ids remembered by this front, to tell "lost by the queue" from "never existed".
+const KNOWN_BATCHES: usize = 10_000;
+
+/// Front configuration.
+#[derive(Clone, Debug)]
+pub struct FrontConfig {
+    /// Where workers write batch folders (shared storage).
+    pub results_dir: PathBuf,
+    pub limits: IngestLimits,
+    /// How often WatchBatch looks at the counters.
+    pub watch_interval: Duration,
+}
+
+/// State shared by all requests.
+pub struct Front {
+    queue: Arc<dyn Queue>,
+    cfg: FrontConfig,
+    /// A `std::sync::Mutex`: held only to insert or look up, never across an await.
+    known: Mutex<HashMap<String, u64>>,
+    inline: Arc<Mutex<ChunkProcessor>>,
+}
+
+impl Front {
+    pub fn new(queue: Arc<dyn Queue>, cfg: FrontConfig) -> Front {
+        Front { queue, cfg, known: Mutex::new(HashMap::new()), inline: Arc::new(Mutex::new(ChunkProcessor::new())) }
+    }
+
+    fn remember(&self, id: &str) {
+        let mut k = self.known.lock().unwrap_or_else(|e| e.into_inner());
+        if k.len() >= KNOWN_BATCHES {
+            k.clear();
+        }
+        k.insert(id.to_string(), thermosieve_queue::now_unix_ms());
+    }
+
+    fn check_id(id: &str) -> Result<(), FrontError> {
+        if is_batch_id(id) {
+            Ok(())
+        } else {
+            Err(FrontError::invalid("batch_id", "expected the 32 hex digits returned by SubmitBatch"))
+        }
+    }
+
+    /// Progress of a batch; a batch this front created that the queue no longer knows is
+    /// reported FAILED (the queue lost its state), never silently gone.
+    async fn progress(&self, id: &str) -> Result<Progress, FrontError> {
+        Self::check_id(id)?;
+        if let Some(p) = self.queue.progress(id).await? {
+            return Ok(p);
+        }
+        let created = self.known.lock().unwrap_or_else(|e| e.into_inner()).get(id).copied();
+        match created {
+            Some(created_unix_ms) => Ok(Progress {
+                state: BatchState::Failed,
+                chunks_total: 0,
+                chunks_done: 0,
+                chunks_dead: 0,
+                cases_total: 0,
+                cases_done: 0,
+                cases_error: 0,
+                message: "the queue lost this batch's state (redis restarted without persistence?); resubmit it".into(),
+                created_unix_ms,
+                finished_unix_ms: None,
+            }),
+            None => Err(FrontError::NotFound(id.to_string())),
+        }
+    }
+
+    async fn submit(&self, mut stream: Streaming<pb::SubmitBatchRequest>) -> Result<pb::SubmitBatchResponse, FrontError> {
+        let first = stream.message().await.map_err(|s| FrontError::invalid("item", format!("stream broke off: {}", s.message())))?;
+        let header = match first.and_then(|m| m.item) {
+            Some(pb::submit_batch_request::Item::Header(h)) => h,
+            _ => return Err(FrontError::invalid("item.header", "the first message must be a header")),
+        };
+        let options = BatchOptions {
+            temperatures_k: header.temperatures_k,
+            default_conditions: conditions_from_pb(header.default_conditions),
+            chunk_size: header.chunk_size as usize,
+            label: header.label,
+        };
+        let spec = batch_spec(options, &self.cfg.limits)?;
+        let mut ingest = Ingest::start(self.queue.clone(), spec, self.cfg.limits.clone()).await?;
+        self.remember(ingest.batch_id());
+        loop {
+            let msg = match stream.message().await {
+                Ok(Some(m)) => m,
+                Ok(None) => break,
+                Err(s) => {
+                    ingest.abort(&format!("the submission stream broke off: {}", s.message())).await;
+                    return Err(FrontError::invalid("item", format!("stream broke off: {}", s.message())));
+                }
+            };
+            let r = match msg.item {
+                Some(pb::submit_batch_request::Item::Case(c)) => ingest.push(case_from_pb(c)).await,
+                Some(pb::submit_batch_request::Item::Header(_)) => Err(FrontError::invalid("item.header", "only the first message may be a header")),
+                None => Err(FrontError::invalid("item", "empty message: set header or case")),
+            };
+            if let Err(e) = r {
+                ingest.abort(&e.to_string()).await;
+                return Err(e);
+            }
+        }
+        let s = ingest.finish().await?;
+        Ok(pb::SubmitBatchResponse { batch_id: s.batch_id, cases_received: s.cases, input_errors: s.input_errors, chunks: s.chunks })
+    }
+}
+
+type BoxStream<T> = Pin<Box<dyn tokio_stream::Stream<Item = Result<T, Status>> + Send + 'static>>;
+
+/// The tonic service; cheap to clone.
+#[derive(Clone)]
+pub struct ScreeningService(pub Arc<Front>);
+
+#[tonic::async_trait]
+impl Screening for ScreeningService {
+    async fn submit_batch(&self, request: Request<Streaming<pb::SubmitBatchRequest>>) -> Result<Response<pb::SubmitBatchResponse>, Status> {
+        Ok(Response::new(self.0.submit(request.into_inner()).await?))
+    }
+
+    async fn get_batch_status(&self, request: Request<pb::GetBatchStatusRequest>) -> Result<Response<pb::BatchStatus>, Status> {
+        let id = request.into_inner().batch_id;
+        let p = self.0.progress(&id).await?;
+        Ok(Response::new(status_to_pb(&id, &p)))
+    }
+
+    type WatchBatchStream = BoxStream<pb::BatchStatus>;
+
+    async fn watch_batch(&self, request: Request<pb::WatchBatchRequest>) -> Result<Response<Self::WatchBatchStream>, Status> {
+        let id = request.into_inner().batch_id;
+        let first = self.0.progress(&id).await?;
+        let (tx, rx) = tokio::sync::mpsc::channel(4);
+        let front = self.0.clone();
+        tokio::spawn(async move {
+            let mut last = first;
+            if tx.send(Ok(status_to_pb(&id, &last))).await.is_err() {
+                return;
+            }
+            while !last.state.is_final() {
+                tokio::time::sleep(front.cfg.watch_interval).await;
+                let p = match front.progress(&id).await {
+                    Ok(p) => p,
+                    Err(e) => {
+                        let _ = tx.send(Err(e.into())).await;
+                        return;
+                    }
+                };
+                if p != last {
+                    if tx.send(Ok(status_to_pb(&id, &p))).await.is_err() {
+                        return;
+                    }
+                    last = p;
+                }
+            }
+        });
+        Ok(Response::new(Box::pin(ReceiverStream::new(rx))))
+    }
+
+    async fn cancel_batch(&self, request: Request<pb::CancelBatchRequest>) -> Result<Response<pb::BatchStatus>, Status> {
+        let id = request.into_inner().batch_id;
+        Front::check_id(&id)?;
+        self.0.queue.stop_batch(&id, BatchState::Cancelled, "cancelled by a caller").await.map_err(FrontError::from)?;
+        tracing::info!(batch_id = %id, "batch cancelled");
+        let p = self.0.progress(&id).await?;
+        Ok(Response::new(status_to_pb(&id, &p)))
+    }
+
+    type FetchTableStream = BoxStream<pb::TableChunk>;
+
+    async fn fetch_table(&self, request: Request<pb::FetchTableRequest>) -> Result<Response<Self::FetchTableStream>, Status> {
+        let r = request.into_inner();
+        let p = self.0.progress(&r.batch_id).await?;
+        if p.state != BatchState::Done {
+            return Err(FrontError::FailedPrecondition(format!("batch {} is {}, not done", r.batch_id, p.state.as_str())).into());
+        }
+        let name = match pb::Table::try_from(r.table) {
+            Ok(pb::Table::Cases) => thermosieve_worker::CASES_FILE,
+            Ok(pb::Table::Trends) => thermosieve_worker::TRENDS_FILE,
+            Ok(pb::Table::Routes) => thermosieve_worker::ROUTES_FILE,
+            Ok(pb::Table::Manifest) => thermosieve_worker::MANIFEST_FILE,
+            _ => return Err(FrontError::invalid("table", "expected TABLE_CASES, TABLE_TRENDS, TABLE_ROUTES or TABLE_MANIFEST").into()),
+        };
+        let path = batch_dir(&self.0.cfg.results_dir, &r.batch_id).map_err(|e| FrontError::Internal(e.to_string()))?.join(name);
+        let io = |source| FrontError::Io { path: path.display().to_string(), source };
+        let mut file = tokio::fs::File::open(&path).await.map_err(io)?;
+        let total = file.metadata().await.map_err(io)?.len();
+        let (tx, rx) = tokio::sync::mpsc::channel(2);
+        tokio::spawn(async move {
+            let mut offset = 0u64;
+            loop {
+                let mut buf = vec![0u8; FETCH_CHUNK_BYTES];
+                let n = match file.read(&mut buf).await {
+                    Ok(0) => break,
+                    Ok(n) => n,
+                    Err(e) => {
+                        let _ = tx.send(Err(Status::internal(format!("reading {name}: {e}")))).await;
+                        break;
+                    }
+                };
+                buf.truncate(n);
+                let msg = pb::TableChunk { data: buf, offset, total_bytes: total, file_name: name.to_string() };
+                offset += n as u64;
+                if tx.send(Ok(msg)).await.is_err() {
+                    break;
+                }
+            }
+        });
+        Ok(Response::new(Box::pin(ReceiverStream::new(rx))))
+    }
+
+    async fn screen_inline(&self, request: Request<pb::ScreenInlineRequest>) -> Result<Response<pb::ScreenInlineResponse>, Status> {
+        let r = request.into_inner();
+        if r.cases.len() > MAX_INLINE {
+            return Err(FrontError::invalid("cases", format!("{} cases; ScreenInline takes at most {MAX_INLINE} (use SubmitBatch)", r.cases.len())).into());
+        }
+        let options = BatchOptions { temperatures_k: r.temperatures_k, default_conditions: conditions_from_pb(r.default_conditions), chunk_size: 0, label: String::new() };
+        let spec = batch_spec(options, &self.0.cfg.limits).map_err(|e| match e {
+            FrontError::InvalidArgument { field, reason } => FrontError::InvalidArgument { field: field.replace("header.", ""), reason },
+            other => other,
+        })?;
+        let cases: Vec<_> = r.cases.into_iter().enumerate().map(|(i, c)| {
+            let mut c = case_from_pb(c);
+            if c.row == 0 {
+                c.row = i as u64 + 1;
+            }
+            if c.case_id.trim().is_empty() && c.input_error.is_none() {
+                c.input_error = Some(format!("row {}, column case_id: missing", c.row));
+            }
+            c
+        }).collect();
+        let processor = self.0.inline.clone();
+        let (case_rows, trend_rows) = tokio::task::spawn_blocking(move || processor.lock().unwrap_or_else(|e| e.into_inner()).screen_cases(&spec, &cases))
+            .await
+            .map_err(|e| FrontError::Internal(format!("engine task: {e}")))?;
+        Ok(Response::new(pb::ScreenInlineResponse {
+            cases: case_rows.iter().map(case_row_to_pb).collect(),
+            trends: trend_rows.iter().map(trend_row_to_pb).collect(),
+            engine_version: thermosieve_engine::VERSION.to_string(),
+            caution: thermosieve_engine::CAUTION.to_string(),
+        }))
+    }
+
+    async fn resolve_species(&self, request: Request<pb::ResolveSpeciesRequest>) -> Result<Response<pb::ResolveSpeciesResponse>, Status> {
+        let r = request.into_inner();
+        if r.species.len() > MAX_INLINE {
+            return Err(FrontError::invalid("species", format!("{} species; at most {MAX_INLINE}", r.species.len())).into());
+        }
+        Ok(Response::new(pb::ResolveSpeciesResponse { species: r.species.into_iter().map(|s| resolve_one(&s)).collect() }))
+    }
+}
+
+/// What the bundled data says about one written species.
+pub fn resolve_one(query: &str) -> pb::SpeciesInfo {
+    let table = species::bundled();
+    let mut info = pb::SpeciesInfo { query: query.to_string(), ..Default::default() };
+    let resolved = parse_species(query.trim(), 0).map_err(|e| e.to_string()).and_then(|spec| table.resolve(&spec).map_err(|e| e.to_string()));
+    match resolved {
+        Err(e) => info.error = e,
+        Ok(r) => {
+            let st = r.state(T_REF_K, T_REF_K.ln());
+            let (lo, hi) = r.range_k();
+            info.label = r.label.clone();
+            info.formula = r.formula.hill();
+            info.phase = r.phase.tag().to_string();
+            info.source_line = r.source_line(table);
+            info.valid_min_k = lo;
+            info.valid_max_k = hi;
+            info.delta_fh_298_kj_per_mol = st.h_j_per_mol / 1000.0;
+            info.s_298_j_per_mol_k = st.s_j_per_mol_k;
+            info.delta_fh_uncertainty_kj_per_mol = r.dhf_uncertainty_kj_per_mol;
+            info.notes = r.notes.clone();
+        }
+    }
+    info
+}
+
+/// Serve the API, health and reflection on `listener` until `shutdown` completes.
+///
+/// # Errors
+/// Transport errors, or a reflection service that cannot read the descriptors.
+pub async fn serve(listener: TcpListener, front: Arc<Front>, shutdown: impl Future<Output = ()> + Send) -> Result<(), FrontError> {
+    let (health, health_service) = tonic_health::server::health_reporter();
+    health.set_serving::<ScreeningServer<ScreeningService>>().await;
+    let reflection = tonic_reflection::server::Builder::configure()
+        .register_encoded_file_descriptor_set(thermosieve_proto::FILE_DESCRIPTOR_SET)
+        .register_encoded_file_descriptor_set(tonic_health::pb::FILE_DESCRIPTOR_SET)
+        .build_v1()
+        .map_err(|e| FrontError::Internal(format!("reflection: {e}")))?;
+    let addr = listener.local_addr().map_err(|source| FrontError::Io { path: "listener".into(), source })?;
+    tracing::info!(%addr, "front listening");
+    tonic::transport::Server::builder()
+        .add_service(health_service)
+        .add_service(reflection)
+        .add_service(ScreeningServer::new(ScreeningService(front)))
+        .serve_with_incoming_shutdown(TcpListenerStream::new(listener), shutdown)
+        .await
+        .map_err(|e| FrontError::Internal(format!("server: {e}")))
+}

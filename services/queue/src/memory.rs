@@ -1,0 +1,304 @@
+//! The in-process backend: the same semantics as Redis Streams (pending entries, reclaim after
+//! an idle time, idempotent completion per chunk) in a mutex-guarded struct. Used by the
+//! embedded `run` mode and by unit tests.
+
+use crate::model::*;
+use crate::{Queue, QueueError};
+use std::collections::{BTreeMap, HashMap, HashSet, VecDeque};
+use std::sync::Mutex;
+use std::time::{Duration, Instant};
+use tokio::sync::Notify;
+
+struct Pending {
+    task: Task,
+    deliveries: u64,
+    delivered_at: Instant,
+}
+
+struct BatchRecord {
+    spec: BatchSpec,
+    progress: Progress,
+    done: HashSet<u64>,
+}
+
+#[derive(Default)]
+struct Inner {
+    next_id: u64,
+    ready: VecDeque<(u64, Task, u64)>,
+    pending: BTreeMap<u64, Pending>,
+    batches: HashMap<String, BatchRecord>,
+    dead: Vec<(Task, String)>,
+}
+
+impl Inner {
+    fn push(&mut self, task: Task) {
+        self.next_id += 1;
+        self.ready.push_back((self.next_id, task, 0));
+    }
+
+    fn maybe_finalize(&mut self, batch_id: &str) {
+        let Some(b) = self.batches.get_mut(batch_id) else { return };
+        if b.progress.state == BatchState::Running && b.progress.chunks_done >= b.progress.chunks_total {
+            b.progress.state = BatchState::Finalizing;
+            self.push(Task::Finalize { batch_id: batch_id.to_string() });
+        }
+    }
+
+    fn ack(&mut self, entry_id: &str) {
+        if let Ok(id) = entry_id.parse::<u64>() {
+            self.pending.remove(&id);
+        }
+    }
+}
+
+/// In-process queue. A `std::sync::Mutex` and not a Tokio mutex: no await happens while it is
+/// held; waiting consumers sleep on a [`Notify`].
+#[derive(Default)]
+pub struct MemoryQueue {
+    inner: Mutex<Inner>,
+    wake: Notify,
+}
+
+impl MemoryQueue {
+    pub fn new() -> MemoryQueue {
+        MemoryQueue::default()
+    }
+
+    fn lock(&self) -> std::sync::MutexGuard<'_, Inner> {
+        // A panic while holding the lock leaves plain data behind; keep serving it.
+        self.inner.lock().unwrap_or_else(|e| e.into_inner())
+    }
+
+    /// Tasks dead-lettered so far, with their reasons (for tests and the embedded report).
+    pub fn dead_letters(&self) -> Vec<(Task, String)> {
+        self.lock().dead.clone()
+    }
+}
+
+#[async_trait::async_trait]
+impl Queue for MemoryQueue {
+    async fn create_batch(&self, spec: &BatchSpec) -> Result<(), QueueError> {
+        let progress = Progress {
+            state: BatchState::Receiving,
+            chunks_total: 0,
+            chunks_done: 0,
+            chunks_dead: 0,
+            cases_total: 0,
+            cases_done: 0,
+            cases_error: 0,
+            message: String::new(),
+            created_unix_ms: spec.created_unix_ms,
+            finished_unix_ms: None,
+        };
+        self.lock().batches.insert(spec.batch_id.clone(), BatchRecord { spec: spec.clone(), progress, done: HashSet::new() });
+        Ok(())
+    }
+
+    async fn batch_spec(&self, batch_id: &str) -> Result<Option<BatchSpec>, QueueError> {
+        Ok(self.lock().batches.get(batch_id).map(|b| b.spec.clone()))
+    }
+
+    async fn enqueue(&self, chunk: &Chunk) -> Result<(), QueueError> {
+        {
+            let mut g = self.lock();
+            let b = g.batches.get_mut(&chunk.batch_id).ok_or_else(|| QueueError::UnknownBatch(chunk.batch_id.clone()))?;
+            if b.progress.state != BatchState::Receiving {
+                return Err(QueueError::WrongState { batch_id: chunk.batch_id.clone(), state: b.progress.state.as_str(), what: "chunks" });
+            }
+            b.progress.chunks_total += 1;
+            b.progress.cases_total += chunk.cases.len() as u64;
+            g.push(Task::Chunk(chunk.clone()));
+        }
+        self.wake.notify_one();
+        Ok(())
+    }
+
+    async fn seal(&self, batch_id: &str) -> Result<(), QueueError> {
+        {
+            let mut g = self.lock();
+            let b = g.batches.get_mut(batch_id).ok_or_else(|| QueueError::UnknownBatch(batch_id.to_string()))?;
+            if b.progress.state != BatchState::Receiving {
+                return Err(QueueError::WrongState { batch_id: batch_id.to_string(), state: b.progress.state.as_str(), what: "a seal" });
+            }
+            b.progress.state = BatchState::Running;
+            g.maybe_finalize(batch_id);
+        }
+        self.wake.notify_one();
+        Ok(())
+    }
+
+    async fn depth(&self) -> Result<u64, QueueError> {
+        let g = self.lock();
+        Ok((g.ready.len() + g.pending.len()) as u64)
+    }
+
+    async fn poll(&self, _consumer: &str, block: Duration) -> Result<Option<Delivery>, QueueError> {
+        let deadline = tokio::time::Instant::now() + block;
+        loop {
+            // Register interest before looking, so a push between the look and the wait wakes us.
+            let notified = self.wake.notified();
+            {
+                let mut g = self.lock();
+                if let Some((id, task, prior)) = g.ready.pop_front() {
+                    let deliveries = prior + 1;
+                    g.pending.insert(id, Pending { task: task.clone(), deliveries, delivered_at: Instant::now() });
+                    let more = !g.ready.is_empty();
+                    drop(g);
+                    if more {
+                        self.wake.notify_one();
+                    }
+                    return Ok(Some(Delivery { entry_id: id.to_string(), task, deliveries }));
+                }
+            }
+            if tokio::time::timeout_at(deadline, notified).await.is_err() {
+                return Ok(None);
+            }
+        }
+    }
+
+    async fn reclaim(&self, _consumer: &str, min_idle: Duration, max: usize) -> Result<Vec<Delivery>, QueueError> {
+        let mut g = self.lock();
+        let now = Instant::now();
+        let mut out = Vec::new();
+        for (id, p) in g.pending.iter_mut() {
+            if out.len() >= max {
+                break;
+            }
+            if now.duration_since(p.delivered_at) >= min_idle {
+                p.deliveries += 1;
+                p.delivered_at = now;
+                out.push(Delivery { entry_id: id.to_string(), task: p.task.clone(), deliveries: p.deliveries });
+            }
+        }
+        Ok(out)
+    }
+
+    async fn complete_chunk(&self, delivery: &Delivery, seq: u64, report: ChunkReport) -> Result<(), QueueError> {
+        let batch_id = delivery.task.batch_id().to_string();
+        {
+            let mut g = self.lock();
+            g.ack(&delivery.entry_id);
+            let b = g.batches.get_mut(&batch_id).ok_or_else(|| QueueError::UnknownBatch(batch_id.clone()))?;
+            if b.done.insert(seq) {
+                b.progress.chunks_done += 1;
+                b.progress.cases_done += report.cases;
+                b.progress.cases_error += report.errors;
+                b.progress.chunks_dead += u64::from(report.dead_lettered);
+            }
+            g.maybe_finalize(&batch_id);
+        }
+        self.wake.notify_one();
+        Ok(())
+    }
+
+    async fn dead_letter(&self, delivery: &Delivery, reason: &str) -> Result<(), QueueError> {
+        self.lock().dead.push((delivery.task.clone(), reason.to_string()));
+        Ok(())
+    }
+
+    async fn complete_finalize(&self, delivery: &Delivery, outcome: Result<(), String>) -> Result<(), QueueError> {
+        let mut g = self.lock();
+        g.ack(&delivery.entry_id);
+        if let Some(b) = g.batches.get_mut(delivery.task.batch_id()) {
+            if !b.progress.state.is_final() {
+                match outcome {
+                    Ok(()) => b.progress.state = BatchState::Done,
+                    Err(m) => {
+                        b.progress.state = BatchState::Failed;
+                        b.progress.message = m;
+                    }
+                }
+                b.progress.finished_unix_ms = Some(now_unix_ms());
+            }
+        }
+        Ok(())
+    }
+
+    async fn discard(&self, delivery: &Delivery) -> Result<(), QueueError> {
+        self.lock().ack(&delivery.entry_id);
+        Ok(())
+    }
+
+    async fn progress(&self, batch_id: &str) -> Result<Option<Progress>, QueueError> {
+        Ok(self.lock().batches.get(batch_id).map(|b| b.progress.clone()))
+    }
+
+    async fn stop_batch(&self, batch_id: &str, state: BatchState, message: &str) -> Result<BatchState, QueueError> {
+        let mut g = self.lock();
+        let b = g.batches.get_mut(batch_id).ok_or_else(|| QueueError::UnknownBatch(batch_id.to_string()))?;
+        if !b.progress.state.is_final() {
+            b.progress.state = state;
+            b.progress.message = message.to_string();
+            b.progress.finished_unix_ms = Some(now_unix_ms());
+        }
+        Ok(b.progress.state)
+    }
+
+    async fn recover(&self) -> Result<(), QueueError> {
+        Ok(())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn spec(id: &str) -> BatchSpec {
+        BatchSpec { batch_id: id.into(), temperatures_k: vec![300.0], default_conditions: Conditions::default(), chunk_size: 2, label: String::new(), created_unix_ms: 0 }
+    }
+
+    fn chunk(id: &str, seq: u64, n: usize) -> Chunk {
+        Chunk { batch_id: id.into(), seq, cases: (0..n).map(|i| CaseInput { case_id: format!("c{i}"), ..Default::default() }).collect() }
+    }
+
+    #[tokio::test]
+    async fn a_batch_finalizes_once_every_chunk_is_done_even_when_one_is_completed_twice() {
+        let q = MemoryQueue::new();
+        q.create_batch(&spec("b")).await.unwrap();
+        q.enqueue(&chunk("b", 0, 2)).await.unwrap();
+        q.enqueue(&chunk("b", 1, 1)).await.unwrap();
+        q.seal("b").await.unwrap();
+        let d0 = q.poll("w", Duration::from_millis(10)).await.unwrap().unwrap();
+        // Nobody acks d0 in time: it is reclaimed with a second delivery.
+        let again = q.reclaim("w2", Duration::ZERO, 10).await.unwrap();
+        assert_eq!(again.len(), 1);
+        assert_eq!(again[0].deliveries, 2);
+        let report = ChunkReport { cases: 2, errors: 0, dead_lettered: false };
+        q.complete_chunk(&d0, 0, report).await.unwrap();
+        q.complete_chunk(&again[0], 0, report).await.unwrap();
+        let p = q.progress("b").await.unwrap().unwrap();
+        assert_eq!((p.chunks_done, p.cases_done, p.state), (1, 2, BatchState::Running));
+        let d1 = q.poll("w", Duration::from_millis(10)).await.unwrap().unwrap();
+        q.complete_chunk(&d1, 1, ChunkReport { cases: 1, errors: 1, dead_lettered: false }).await.unwrap();
+        let p = q.progress("b").await.unwrap().unwrap();
+        assert_eq!((p.chunks_done, p.cases_done, p.cases_error, p.state), (2, 3, 1, BatchState::Finalizing));
+        let f = q.poll("w", Duration::from_millis(10)).await.unwrap().unwrap();
+        assert_eq!(f.task, Task::Finalize { batch_id: "b".into() });
+        q.complete_finalize(&f, Ok(())).await.unwrap();
+        assert_eq!(q.progress("b").await.unwrap().unwrap().state, BatchState::Done);
+        assert_eq!(q.depth().await.unwrap(), 0);
+    }
+
+    #[tokio::test]
+    async fn an_empty_batch_goes_straight_to_finalizing_and_a_sealed_batch_takes_no_chunks() {
+        let q = MemoryQueue::new();
+        q.create_batch(&spec("e")).await.unwrap();
+        q.seal("e").await.unwrap();
+        assert_eq!(q.progress("e").await.unwrap().unwrap().state, BatchState::Finalizing);
+        assert!(matches!(q.enqueue(&chunk("e", 0, 1)).await, Err(QueueError::WrongState { .. })));
+    }
+
+    #[test]
+    fn conditions_with_an_unknown_key_are_refused() {
+        let e = serde_json::from_str::<Conditions>(r#"{"scale_mol": 1.0, "scale_kmol": 2.0}"#).unwrap_err();
+        assert!(e.to_string().contains("unknown field `scale_kmol`"), "{e}");
+    }
+
+    #[test]
+    fn row_conditions_win_over_defaults() {
+        let row = Conditions { scale_mol: Some(2.0), ..Default::default() };
+        let d = Conditions { scale_mol: Some(9.0), pressure_bar: Some(1.5), ..Default::default() };
+        let c = row.or_defaults(&d);
+        assert_eq!((c.scale_mol, c.pressure_bar), (Some(2.0), Some(1.5)));
+    }
+}

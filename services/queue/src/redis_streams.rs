@@ -1,0 +1,482 @@
+//! The Redis Streams backend.
+//!
+//! Keys (prefix `P`, default `thermosieve`):
+//! - `P:tasks`: the stream of tasks, one entry per chunk or finalize task (field `task`, JSON),
+//!   read by consumer group `workers`. An entry is deleted (XDEL) only after it is acknowledged:
+//!   trimming with MAXLEN could delete entries still pending.
+//! - `P:dead`: the dead-letter stream (capped at about 10,000 entries).
+//! - `P:batch:<id>`: a hash with the batch's spec (JSON), state, message and counters.
+//! - `P:batch:<id>:done`: the set of chunk numbers committed, so a chunk computed twice counts once.
+//!
+//! State changes that touch several keys run as Lua scripts, so they are atomic. Blocking reads
+//! (XREADGROUP BLOCK) each get a connection of their own, with a response timeout above the
+//! block time; other calls share one multiplexed connection.
+//!
+//! Without persistence a Redis restart loses the stream, the group and the batch hashes: reads
+//! then fail with NOGROUP, which becomes [`QueueError::GroupMissing`] (logged loudly by the
+//! worker), and batches in flight report as unknown, never as complete.
+
+use crate::model::*;
+use crate::{Queue, QueueError};
+use redis::aio::MultiplexedConnection;
+use redis::streams::{StreamAutoClaimReply, StreamId, StreamPendingCountReply, StreamReadReply};
+use redis::{AsyncConnectionConfig, Script, Value};
+use std::collections::HashMap;
+use std::sync::Mutex;
+use std::time::Duration;
+
+/// Consumer group of the workers.
+pub const GROUP: &str = "workers";
+
+/// Connection and retention settings.
+#[derive(Clone, Debug)]
+pub struct RedisConfig {
+    /// `redis://host:port/db` (a password, if any, belongs in the URL from the environment).
+    pub url: String,
+    /// Key prefix, so several deployments can share one Redis.
+    pub prefix: String,
+    /// How long a finished batch's state keys are kept.
+    pub retention: Duration,
+    /// Response timeout of non-blocking calls.
+    pub response_timeout: Duration,
+}
+
+impl RedisConfig {
+    pub fn new(url: impl Into<String>) -> RedisConfig {
+        RedisConfig { url: url.into(), prefix: "thermosieve".into(), retention: Duration::from_secs(7 * 24 * 3600), response_timeout: Duration::from_secs(10) }
+    }
+}
+
+/// The Redis Streams queue.
+pub struct RedisQueue {
+    client: redis::Client,
+    cfg: RedisConfig,
+    conn: MultiplexedConnection,
+    /// Idle connections for blocking reads, keyed by their response timeout in ms. A
+    /// `std::sync::Mutex`: it is held only to push or pop, never across an await.
+    blocking: Mutex<HashMap<u64, Vec<MultiplexedConnection>>>,
+    scripts: Scripts,
+}
+
+struct Scripts {
+    enqueue: Script,
+    seal: Script,
+    complete_chunk: Script,
+    finish: Script,
+    stop: Script,
+}
+
+const ENQUEUE_LUA: &str = r#"
+if redis.call('EXISTS', KEYS[2]) == 0 then return -1 end
+if redis.call('HGET', KEYS[2], 'state') ~= 'receiving' then return 0 end
+redis.call('XADD', KEYS[1], '*', 'task', ARGV[1])
+redis.call('HINCRBY', KEYS[2], 'chunks_total', 1)
+redis.call('HINCRBY', KEYS[2], 'cases_total', ARGV[2])
+return 1
+"#;
+
+const MAYBE_FINALIZE_LUA: &str = r#"
+local function maybe_finalize(stream, hash, payload)
+  local state = redis.call('HGET', hash, 'state')
+  local done = tonumber(redis.call('HGET', hash, 'chunks_done') or '0')
+  local total = tonumber(redis.call('HGET', hash, 'chunks_total') or '0')
+  if state == 'running' and done >= total then
+    redis.call('HSET', hash, 'state', 'finalizing')
+    redis.call('XADD', stream, '*', 'task', payload)
+  end
+end
+"#;
+
+const SEAL_LUA: &str = r#"
+if redis.call('EXISTS', KEYS[2]) == 0 then return -1 end
+if redis.call('HGET', KEYS[2], 'state') ~= 'receiving' then return 0 end
+redis.call('HSET', KEYS[2], 'state', 'running')
+maybe_finalize(KEYS[1], KEYS[2], ARGV[1])
+return 1
+"#;
+
+const COMPLETE_CHUNK_LUA: &str = r#"
+redis.call('XACK', KEYS[1], ARGV[1], ARGV[2])
+redis.call('XDEL', KEYS[1], ARGV[2])
+if redis.call('EXISTS', KEYS[2]) == 0 then return -1 end
+if redis.call('SADD', KEYS[3], ARGV[3]) == 1 then
+  redis.call('HINCRBY', KEYS[2], 'chunks_done', 1)
+  redis.call('HINCRBY', KEYS[2], 'cases_done', ARGV[4])
+  redis.call('HINCRBY', KEYS[2], 'cases_error', ARGV[5])
+  redis.call('HINCRBY', KEYS[2], 'chunks_dead', ARGV[6])
+end
+maybe_finalize(KEYS[1], KEYS[2], ARGV[7])
+return 1
+"#;
+
+const FINISH_LUA: &str = r#"
+redis.call('XACK', KEYS[1], ARGV[1], ARGV[2])
+redis.call('XDEL', KEYS[1], ARGV[2])
+if redis.call('EXISTS', KEYS[2]) == 0 then return -1 end
+local state = redis.call('HGET', KEYS[2], 'state')
+if state ~= 'done' and state ~= 'failed' and state ~= 'cancelled' then
+  redis.call('HSET', KEYS[2], 'state', ARGV[3], 'message', ARGV[4], 'finished_unix_ms', ARGV[5])
+end
+redis.call('EXPIRE', KEYS[2], ARGV[6])
+redis.call('EXPIRE', KEYS[3], ARGV[6])
+return 1
+"#;
+
+const STOP_LUA: &str = r#"
+if redis.call('EXISTS', KEYS[1]) == 0 then return -1 end
+local state = redis.call('HGET', KEYS[1], 'state')
+if state ~= 'done' and state ~= 'failed' and state ~= 'cancelled' then
+  redis.call('HSET', KEYS[1], 'state', ARGV[1], 'message', ARGV[2], 'finished_unix_ms', ARGV[3])
+  redis.call('EXPIRE', KEYS[1], ARGV[4])
+  redis.call('EXPIRE', KEYS[2], ARGV[4])
+end
+return 1
+"#;
+
+impl RedisQueue {
+    /// Connect and make sure the stream and the consumer group exist.
+    ///
+    /// # Errors
+    /// Connection errors.
+    pub async fn connect(cfg: RedisConfig) -> Result<RedisQueue, QueueError> {
+        let client = redis::Client::open(cfg.url.as_str())?;
+        let conn = client
+            .get_multiplexed_async_connection_with_config(
+                &AsyncConnectionConfig::new().set_response_timeout(Some(cfg.response_timeout)).set_connection_timeout(Some(Duration::from_secs(5))),
+            )
+            .await?;
+        let with_finalize = |body: &str| format!("{MAYBE_FINALIZE_LUA}\n{body}");
+        let scripts = Scripts {
+            enqueue: Script::new(ENQUEUE_LUA),
+            seal: Script::new(&with_finalize(SEAL_LUA)),
+            complete_chunk: Script::new(&with_finalize(COMPLETE_CHUNK_LUA)),
+            finish: Script::new(FINISH_LUA),
+            stop: Script::new(STOP_LUA),
+        };
+        let q = RedisQueue { client, cfg, conn, blocking: Mutex::new(HashMap::new()), scripts };
+        q.ensure_group().await?;
+        Ok(q)
+    }
+
+    fn tasks_key(&self) -> String {
+        format!("{}:tasks", self.cfg.prefix)
+    }
+    fn dead_key(&self) -> String {
+        format!("{}:dead", self.cfg.prefix)
+    }
+    fn batch_key(&self, id: &str) -> String {
+        format!("{}:batch:{id}", self.cfg.prefix)
+    }
+    fn done_key(&self, id: &str) -> String {
+        format!("{}:batch:{id}:done", self.cfg.prefix)
+    }
+
+    async fn ensure_group(&self) -> Result<(), QueueError> {
+        let mut c = self.conn.clone();
+        // "0": a group recreated after a loss also sees entries added before it.
+        let r: Result<(), redis::RedisError> = redis::cmd("XGROUP").arg("CREATE").arg(self.tasks_key()).arg(GROUP).arg("0").arg("MKSTREAM").query_async(&mut c).await;
+        match r {
+            Ok(()) => Ok(()),
+            Err(e) if e.code() == Some("BUSYGROUP") => Ok(()),
+            Err(e) => Err(e.into()),
+        }
+    }
+
+    fn map_group_error(&self, e: redis::RedisError) -> QueueError {
+        if e.code() == Some("NOGROUP") {
+            QueueError::GroupMissing { stream: self.tasks_key(), group: GROUP.into() }
+        } else {
+            e.into()
+        }
+    }
+
+    async fn blocking_conn(&self, response_timeout: Duration) -> Result<(u64, MultiplexedConnection), QueueError> {
+        let key = response_timeout.as_millis() as u64;
+        let idle = self.blocking.lock().unwrap_or_else(|e| e.into_inner()).get_mut(&key).and_then(Vec::pop);
+        match idle {
+            Some(c) => Ok((key, c)),
+            None => {
+                let cfg = AsyncConnectionConfig::new().set_response_timeout(Some(response_timeout)).set_connection_timeout(Some(Duration::from_secs(5)));
+                Ok((key, self.client.get_multiplexed_async_connection_with_config(&cfg).await?))
+            }
+        }
+    }
+
+    fn finalize_payload(batch_id: &str) -> Result<String, QueueError> {
+        Ok(serde_json::to_string(&Task::Finalize { batch_id: batch_id.to_string() })?)
+    }
+
+    fn decode(entry: &StreamId) -> Result<Task, QueueError> {
+        let bad = |reason: &str| QueueError::BadEntry { entry_id: entry.id.clone(), reason: reason.to_string() };
+        let v = entry.map.get("task").ok_or_else(|| bad("no field 'task'"))?;
+        let bytes = match v {
+            Value::BulkString(b) => b.as_slice(),
+            Value::SimpleString(s) => s.as_bytes(),
+            _ => return Err(bad("field 'task' is not a string")),
+        };
+        serde_json::from_slice(bytes).map_err(|e| bad(&e.to_string()))
+    }
+
+    async fn delivery_count(&self, id: &str) -> Result<u64, QueueError> {
+        let mut c = self.conn.clone();
+        let r: StreamPendingCountReply = redis::cmd("XPENDING").arg(self.tasks_key()).arg(GROUP).arg(id).arg(id).arg(1).query_async(&mut c).await.map_err(|e| self.map_group_error(e))?;
+        Ok(r.ids.first().map_or(1, |p| p.times_delivered as u64))
+    }
+
+    fn check(&self, r: i64, batch_id: &str, what: &'static str) -> Result<(), QueueError> {
+        match r {
+            -1 => Err(QueueError::UnknownBatch(batch_id.to_string())),
+            0 => Err(QueueError::WrongState { batch_id: batch_id.to_string(), state: "past receiving", what }),
+            _ => Ok(()),
+        }
+    }
+}
+
+fn field<'a>(h: &'a HashMap<String, String>, k: &str) -> Option<&'a str> {
+    h.get(k).map(String::as_str)
+}
+
+fn count(h: &HashMap<String, String>, k: &str) -> u64 {
+    field(h, k).and_then(|v| v.parse().ok()).unwrap_or(0)
+}
+
+#[async_trait::async_trait]
+impl Queue for RedisQueue {
+    async fn create_batch(&self, spec: &BatchSpec) -> Result<(), QueueError> {
+        let mut c = self.conn.clone();
+        let key = self.batch_key(&spec.batch_id);
+        let _: () = redis::pipe()
+            .atomic()
+            .hset_multiple(
+                &key,
+                &[
+                    ("spec", serde_json::to_string(spec)?),
+                    ("state", BatchState::Receiving.as_str().to_string()),
+                    ("created_unix_ms", spec.created_unix_ms.to_string()),
+                    ("chunks_total", "0".into()),
+                    ("chunks_done", "0".into()),
+                    ("chunks_dead", "0".into()),
+                    ("cases_total", "0".into()),
+                    ("cases_done", "0".into()),
+                    ("cases_error", "0".into()),
+                ],
+            )
+            .ignore()
+            // A batch whose submitter vanishes must not live forever either.
+            .expire(&key, self.cfg.retention.as_secs() as i64)
+            .ignore()
+            .query_async(&mut c)
+            .await?;
+        Ok(())
+    }
+
+    async fn batch_spec(&self, batch_id: &str) -> Result<Option<BatchSpec>, QueueError> {
+        let mut c = self.conn.clone();
+        let s: Option<String> = redis::cmd("HGET").arg(self.batch_key(batch_id)).arg("spec").query_async(&mut c).await?;
+        Ok(match s {
+            Some(s) => Some(serde_json::from_str(&s)?),
+            None => None,
+        })
+    }
+
+    async fn enqueue(&self, chunk: &Chunk) -> Result<(), QueueError> {
+        let payload = serde_json::to_string(&Task::Chunk(chunk.clone()))?;
+        let mut c = self.conn.clone();
+        let r: i64 = self.scripts.enqueue.key(self.tasks_key()).key(self.batch_key(&chunk.batch_id)).arg(payload).arg(chunk.cases.len()).invoke_async(&mut c).await?;
+        self.check(r, &chunk.batch_id, "chunks")
+    }
+
+    async fn seal(&self, batch_id: &str) -> Result<(), QueueError> {
+        let mut c = self.conn.clone();
+        let r: i64 = self.scripts.seal.key(self.tasks_key()).key(self.batch_key(batch_id)).arg(Self::finalize_payload(batch_id)?).invoke_async(&mut c).await?;
+        self.check(r, batch_id, "a seal")
+    }
+
+    async fn depth(&self) -> Result<u64, QueueError> {
+        let mut c = self.conn.clone();
+        let n: u64 = redis::cmd("XLEN").arg(self.tasks_key()).query_async(&mut c).await?;
+        Ok(n)
+    }
+
+    async fn poll(&self, consumer: &str, block: Duration) -> Result<Option<Delivery>, QueueError> {
+        // The response timeout must exceed the BLOCK time, or every idle read times out.
+        let (key, mut c) = self.blocking_conn(block + Duration::from_secs(5)).await?;
+        let r: Result<Option<StreamReadReply>, redis::RedisError> = redis::cmd("XREADGROUP")
+            .arg("GROUP")
+            .arg(GROUP)
+            .arg(consumer)
+            .arg("COUNT")
+            .arg(1)
+            .arg("BLOCK")
+            .arg(block.as_millis() as u64)
+            .arg("STREAMS")
+            .arg(self.tasks_key())
+            .arg(">")
+            .query_async(&mut c)
+            .await;
+        let reply = match r {
+            Ok(r) => {
+                self.blocking.lock().unwrap_or_else(|e| e.into_inner()).entry(key).or_default().push(c);
+                r
+            }
+            // A failed connection is dropped rather than returned to the pool.
+            Err(e) => return Err(self.map_group_error(e)),
+        };
+        let Some(entry) = reply.and_then(|r| r.keys.into_iter().next()).and_then(|k| k.ids.into_iter().next()) else {
+            return Ok(None);
+        };
+        let task = Self::decode(&entry)?;
+        Ok(Some(Delivery { entry_id: entry.id, task, deliveries: 1 }))
+    }
+
+    async fn reclaim(&self, consumer: &str, min_idle: Duration, max: usize) -> Result<Vec<Delivery>, QueueError> {
+        let mut c = self.conn.clone();
+        let r: StreamAutoClaimReply = redis::cmd("XAUTOCLAIM")
+            .arg(self.tasks_key())
+            .arg(GROUP)
+            .arg(consumer)
+            .arg(min_idle.as_millis() as u64)
+            .arg("0-0")
+            .arg("COUNT")
+            .arg(max)
+            .query_async(&mut c)
+            .await
+            .map_err(|e| self.map_group_error(e))?;
+        for id in &r.deleted_ids {
+            tracing::error!(entry_id = %id, "pending entry was deleted from the stream before it was acknowledged");
+        }
+        let mut out = Vec::with_capacity(r.claimed.len());
+        for entry in r.claimed {
+            let deliveries = self.delivery_count(&entry.id).await?;
+            match Self::decode(&entry) {
+                Ok(task) => out.push(Delivery { entry_id: entry.id, task, deliveries }),
+                Err(e) => {
+                    tracing::error!(error = %e, "dropping an undecodable queue entry");
+                    let _: () = redis::cmd("XACK").arg(self.tasks_key()).arg(GROUP).arg(&entry.id).query_async(&mut c).await?;
+                }
+            }
+        }
+        Ok(out)
+    }
+
+    async fn complete_chunk(&self, delivery: &Delivery, seq: u64, report: ChunkReport) -> Result<(), QueueError> {
+        let batch_id = delivery.task.batch_id();
+        let mut c = self.conn.clone();
+        let r: i64 = self
+            .scripts
+            .complete_chunk
+            .key(self.tasks_key())
+            .key(self.batch_key(batch_id))
+            .key(self.done_key(batch_id))
+            .arg(GROUP)
+            .arg(&delivery.entry_id)
+            .arg(seq)
+            .arg(report.cases)
+            .arg(report.errors)
+            .arg(u64::from(report.dead_lettered))
+            .arg(Self::finalize_payload(batch_id)?)
+            .invoke_async(&mut c)
+            .await?;
+        self.check(r, batch_id, "results")
+    }
+
+    async fn dead_letter(&self, delivery: &Delivery, reason: &str) -> Result<(), QueueError> {
+        let mut c = self.conn.clone();
+        let seq = match &delivery.task {
+            Task::Chunk(ch) => ch.seq.to_string(),
+            Task::Finalize { .. } => "finalize".into(),
+        };
+        let _: String = redis::cmd("XADD")
+            .arg(self.dead_key())
+            .arg("MAXLEN")
+            .arg("~")
+            .arg(10_000)
+            .arg("*")
+            .arg("batch_id")
+            .arg(delivery.task.batch_id())
+            .arg("seq")
+            .arg(seq)
+            .arg("deliveries")
+            .arg(delivery.deliveries)
+            .arg("reason")
+            .arg(reason)
+            .arg("task")
+            .arg(serde_json::to_string(&delivery.task)?)
+            .query_async(&mut c)
+            .await?;
+        Ok(())
+    }
+
+    async fn complete_finalize(&self, delivery: &Delivery, outcome: Result<(), String>) -> Result<(), QueueError> {
+        let batch_id = delivery.task.batch_id();
+        let (state, message) = match outcome {
+            Ok(()) => (BatchState::Done, String::new()),
+            Err(m) => (BatchState::Failed, m),
+        };
+        let mut c = self.conn.clone();
+        let r: i64 = self
+            .scripts
+            .finish
+            .key(self.tasks_key())
+            .key(self.batch_key(batch_id))
+            .key(self.done_key(batch_id))
+            .arg(GROUP)
+            .arg(&delivery.entry_id)
+            .arg(state.as_str())
+            .arg(message)
+            .arg(now_unix_ms())
+            .arg(self.cfg.retention.as_secs())
+            .invoke_async(&mut c)
+            .await?;
+        self.check(r, batch_id, "a final state")
+    }
+
+    async fn discard(&self, delivery: &Delivery) -> Result<(), QueueError> {
+        let mut c = self.conn.clone();
+        let _: () = redis::pipe().cmd("XACK").arg(self.tasks_key()).arg(GROUP).arg(&delivery.entry_id).ignore().cmd("XDEL").arg(self.tasks_key()).arg(&delivery.entry_id).ignore().query_async(&mut c).await?;
+        Ok(())
+    }
+
+    async fn progress(&self, batch_id: &str) -> Result<Option<Progress>, QueueError> {
+        let mut c = self.conn.clone();
+        let h: HashMap<String, String> = redis::cmd("HGETALL").arg(self.batch_key(batch_id)).query_async(&mut c).await?;
+        let Some(state) = field(&h, "state").and_then(BatchState::parse) else {
+            return Ok(None);
+        };
+        Ok(Some(Progress {
+            state,
+            chunks_total: count(&h, "chunks_total"),
+            chunks_done: count(&h, "chunks_done"),
+            chunks_dead: count(&h, "chunks_dead"),
+            cases_total: count(&h, "cases_total"),
+            cases_done: count(&h, "cases_done"),
+            cases_error: count(&h, "cases_error"),
+            message: field(&h, "message").unwrap_or_default().to_string(),
+            created_unix_ms: count(&h, "created_unix_ms"),
+            finished_unix_ms: field(&h, "finished_unix_ms").and_then(|v| v.parse().ok()),
+        }))
+    }
+
+    async fn stop_batch(&self, batch_id: &str, state: BatchState, message: &str) -> Result<BatchState, QueueError> {
+        let mut c = self.conn.clone();
+        let r: i64 = self
+            .scripts
+            .stop
+            .key(self.batch_key(batch_id))
+            .key(self.done_key(batch_id))
+            .arg(state.as_str())
+            .arg(message)
+            .arg(now_unix_ms())
+            .arg(self.cfg.retention.as_secs())
+            .invoke_async(&mut c)
+            .await?;
+        if r == -1 {
+            return Err(QueueError::UnknownBatch(batch_id.to_string()));
+        }
+        Ok(self.progress(batch_id).await?.map_or(state, |p| p.state))
+    }
+
+    async fn recover(&self) -> Result<(), QueueError> {
+        self.ensure_group().await
+    }
+}

@@ -1,0 +1,331 @@
+//! End-to-end tests: the embedded mode on the demo data, and the service path (real
+//! redis-server, real gRPC on 127.0.0.1:0, two workers) against it; redelivery and
+//! dead-lettering through real Redis Streams.
+
+use polars::prelude::*;
+use std::collections::HashMap;
+use std::path::Path;
+use std::sync::Arc;
+use std::time::Duration;
+use thermosieve_e2e::*;
+use thermosieve_engine::{species, Screener, TemperatureGrid};
+use thermosieve_front::ingest::{batch_spec, BatchOptions, Ingest, IngestLimits};
+use thermosieve_front::{convert, input, Front, FrontConfig};
+use thermosieve_proto::v1 as pb;
+use thermosieve_proto::v1::screening_client::ScreeningClient;
+use thermosieve_queue::{BatchState, Queue, RedisConfig, RedisQueue};
+use thermosieve_worker::WorkerConfig;
+
+fn demo_cases() -> Vec<thermosieve_queue::CaseInput> {
+    input::open(&demo_csv(), None).expect("demo input").collect()
+}
+
+async fn embedded(dir: &Path) -> (DataFrame, DataFrame, DataFrame) {
+    let out = thermosieve_front::embedded::run_cases(demo_cases().into_iter(), BatchOptions::default(), dir, 2).await.expect("embedded run");
+    (read_table(&out.batch_dir.join("cases.parquet")), read_table(&out.batch_dir.join("trends.parquet")), read_table(&out.batch_dir.join("routes.parquet")))
+}
+
+fn each_case_once(cases: &DataFrame, expected: &[thermosieve_queue::CaseInput]) {
+    let ids = strings(cases, "case_id");
+    let mut seen: HashMap<String, usize> = HashMap::new();
+    for id in ids.iter().flatten() {
+        *seen.entry(id.clone()).or_default() += 1;
+    }
+    assert_eq!(ids.len(), expected.len(), "one row per submitted case");
+    for c in expected {
+        assert_eq!(seen.get(&c.case_id), Some(&1), "case {} appears exactly once", c.case_id);
+    }
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn embedded_run_on_demo_data_gives_every_case_once_with_the_engines_values() {
+    let dir = tempfile::tempdir().unwrap();
+    let input = demo_cases();
+    let (cases, trends, routes) = embedded(dir.path()).await;
+    each_case_once(&cases, &input);
+
+    let status = strings(&cases, "status");
+    let errors = strings(&cases, "error_message");
+    let n_err = status.iter().filter(|s| s.as_deref() == Some("error")).count();
+    assert_eq!(n_err, 5, "the demo has five deliberately bad rows");
+    let all_errors: Vec<&str> = errors.iter().flatten().map(String::as_str).collect();
+    assert!(all_errors.iter().any(|e| e.contains("unknown element symbol 'Xq'")), "{all_errors:?}");
+    assert!(all_errors.iter().any(|e| e.contains("cannot be balanced")), "{all_errors:?}");
+    assert!(all_errors.iter().any(|e| e.contains("column reaction: missing")), "{all_errors:?}");
+    assert!(all_errors.iter().any(|e| e.contains("column scale_mol: expected a number, got \"about 40\"")), "{all_errors:?}");
+    assert!(all_errors.iter().any(|e| e.contains("ambiguous")), "{all_errors:?}");
+    assert!(all_errors.iter().all(|e| e.starts_with("row ")), "error messages name the row: {all_errors:?}");
+
+    // The values are the engine's own: screen a sample directly and compare.
+    let mut screener = Screener::new(species::bundled(), TemperatureGrid::default_process());
+    let ids = strings(&cases, "case_id");
+    let dh = floats(&cases, "delta_h_298_kj_per_mol");
+    let dg = floats(&cases, "delta_g_298_kj_per_mol");
+    let eq = strings(&cases, "balanced_equation");
+    let by_id: HashMap<&str, &thermosieve_queue::CaseInput> = input.iter().map(|c| (c.case_id.as_str(), c)).collect();
+    let mut checked = 0;
+    for i in (0..ids.len()).step_by(37) {
+        let id = ids[i].as_deref().unwrap();
+        if status[i].as_deref() != Some("ok") {
+            continue;
+        }
+        let s = screener.screen(&by_id[id].reaction).expect("engine screens an ok case");
+        assert_eq!(eq[i].as_deref(), Some(s.balanced_equation.as_str()));
+        assert_eq!(dh[i], Some(s.standard.delta_h_kj_per_mol), "{id}");
+        assert_eq!(dg[i], Some(s.standard.delta_g_kj_per_mol), "{id}");
+        checked += 1;
+    }
+    assert!(checked > 40);
+
+    let ok = status.iter().filter(|s| s.as_deref() == Some("ok")).count();
+    assert_eq!(trends.height(), ok * 15, "15 grid points per ok case");
+    assert_eq!(routes.height(), 380);
+    let ranks = routes.column("rank").unwrap().u32().unwrap().clone();
+    assert_eq!(ranks.get(0), Some(1));
+
+    let batch = std::fs::read_dir(dir.path()).unwrap().next().unwrap().unwrap().path();
+    let md: HashMap<String, String> = table_metadata(&batch.join("cases.parquet")).into_iter().collect();
+    assert_eq!(md.get("thermosieve.engine_version").map(String::as_str), Some(thermosieve_engine::VERSION));
+    assert_eq!(md.get("thermosieve.caution").map(String::as_str), Some(thermosieve_engine::CAUTION));
+    assert!(md.get("thermosieve.data_sources").is_some_and(|s| s.contains("NASA")));
+    assert!(md.get("thermosieve.temperature_grid_k").is_some_and(|s| s.starts_with("[273.15")));
+    let manifest: serde_json::Value = serde_json::from_slice(&std::fs::read(batch.join("manifest.json")).unwrap()).unwrap();
+    assert_eq!(manifest["counts"]["cases"], 2017);
+    assert!(!batch.join("parts").exists(), "part files are removed after finalizing");
+}
+
+struct Service {
+    redis: RedisServer,
+    addr: std::net::SocketAddr,
+    results: tempfile::TempDir,
+    stop: Vec<tokio::sync::oneshot::Sender<()>>,
+    tasks: Vec<tokio::task::JoinHandle<()>>,
+}
+
+async fn redis_queue(url: &str) -> Arc<dyn Queue> {
+    Arc::new(RedisQueue::connect(RedisConfig::new(url)).await.expect("connect to the test redis"))
+}
+
+fn worker_config(results: &Path, name: &str) -> WorkerConfig {
+    let mut cfg = WorkerConfig::new(results);
+    cfg.threads = 1;
+    cfg.consumer = name.to_string();
+    cfg.block = Duration::from_millis(300);
+    cfg
+}
+
+impl Service {
+    async fn start(workers: usize, tune: impl Fn(&mut WorkerConfig)) -> Service {
+        let redis = RedisServer::start();
+        let results = tempfile::tempdir().unwrap();
+        let listener = tokio::net::TcpListener::bind("127.0.0.1:0").await.unwrap();
+        let addr = listener.local_addr().unwrap();
+        let cfg = FrontConfig { results_dir: results.path().to_path_buf(), limits: IngestLimits::default(), watch_interval: Duration::from_millis(50) };
+        let front = Arc::new(Front::new(redis_queue(&redis.url()).await, cfg));
+        let mut stop = Vec::new();
+        let mut tasks = Vec::new();
+        let (tx, rx) = tokio::sync::oneshot::channel::<()>();
+        stop.push(tx);
+        tasks.push(tokio::spawn(async move {
+            thermosieve_front::serve(listener, front, async move {
+                let _ = rx.await;
+            })
+            .await
+            .expect("front");
+        }));
+        for w in 0..workers {
+            let (tx, rx) = tokio::sync::oneshot::channel::<()>();
+            stop.push(tx);
+            let mut cfg = worker_config(results.path(), &format!("w{w}"));
+            tune(&mut cfg);
+            let q = redis_queue(&redis.url()).await;
+            tasks.push(tokio::spawn(async move {
+                thermosieve_worker::run(q, cfg, async move {
+                    let _ = rx.await;
+                })
+                .await
+                .expect("worker");
+            }));
+        }
+        Service { redis, addr, results, stop, tasks }
+    }
+
+    async fn client(&self) -> ScreeningClient<tonic::transport::Channel> {
+        ScreeningClient::connect(format!("http://{}", self.addr)).await.expect("connect to the front")
+    }
+
+    async fn stop(self) {
+        for s in self.stop {
+            let _ = s.send(());
+        }
+        for t in self.tasks {
+            t.await.expect("task ends cleanly");
+        }
+        drop(self.redis);
+        drop(self.results);
+    }
+}
+
+async fn submit(client: &mut ScreeningClient<tonic::transport::Channel>, cases: &[thermosieve_queue::CaseInput], chunk_size: u32) -> String {
+    let mut msgs = vec![pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Header(pb::BatchHeader { chunk_size, ..Default::default() })) }];
+    msgs.extend(cases.iter().map(|c| pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Case(convert::case_to_pb(c))) }));
+    let r = client.submit_batch(tokio_stream::iter(msgs)).await.expect("submit").into_inner();
+    assert_eq!(r.cases_received, cases.len() as u64);
+    r.batch_id
+}
+
+async fn wait_done(client: &mut ScreeningClient<tonic::transport::Channel>, id: &str) -> pb::BatchStatus {
+    let mut s = client.watch_batch(pb::WatchBatchRequest { batch_id: id.into() }).await.expect("watch").into_inner();
+    let mut last = None;
+    let deadline = tokio::time::Instant::now() + Duration::from_secs(120);
+    while let Some(m) = tokio::time::timeout_at(deadline, s.message()).await.expect("batch finishes within 120 s").expect("watch stream") {
+        last = Some(m);
+    }
+    let last = last.expect("a status");
+    assert_eq!(last.state, pb::BatchState::Done as i32, "{last:?}");
+    last
+}
+
+async fn fetch(client: &mut ScreeningClient<tonic::transport::Channel>, id: &str, table: pb::Table) -> Vec<u8> {
+    let mut s = client.fetch_table(pb::FetchTableRequest { batch_id: id.into(), table: table as i32 }).await.expect("fetch").into_inner();
+    let mut bytes = Vec::new();
+    while let Some(c) = s.message().await.expect("fetch stream") {
+        assert_eq!(c.offset, bytes.len() as u64);
+        bytes.extend_from_slice(&c.data);
+    }
+    bytes
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn redis_grpc_two_workers_give_the_same_tables_as_embedded() {
+    let embedded_dir = tempfile::tempdir().unwrap();
+    let (e_cases, e_trends, e_routes) = embedded(embedded_dir.path()).await;
+    let svc = Service::start(2, |_| {}).await;
+    let mut client = svc.client().await;
+    let cases = demo_cases();
+    let id = submit(&mut client, &cases, 0).await;
+    assert_eq!(id.len(), 32);
+    let st = wait_done(&mut client, &id).await;
+    assert_eq!((st.cases_done, st.cases_error), (2017, 5));
+    let r_cases = read_table_bytes(fetch(&mut client, &id, pb::Table::Cases).await);
+    let r_trends = read_table_bytes(fetch(&mut client, &id, pb::Table::Trends).await);
+    let r_routes = read_table_bytes(fetch(&mut client, &id, pb::Table::Routes).await);
+    each_case_once(&r_cases, &cases);
+    for c in e_cases.columns() {
+        let name = c.name().as_str();
+        let other = r_cases.column(name).unwrap_or_else(|_| panic!("column {name} missing on the Redis path"));
+        assert!(c.equals_missing(other), "column {name} differs between Redis and embedded: {:?} vs {:?}", c.head(Some(3)), other.head(Some(3)));
+    }
+    assert!(r_cases.equals_missing(&e_cases), "cases.parquet differs between Redis and embedded");
+    assert!(r_trends.equals_missing(&e_trends), "trends.parquet differs");
+    assert!(r_routes.equals_missing(&e_routes), "routes.parquet differs");
+    let manifest: serde_json::Value = serde_json::from_slice(&fetch(&mut client, &id, pb::Table::Manifest).await).unwrap();
+    assert_eq!(manifest["batch_id"], id.as_str());
+
+    // Malformed requests name the field; unknown ids are NOT_FOUND; inline and species calls work.
+    let bad = client.get_batch_status(pb::GetBatchStatusRequest { batch_id: "nope".into() }).await.unwrap_err();
+    assert_eq!(bad.code(), tonic::Code::InvalidArgument);
+    assert!(bad.message().starts_with("batch_id:"), "{}", bad.message());
+    let missing = client.get_batch_status(pb::GetBatchStatusRequest { batch_id: "0".repeat(32) }).await.unwrap_err();
+    assert_eq!(missing.code(), tonic::Code::NotFound);
+    let no_header = client.submit_batch(tokio_stream::iter(vec![pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Case(pb::Case::default())) }])).await.unwrap_err();
+    assert_eq!(no_header.code(), tonic::Code::InvalidArgument);
+    assert!(no_header.message().starts_with("item.header"), "{}", no_header.message());
+    let bad_grid = pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Header(pb::BatchHeader { temperatures_k: vec![1.0], ..Default::default() })) };
+    let e = client.submit_batch(tokio_stream::iter(vec![bad_grid])).await.unwrap_err();
+    assert!(e.message().starts_with("header.temperatures_k"), "{}", e.message());
+    let inline = client
+        .screen_inline(pb::ScreenInlineRequest { cases: vec![pb::Case { case_id: "x".into(), reaction: "CaCO3(s) -> CaO(s) + CO2(g)".into(), ..Default::default() }], ..Default::default() })
+        .await
+        .unwrap()
+        .into_inner();
+    assert_eq!(inline.cases[0].status, "ok");
+    assert_eq!(inline.trends.len(), 15);
+    let sp = client.resolve_species(pb::ResolveSpeciesRequest { species: vec!["H2O(l)".into(), "Xq".into()] }).await.unwrap().into_inner();
+    // ΔfH°(H2O, l, 298.15 K) = −285.83 kJ/mol (CODATA key values, Cox, Wagman & Medvedev 1989).
+    assert!((sp.species[0].delta_fh_298_kj_per_mol + 285.83).abs() < 0.1, "{:?}", sp.species[0]);
+    assert!(!sp.species[1].error.is_empty());
+    svc.stop().await;
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_chunk_abandoned_by_a_crashed_worker_is_reclaimed_and_every_case_appears_once() {
+    let svc = Service::start(1, |c| c.reclaim_idle = Duration::from_millis(400)).await;
+    // Hold the first chunk as a "crashed" consumer that never acknowledges it, before the
+    // worker can take it: submit straight through the ingest with the worker racing us is
+    // avoided by submitting first and taking the chunk with a consumer of our own at once.
+    let q = redis_queue(&svc.redis.url()).await;
+    let cases: Vec<_> = demo_cases().into_iter().take(300).collect();
+    let spec = batch_spec(BatchOptions { chunk_size: 50, ..Default::default() }, &IngestLimits::default()).unwrap();
+    let id = spec.batch_id.clone();
+    // Steal chunks as they are enqueued, until we hold one.
+    let thief = q.clone();
+    let stolen = tokio::spawn(async move {
+        loop {
+            if let Some(d) = thief.poll("crashed-worker", Duration::from_millis(200)).await.unwrap() {
+                return d;
+            }
+        }
+    });
+    let mut ing = Ingest::start(q.clone(), spec, IngestLimits::default()).await.unwrap();
+    for c in cases.clone() {
+        ing.push(c).await.unwrap();
+    }
+    ing.finish().await.unwrap();
+    let held = stolen.await.unwrap();
+    assert_eq!(held.deliveries, 1);
+    let mut client = svc.client().await;
+    wait_done(&mut client, &id).await;
+    let df = read_table_bytes(fetch(&mut client, &id, pb::Table::Cases).await);
+    each_case_once(&df, &cases);
+    assert_eq!(q.progress(&id).await.unwrap().unwrap().chunks_dead, 0);
+    svc.stop().await;
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_chunk_delivered_too_often_is_dead_lettered_and_its_cases_are_error_rows() {
+    let svc = Service::start(1, |c| {
+        c.reclaim_idle = Duration::from_millis(300);
+        c.max_deliveries = 1;
+    })
+    .await;
+    let q = redis_queue(&svc.redis.url()).await;
+    let cases: Vec<_> = demo_cases().into_iter().take(120).collect();
+    let spec = batch_spec(BatchOptions { chunk_size: 40, ..Default::default() }, &IngestLimits::default()).unwrap();
+    let id = spec.batch_id.clone();
+    let thief = q.clone();
+    let stolen = tokio::spawn(async move {
+        loop {
+            if let Some(d) = thief.poll("crashed-worker", Duration::from_millis(200)).await.unwrap() {
+                return d;
+            }
+        }
+    });
+    let mut ing = Ingest::start(q.clone(), spec, IngestLimits::default()).await.unwrap();
+    for c in cases.clone() {
+        ing.push(c).await.unwrap();
+    }
+    ing.finish().await.unwrap();
+    let held = stolen.await.unwrap();
+    let thermosieve_queue::Task::Chunk(held_chunk) = &held.task else { panic!("expected a chunk") };
+    let held_ids: Vec<String> = held_chunk.cases.iter().map(|c| c.case_id.clone()).collect();
+    let mut client = svc.client().await;
+    let st = wait_done(&mut client, &id).await;
+    assert_eq!(st.chunks_dead_lettered, 1);
+    let df = read_table_bytes(fetch(&mut client, &id, pb::Table::Cases).await);
+    each_case_once(&df, &cases);
+    let ids = strings(&df, "case_id");
+    let status = strings(&df, "status");
+    let msg = strings(&df, "error_message");
+    for (i, cid) in ids.iter().enumerate() {
+        if held_ids.contains(cid.as_ref().unwrap()) {
+            assert_eq!(status[i].as_deref(), Some("error"));
+            assert!(msg[i].as_deref().unwrap().contains("dead-lettered"), "{:?}", msg[i]);
+        }
+    }
+    let mut c = redis::Client::open(svc.redis.url()).unwrap().get_multiplexed_async_connection().await.unwrap();
+    let n: u64 = redis::cmd("XLEN").arg("thermosieve:dead").query_async(&mut c).await.unwrap();
+    assert_eq!(n, 1);
+    assert_eq!(q.progress(&id).await.unwrap().unwrap().state, BatchState::Done);
+    svc.stop().await;
+}

@@ -1,0 +1,266 @@
+//! The finalizer: once every chunk of a batch is committed, concatenate the part files in chunk
+//! order into `cases.parquet` and `trends.parquet`, roll the cases up into `routes.parquet`, and
+//! write `manifest.json`. Parts are streamed one at a time (a batched Parquet writer), so memory
+//! stays at one part plus one small record per route, whatever the batch size.
+
+use crate::parts::{batch_dir, part_path, read_parquet, write_atomic};
+use crate::rows::{self, RouteRow, ROUTE_RANK_NOTE, STATUS_OK};
+use crate::WorkerError;
+use polars::prelude::*;
+use serde::Serialize;
+use std::collections::HashMap;
+use std::fs::File;
+use std::path::Path;
+use thermosieve_engine::{elements, species, CAUTION, VERSION};
+use thermosieve_queue::{now_unix_ms, BatchSpec, Progress};
+
+/// Final table file names.
+pub const CASES_FILE: &str = "cases.parquet";
+pub const TRENDS_FILE: &str = "trends.parquet";
+pub const ROUTES_FILE: &str = "routes.parquet";
+pub const MANIFEST_FILE: &str = "manifest.json";
+
+/// Key-value metadata written into every table of a batch.
+pub fn table_metadata(spec: &BatchSpec, table: &str) -> Vec<(String, String)> {
+    let mut kv = vec![
+        ("thermosieve.table".to_string(), table.to_string()),
+        ("thermosieve.batch_id".to_string(), spec.batch_id.clone()),
+        ("thermosieve.engine_version".to_string(), VERSION.to_string()),
+        ("thermosieve.data_sources".to_string(), species::SOURCE_NAME.to_string()),
+        ("thermosieve.species_data_provenance".to_string(), species::bundled().provenance.clone()),
+        ("thermosieve.elements_data_provenance".to_string(), elements::source().to_string()),
+        ("thermosieve.temperature_grid_k".to_string(), serde_json::to_string(&spec.temperatures_k).unwrap_or_default()),
+        ("thermosieve.caution".to_string(), CAUTION.to_string()),
+    ];
+    if table == ROUTES_FILE {
+        kv.push(("thermosieve.rank_note".to_string(), ROUTE_RANK_NOTE.to_string()));
+    }
+    kv
+}
+
+/// One file of the manifest.
+#[derive(Clone, Debug, Serialize)]
+pub struct FileEntry {
+    pub name: String,
+    pub rows: u64,
+    pub bytes: u64,
+}
+
+/// `manifest.json`.
+#[derive(Clone, Debug, Serialize)]
+pub struct Manifest {
+    pub batch_id: String,
+    pub label: String,
+    pub engine_version: String,
+    pub data_sources: Vec<String>,
+    pub temperature_grid_k: Vec<f64>,
+    pub default_conditions: thermosieve_queue::Conditions,
+    pub counts: Counts,
+    pub files: Vec<FileEntry>,
+    pub cautions: Vec<String>,
+    pub timings: Timings,
+}
+
+#[derive(Clone, Debug, Default, Serialize)]
+pub struct Counts {
+    pub cases: u64,
+    pub cases_ok: u64,
+    pub cases_error: u64,
+    pub trend_rows: u64,
+    pub routes: u64,
+    pub chunks: u64,
+    pub chunks_dead_lettered: u64,
+}
+
+#[derive(Clone, Debug, Serialize)]
+pub struct Timings {
+    pub created_unix_ms: u64,
+    pub finalize_started_unix_ms: u64,
+    pub finished_unix_ms: u64,
+    /// From batch creation to the manifest.
+    pub elapsed_seconds: f64,
+    pub finalize_seconds: f64,
+}
+
+#[derive(Default)]
+struct RouteAcc {
+    steps: u32,
+    failed: u32,
+    total: f64,
+    any_ok: bool,
+    /// (step, input order, message) of the lowest failing step.
+    first_error: Option<(u32, u64, String)>,
+}
+
+/// Accumulates route rows while cases stream past.
+#[derive(Default)]
+struct Routes {
+    order: Vec<String>,
+    acc: HashMap<String, RouteAcc>,
+    seen: u64,
+}
+
+impl Routes {
+    fn add(&mut self, df: &DataFrame) -> Result<(), WorkerError> {
+        let route = df.column("route_id")?.str()?;
+        let step = df.column("step")?.u32()?;
+        let status = df.column("status")?.str()?;
+        let err = df.column("error_message")?.str()?;
+        let case = df.column("case_id")?.str()?;
+        let dh = df.column("delta_h_298_kj_per_mol")?.f64()?;
+        for i in 0..df.height() {
+            self.seen += 1;
+            let Some(r) = route.get(i) else { continue };
+            let a = match self.acc.get_mut(r) {
+                Some(a) => a,
+                None => {
+                    self.order.push(r.to_string());
+                    self.acc.entry(r.to_string()).or_default()
+                }
+            };
+            a.steps += 1;
+            if status.get(i) == Some(STATUS_OK) {
+                a.any_ok = true;
+                a.total += dh.get(i).unwrap_or(0.0);
+            } else {
+                a.failed += 1;
+                let s = step.get(i).unwrap_or(u32::MAX);
+                if a.first_error.as_ref().is_none_or(|(fs, fo, _)| (s, self.seen) < (*fs, *fo)) {
+                    let label = step.get(i).map_or("step ?".to_string(), |s| format!("step {s}"));
+                    a.first_error = Some((s, self.seen, format!("{label} (case {}): {}", case.get(i).unwrap_or(""), err.get(i).unwrap_or(""))));
+                }
+            }
+        }
+        Ok(())
+    }
+
+    /// Route rows ranked: ranked routes first by rank, then unranked ones in input order.
+    fn rows(mut self) -> Vec<RouteRow> {
+        let mut out: Vec<RouteRow> = self
+            .order
+            .iter()
+            .filter_map(|r| {
+                let a = self.acc.remove(r)?;
+                Some(RouteRow {
+                    route_id: r.clone(),
+                    steps: a.steps,
+                    failed_steps: a.failed,
+                    rank: None,
+                    total_delta_h_298_kj_per_mol: a.any_ok.then_some(a.total),
+                    first_error: a.first_error.map(|e| e.2),
+                })
+            })
+            .collect();
+        let mut ranked: Vec<usize> = (0..out.len()).filter(|&i| out[i].total_delta_h_298_kj_per_mol.is_some()).collect();
+        ranked.sort_by(|&a, &b| {
+            let (x, y) = (&out[a], &out[b]);
+            x.total_delta_h_298_kj_per_mol.unwrap_or(0.0).total_cmp(&y.total_delta_h_298_kj_per_mol.unwrap_or(0.0)).then_with(|| x.route_id.cmp(&y.route_id))
+        });
+        for (k, &i) in ranked.iter().enumerate() {
+            out[i].rank = Some(k as u32 + 1);
+        }
+        out.sort_by_key(|r| r.rank.unwrap_or(u32::MAX));
+        out
+    }
+}
+
+/// Concatenate the parts of `table` (`cases` or `trends`) for chunks `0..chunks` into `file`.
+fn concat_parts(results_dir: &Path, spec: &BatchSpec, table: &str, file: &str, chunks: u64, empty: &DataFrame, mut each: impl FnMut(&DataFrame) -> Result<(), WorkerError>) -> Result<(u64, u64), WorkerError> {
+    let dir = batch_dir(results_dir, &spec.batch_id)?;
+    let path = dir.join(file);
+    let mut rows = 0u64;
+    write_atomic(&path, |f| {
+        let kv = KeyValueMetadata::from_static(table_metadata(spec, file));
+        let mut w = ParquetWriter::new(f).with_key_value_metadata(Some(kv)).batched(empty.schema())?;
+        let mut wrote_any = false;
+        for seq in 0..chunks {
+            let p = part_path(results_dir, &spec.batch_id, table, seq)?;
+            if !p.exists() {
+                return Err(WorkerError::MissingPart { batch_id: spec.batch_id.clone(), seq, table: table.to_string() });
+            }
+            let df = read_parquet(&p)?;
+            each(&df)?;
+            if df.height() > 0 {
+                rows += df.height() as u64;
+                w.write_batch(&df)?;
+                wrote_any = true;
+            }
+        }
+        if !wrote_any {
+            w.write_batch(empty)?;
+        }
+        w.finish()?;
+        Ok(())
+    })?;
+    let bytes = std::fs::metadata(&path).map_or(0, |m| m.len());
+    Ok((rows, bytes))
+}
+
+/// Write the batch tables and the manifest from the committed parts.
+///
+/// # Errors
+/// `MissingPart` when a chunk has no committed part, I/O and Polars errors.
+pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_parts: bool) -> Result<Manifest, WorkerError> {
+    let started = now_unix_ms();
+    let t0 = std::time::Instant::now();
+    let dir = batch_dir(results_dir, &spec.batch_id)?;
+    std::fs::create_dir_all(&dir).map_err(|source| WorkerError::Io { path: dir.clone(), source })?;
+    let chunks = progress.chunks_total;
+
+    let mut routes = Routes::default();
+    let mut counts = Counts { chunks, chunks_dead_lettered: progress.chunks_dead, ..Counts::default() };
+    let mut ok = 0u64;
+    let empty_cases = rows::cases_frame(&[])?;
+    let (cases, cases_bytes) = concat_parts(results_dir, spec, "cases", CASES_FILE, chunks, &empty_cases, |df| {
+        let status = df.column("status")?.str()?;
+        ok += (0..df.height()).filter(|&i| status.get(i) == Some(STATUS_OK)).count() as u64;
+        routes.add(df)
+    })?;
+    let empty_trends = rows::trends_frame(&[])?;
+    let (trend_rows, trends_bytes) = concat_parts(results_dir, spec, "trends", TRENDS_FILE, chunks, &empty_trends, |_| Ok(()))?;
+    let route_rows = routes.rows();
+    let mut routes_df = rows::routes_frame(&route_rows)?;
+    let routes_path = dir.join(ROUTES_FILE);
+    crate::parts::write_parquet(&routes_path, &mut routes_df, Some(table_metadata(spec, ROUTES_FILE)))?;
+    let routes_bytes = std::fs::metadata(&routes_path).map_or(0, |m| m.len());
+
+    counts.cases = cases;
+    counts.cases_ok = ok;
+    counts.cases_error = cases - ok;
+    counts.trend_rows = trend_rows;
+    counts.routes = route_rows.len() as u64;
+    let finished = now_unix_ms();
+    let manifest = Manifest {
+        batch_id: spec.batch_id.clone(),
+        label: spec.label.clone(),
+        engine_version: VERSION.to_string(),
+        data_sources: vec![species::SOURCE_NAME.to_string()],
+        temperature_grid_k: spec.temperatures_k.clone(),
+        default_conditions: spec.default_conditions.clone(),
+        counts,
+        files: vec![
+            FileEntry { name: CASES_FILE.into(), rows: cases, bytes: cases_bytes },
+            FileEntry { name: TRENDS_FILE.into(), rows: trend_rows, bytes: trends_bytes },
+            FileEntry { name: ROUTES_FILE.into(), rows: route_rows.len() as u64, bytes: routes_bytes },
+        ],
+        cautions: vec![CAUTION.to_string(), ROUTE_RANK_NOTE.to_string()],
+        timings: Timings {
+            created_unix_ms: spec.created_unix_ms,
+            finalize_started_unix_ms: started,
+            finished_unix_ms: finished,
+            elapsed_seconds: finished.saturating_sub(spec.created_unix_ms) as f64 / 1000.0,
+            finalize_seconds: t0.elapsed().as_secs_f64(),
+        },
+    };
+    let json = serde_json::to_vec_pretty(&manifest)?;
+    write_atomic(&dir.join(MANIFEST_FILE), |f: &mut File| {
+        std::io::Write::write_all(f, &json).map_err(|source| WorkerError::Io { path: dir.join(MANIFEST_FILE), source })
+    })?;
+    if !keep_parts {
+        let parts = dir.join("parts");
+        if let Err(e) = std::fs::remove_dir_all(&parts) {
+            tracing::warn!(path = %parts.display(), error = %e, "could not remove part files");
+        }
+    }
+    Ok(manifest)
+}

@@ -1,0 +1,47 @@
+//! thermosieve-worker: turns queued chunks into result tables.
+//!
+//! It owns running the engine on cases (one engine thread per core, each with its own species
+//! cache), the mapping from engine results to table rows (in one module, [`rows`]), atomic part
+//! files with deterministic names, and the finalizer that concatenates parts into
+//! `cases.parquet`, `trends.parquet`, `routes.parquet` and `manifest.json`. It must not parse
+//! input tables, speak gRPC or decide chunking: the front does that. It imports the queue and
+//! the engine, never the front.
+//!
+//! # Layout
+//! - [`rows`]: `Screened` → case, trend and route rows → polars frames (column names, units).
+//! - [`process`]: the engine over a chunk's cases, with a screener cache per grid.
+//! - [`parts`]: batch folders, part paths, atomic writes, Parquet I/O.
+//! - [`finalize`]: part files → batch tables + manifest.
+//! - [`run`]: the worker loop (poll, compute, write, acknowledge, reclaim, dead-letter, stop).
+
+pub mod finalize;
+pub mod parts;
+pub mod process;
+pub mod rows;
+pub mod run;
+
+pub use finalize::{finalize, Manifest, CASES_FILE, MANIFEST_FILE, ROUTES_FILE, TRENDS_FILE};
+pub use run::{run, WorkerConfig, WorkerStats};
+
+use std::path::PathBuf;
+
+/// Why a worker step failed.
+#[derive(Debug, thiserror::Error)]
+pub enum WorkerError {
+    #[error("{path}: {source}")]
+    Io { path: PathBuf, source: std::io::Error },
+    #[error("parquet: {0}")]
+    Polars(#[from] polars::prelude::PolarsError),
+    #[error("{0}")]
+    Queue(#[from] thermosieve_queue::QueueError),
+    #[error("batch id {0:?} is not a server-made id (lowercase hex)")]
+    BadBatchId(String),
+    #[error("batch {batch_id}: chunk {seq} has no committed {table} part")]
+    MissingPart { batch_id: String, seq: u64, table: String },
+    #[error("manifest: {0}")]
+    Json(#[from] serde_json::Error),
+    #[error("engine thread could not start: {0}")]
+    Spawn(std::io::Error),
+    #[error("engine thread stopped")]
+    EngineGone,
+}

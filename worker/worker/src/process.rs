@@ -1,0 +1,74 @@
+//! The engine applied to cases: one [`ChunkProcessor`] per engine thread, holding a
+//! [`Screener`] per temperature grid so the species cache carries over from chunk to chunk.
+
+use crate::rows::{self, build_rows, CaseRow, TrendRow};
+use std::panic::{catch_unwind, AssertUnwindSafe};
+use thermosieve_engine::{species, Screener, TemperatureGrid};
+use thermosieve_queue::{BatchSpec, CaseInput};
+
+/// Grids kept per processor; batches of one service nearly always share one grid.
+const SCREENERS_KEPT: usize = 4;
+
+/// Screens cases; not `Sync`: each engine thread owns one.
+#[derive(Default)]
+pub struct ChunkProcessor {
+    screeners: Vec<(Vec<u64>, Screener<'static>)>,
+}
+
+fn grid_key(t: &[f64]) -> Vec<u64> {
+    t.iter().map(|x| x.to_bits()).collect()
+}
+
+impl ChunkProcessor {
+    pub fn new() -> ChunkProcessor {
+        ChunkProcessor::default()
+    }
+
+    fn screener(&mut self, temperatures_k: &[f64]) -> Result<&mut Screener<'static>, String> {
+        let key = grid_key(temperatures_k);
+        let pos = match self.screeners.iter().position(|(k, _)| *k == key) {
+            Some(p) => p,
+            None => {
+                let grid = TemperatureGrid::new(temperatures_k.to_vec()).map_err(|e| format!("temperature grid: {e}"))?;
+                if self.screeners.len() >= SCREENERS_KEPT {
+                    self.screeners.remove(0);
+                }
+                self.screeners.push((key, Screener::new(species::bundled(), grid)));
+                self.screeners.len() - 1
+            }
+        };
+        Ok(&mut self.screeners[pos].1)
+    }
+
+    /// Rows for every case, in order: exactly one case row per case, whatever happens.
+    pub fn screen_cases(&mut self, spec: &BatchSpec, cases: &[CaseInput]) -> (Vec<CaseRow>, Vec<TrendRow>) {
+        let table = species::bundled();
+        let mut case_rows = Vec::with_capacity(cases.len());
+        let mut trend_rows = Vec::with_capacity(cases.len() * spec.temperatures_k.len());
+        let mut screener = self.screener(&spec.temperatures_k);
+        for case in cases {
+            let conditions = case.conditions.or_defaults(&spec.default_conditions);
+            let result = match (&mut screener, &case.input_error) {
+                (_, Some(e)) => Err(e.clone()),
+                (Err(e), None) => Err(e.clone()),
+                (Ok(_), None) if case.reaction.trim().is_empty() => Err(rows::missing_reaction_message(case)),
+                (Ok(s), None) => {
+                    // A panic in the engine must cost one case, not the chunk or the worker.
+                    match catch_unwind(AssertUnwindSafe(|| s.screen(&case.reaction))) {
+                        Ok(Ok(screened)) => {
+                            let (c, t) = build_rows(case, &conditions, Ok(&screened), table);
+                            case_rows.push(c);
+                            trend_rows.extend(t);
+                            continue;
+                        }
+                        Ok(Err(e)) => Err(rows::engine_error_message(case, &e)),
+                        Err(_) => Err(format!("internal error: the engine panicked on this reaction ({:?}); please report it", case.reaction)),
+                    }
+                }
+            };
+            let (c, _) = build_rows(case, &conditions, result, table);
+            case_rows.push(c);
+        }
+        (case_rows, trend_rows)
+    }
+}

@@ -1,0 +1,255 @@
+//! The one place where engine results become table rows.
+//!
+//! [`build_rows`] turns one case and its engine result into a [`CaseRow`] and its
+//! [`TrendRow`]s; [`cases_frame`], [`trends_frame`] and [`routes_frame`] turn rows into polars
+//! frames with the published column names. A new engine output (heat budget, estimated species)
+//! becomes a column by adding a field to the row, one line in `build_rows` and one in the frame
+//! function: nothing else in the service changes.
+
+use polars::prelude::{Column, DataFrame, PolarsResult};
+use thermosieve_engine::{species::Table, ScreenError, Screened};
+use thermosieve_queue::{CaseInput, CONDITION_FIELDS};
+
+/// `status` of a case row.
+pub const STATUS_OK: &str = "ok";
+pub const STATUS_ERROR: &str = "error";
+
+/// Joins several notes or sources in one cell.
+pub const JOIN: &str = " | ";
+
+/// One row of `cases.parquet`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct CaseRow {
+    pub case_id: String,
+    pub route_id: Option<String>,
+    pub step: Option<u32>,
+    pub ok: bool,
+    pub error_message: Option<String>,
+    pub balanced_equation: Option<String>,
+    pub delta_h_298_kj_per_mol: Option<f64>,
+    pub delta_s_298_j_per_mol_k: Option<f64>,
+    pub delta_g_298_kj_per_mol: Option<f64>,
+    pub log10_k_298: Option<f64>,
+    pub delta_g_zero_k: Option<f64>,
+    pub delta_h_uncertainty_kj_per_mol: Option<f64>,
+    pub estimated_species: u32,
+    pub all_points_in_valid_range: Option<bool>,
+    pub species_sources: Option<String>,
+    pub notes: Option<String>,
+    pub reaction: String,
+    pub phase: Option<String>,
+    /// The case's process conditions after batch defaults, in [`CONDITION_FIELDS`] order.
+    pub conditions: [Option<f64>; 12],
+    /// Other condition columns, as a JSON object (name → text); `None` when there are none.
+    pub conditions_extra_json: Option<String>,
+    /// 1-based input row (0 unknown).
+    pub input_row: u64,
+}
+
+/// One row of `trends.parquet`: one case at one grid temperature.
+#[derive(Clone, Debug, PartialEq)]
+pub struct TrendRow {
+    pub case_id: String,
+    pub temperature_k: f64,
+    pub delta_h_kj_per_mol: f64,
+    pub delta_s_j_per_mol_k: f64,
+    pub delta_g_kj_per_mol: f64,
+    pub log10_k: f64,
+    pub in_valid_range: bool,
+}
+
+/// One row of `routes.parquet`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct RouteRow {
+    pub route_id: String,
+    pub steps: u32,
+    pub failed_steps: u32,
+    /// Provisional rank (1 = best) by `total_delta_h_298_kj_per_mol`, most exothermic first;
+    /// `None` when no step is ok.
+    pub rank: Option<u32>,
+    /// Sum of ΔrH°(298.15 K) over the route's ok steps, kJ per mol of each step as balanced.
+    pub total_delta_h_298_kj_per_mol: Option<f64>,
+    /// `step N (case ID): message` of the lowest failing step.
+    pub first_error: Option<String>,
+}
+
+/// How route ranks are computed today, written beside the routes table.
+pub const ROUTE_RANK_NOTE: &str = "rank is provisional: routes are ordered by the sum of the standard reaction enthalpies \
+(298.15 K) of their ok steps, most exothermic first, ties by route_id; routes with no ok step have no rank. \
+The sum adds kJ per mole of each step as balanced, not per kg of product.";
+
+/// The message of an engine error for one case, naming the input row and column.
+pub fn engine_error_message(case: &CaseInput, e: &ScreenError) -> String {
+    format!("{}column reaction: {e}", row_prefix(case.row))
+}
+
+fn row_prefix(row: u64) -> String {
+    if row > 0 {
+        format!("row {row}, ")
+    } else {
+        String::new()
+    }
+}
+
+/// The message of a case that has no reaction.
+pub fn missing_reaction_message(case: &CaseInput) -> String {
+    format!("{}column reaction: missing (expected a reaction equation such as \"CO(g) + H2O(g) -> CO2(g) + H2(g)\")", row_prefix(case.row))
+}
+
+/// The rows of one case. `conditions` are the case's conditions merged with the batch defaults.
+pub fn build_rows(case: &CaseInput, conditions: &thermosieve_queue::Conditions, result: Result<&Screened, String>, table: &Table) -> (CaseRow, Vec<TrendRow>) {
+    let mut row = CaseRow {
+        case_id: case.case_id.clone(),
+        route_id: case.route_id.clone(),
+        step: case.step,
+        ok: false,
+        error_message: None,
+        balanced_equation: None,
+        delta_h_298_kj_per_mol: None,
+        delta_s_298_j_per_mol_k: None,
+        delta_g_298_kj_per_mol: None,
+        log10_k_298: None,
+        delta_g_zero_k: None,
+        delta_h_uncertainty_kj_per_mol: None,
+        estimated_species: 0,
+        all_points_in_valid_range: None,
+        species_sources: None,
+        notes: None,
+        reaction: case.reaction.clone(),
+        phase: case.phase.clone(),
+        conditions: conditions.values(),
+        conditions_extra_json: (!conditions.extra.is_empty()).then(|| serde_json::to_string(&conditions.extra).unwrap_or_default()),
+        input_row: case.row,
+    };
+    let s = match result {
+        Ok(s) => s,
+        Err(message) => {
+            row.error_message = Some(message);
+            return (row, Vec::new());
+        }
+    };
+    row.ok = true;
+    row.balanced_equation = Some(s.balanced_equation.clone());
+    row.delta_h_298_kj_per_mol = Some(s.standard.delta_h_kj_per_mol);
+    row.delta_s_298_j_per_mol_k = Some(s.standard.delta_s_j_per_mol_k);
+    row.delta_g_298_kj_per_mol = Some(s.standard.delta_g_kj_per_mol);
+    row.log10_k_298 = Some(s.standard.log10_k);
+    row.delta_g_zero_k = s.delta_g_zero_k;
+    row.delta_h_uncertainty_kj_per_mol = s.delta_h_uncertainty_kj_per_mol;
+    // The engine has no estimation yet: every species is tabulated or supplied.
+    row.estimated_species = 0;
+    row.all_points_in_valid_range = Some(s.points.iter().all(|p| p.in_valid_range));
+    let sources: Vec<String> = s.species.iter().map(|t| format!("{}: {}", t.species.resolved.label, t.species.resolved.source_line(table))).collect();
+    row.species_sources = Some(sources.join(JOIN));
+    row.notes = (!s.notes.is_empty()).then(|| s.notes.join(JOIN));
+    let trends = s
+        .points
+        .iter()
+        .map(|p| TrendRow {
+            case_id: case.case_id.clone(),
+            temperature_k: p.temperature_k,
+            delta_h_kj_per_mol: p.delta_h_kj_per_mol,
+            delta_s_j_per_mol_k: p.delta_s_j_per_mol_k,
+            delta_g_kj_per_mol: p.delta_g_kj_per_mol,
+            log10_k: p.log10_k,
+            in_valid_range: p.in_valid_range,
+        })
+        .collect();
+    (row, trends)
+}
+
+fn col<T>(name: &str, values: T) -> Column
+where
+    Column: ColumnFrom<T>,
+{
+    Column::column_from(name, values)
+}
+
+/// Constructors used by the frame builders (keeps the column list readable).
+pub trait ColumnFrom<T> {
+    fn column_from(name: &str, values: T) -> Column;
+}
+
+macro_rules! column_from {
+    ($($t:ty),*) => {$(
+        impl ColumnFrom<Vec<$t>> for Column {
+            fn column_from(name: &str, values: Vec<$t>) -> Column {
+                Column::new(name.into(), values)
+            }
+        }
+    )*};
+}
+column_from!(String, Option<String>, f64, Option<f64>, u32, Option<u32>, bool, Option<bool>, u64);
+
+/// `cases.parquet` columns, in order.
+///
+/// # Errors
+/// Polars errors (not expected: all columns have the same length).
+pub fn cases_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
+    let s = |f: fn(&CaseRow) -> Option<String>| rows.iter().map(f).collect::<Vec<Option<String>>>();
+    let n = |f: fn(&CaseRow) -> Option<f64>| rows.iter().map(f).collect::<Vec<Option<f64>>>();
+    let mut columns = vec![
+        col("case_id", rows.iter().map(|r| r.case_id.clone()).collect::<Vec<String>>()),
+        col("route_id", s(|r| r.route_id.clone())),
+        col("step", rows.iter().map(|r| r.step).collect::<Vec<Option<u32>>>()),
+        col("status", rows.iter().map(|r| (if r.ok { STATUS_OK } else { STATUS_ERROR }).to_string()).collect::<Vec<String>>()),
+        col("error_message", s(|r| r.error_message.clone())),
+        col("balanced_equation", s(|r| r.balanced_equation.clone())),
+        col("delta_h_298_kj_per_mol", n(|r| r.delta_h_298_kj_per_mol)),
+        col("delta_s_298_j_per_mol_k", n(|r| r.delta_s_298_j_per_mol_k)),
+        col("delta_g_298_kj_per_mol", n(|r| r.delta_g_298_kj_per_mol)),
+        col("log10_k_298", n(|r| r.log10_k_298)),
+        col("delta_g_zero_k", n(|r| r.delta_g_zero_k)),
+        col("delta_h_uncertainty_kj_per_mol", n(|r| r.delta_h_uncertainty_kj_per_mol)),
+        col("estimated_species", rows.iter().map(|r| r.estimated_species).collect::<Vec<u32>>()),
+        col("all_points_in_valid_range", rows.iter().map(|r| r.all_points_in_valid_range).collect::<Vec<Option<bool>>>()),
+        col("species_sources", s(|r| r.species_sources.clone())),
+        col("notes", s(|r| r.notes.clone())),
+        col("reaction", rows.iter().map(|r| r.reaction.clone()).collect::<Vec<String>>()),
+        col("phase", s(|r| r.phase.clone())),
+    ];
+    for (i, name) in CONDITION_FIELDS.iter().enumerate() {
+        columns.push(col(name, rows.iter().map(|r| r.conditions[i]).collect::<Vec<Option<f64>>>()));
+    }
+    columns.push(col("conditions_extra_json", s(|r| r.conditions_extra_json.clone())));
+    columns.push(col("input_row", rows.iter().map(|r| r.input_row).collect::<Vec<u64>>()));
+    DataFrame::new(rows.len(), columns)
+}
+
+/// `trends.parquet` columns, in order.
+///
+/// # Errors
+/// Polars errors (not expected).
+pub fn trends_frame(rows: &[TrendRow]) -> PolarsResult<DataFrame> {
+    let n = |f: fn(&TrendRow) -> f64| rows.iter().map(f).collect::<Vec<f64>>();
+    DataFrame::new(
+        rows.len(),
+        vec![
+            col("case_id", rows.iter().map(|r| r.case_id.clone()).collect::<Vec<String>>()),
+            col("temperature_k", n(|r| r.temperature_k)),
+            col("delta_h_kj_per_mol", n(|r| r.delta_h_kj_per_mol)),
+            col("delta_s_j_per_mol_k", n(|r| r.delta_s_j_per_mol_k)),
+            col("delta_g_kj_per_mol", n(|r| r.delta_g_kj_per_mol)),
+            col("log10_k", n(|r| r.log10_k)),
+            col("in_valid_range", rows.iter().map(|r| r.in_valid_range).collect::<Vec<bool>>()),
+        ],
+    )
+}
+
+/// `routes.parquet` columns, in order.
+///
+/// # Errors
+/// Polars errors (not expected).
+pub fn routes_frame(rows: &[RouteRow]) -> PolarsResult<DataFrame> {
+    DataFrame::new(
+        rows.len(),
+        vec![
+            col("route_id", rows.iter().map(|r| r.route_id.clone()).collect::<Vec<String>>()),
+            col("steps", rows.iter().map(|r| r.steps).collect::<Vec<u32>>()),
+            col("failed_steps", rows.iter().map(|r| r.failed_steps).collect::<Vec<u32>>()),
+            col("rank", rows.iter().map(|r| r.rank).collect::<Vec<Option<u32>>>()),
+            col("total_delta_h_298_kj_per_mol", rows.iter().map(|r| r.total_delta_h_298_kj_per_mol).collect::<Vec<Option<f64>>>()),
+            col("first_error", rows.iter().map(|r| r.first_error.clone()).collect::<Vec<Option<String>>>()),
+        ],
+    )
+}

@@ -1,0 +1,277 @@
+//! The worker loop: poll the queue, compute chunks on engine threads, write parts, acknowledge.
+//!
+//! Each of `threads` slots is an async task (polling, acknowledging, reclaiming) paired with an
+//! OS thread that owns a [`ChunkProcessor`] (so the species cache survives from chunk to chunk)
+//! and does the CPU work and the Parquet writing. The async side never blocks.
+//!
+//! On shutdown (the `shutdown` future completes, e.g. on SIGTERM) a slot finishes the chunk in
+//! hand, commits it, and stops polling; a chunk read but not finished by a killed worker is
+//! reclaimed by another after `reclaim_idle`.
+
+use crate::finalize::{finalize, Manifest};
+use crate::parts::{part_path, write_part};
+use crate::process::ChunkProcessor;
+use crate::rows::{self, build_rows};
+use crate::WorkerError;
+use std::collections::HashMap;
+use std::future::Future;
+use std::path::{Path, PathBuf};
+use std::sync::Arc;
+use std::time::{Duration, Instant};
+use thermosieve_engine::species;
+use thermosieve_queue::{BatchSpec, BatchState, Chunk, ChunkReport, Delivery, Progress, Queue, QueueError, Task};
+use tokio::sync::{oneshot, watch};
+
+/// Worker settings.
+#[derive(Clone, Debug)]
+pub struct WorkerConfig {
+    /// Where batch folders are written (shared with the front).
+    pub results_dir: PathBuf,
+    /// Engine threads (and queue consumers) in this process.
+    pub threads: usize,
+    /// Consumer name prefix; slot `i` consumes as `<consumer>-<i>`. Unique per process.
+    pub consumer: String,
+    /// Longest a poll blocks (also the longest a shutdown waits for an idle slot).
+    pub block: Duration,
+    /// A task pending this long without completion is taken over by another consumer.
+    pub reclaim_idle: Duration,
+    /// A chunk delivered more often than this is dead-lettered: its cases become error rows.
+    pub max_deliveries: u64,
+    /// Keep the part files after finalizing (for debugging).
+    pub keep_parts: bool,
+}
+
+impl WorkerConfig {
+    pub fn new(results_dir: impl Into<PathBuf>) -> WorkerConfig {
+        WorkerConfig {
+            results_dir: results_dir.into(),
+            threads: std::thread::available_parallelism().map_or(1, |n| n.get()),
+            consumer: format!("worker-{}", std::process::id()),
+            block: Duration::from_secs(2),
+            reclaim_idle: Duration::from_secs(60),
+            max_deliveries: 3,
+            keep_parts: false,
+        }
+    }
+}
+
+/// What a worker did before it stopped.
+#[derive(Clone, Debug, Default, PartialEq, Eq)]
+pub struct WorkerStats {
+    pub chunks: u64,
+    pub cases: u64,
+    pub dead_lettered: u64,
+    pub finalized: u64,
+}
+
+enum Job {
+    Chunk { spec: Arc<BatchSpec>, chunk: Chunk, dead_reason: Option<String>, reply: oneshot::Sender<Result<ChunkReport, WorkerError>> },
+    Finalize { spec: Arc<BatchSpec>, progress: Progress, reply: oneshot::Sender<Result<Manifest, WorkerError>> },
+}
+
+/// Compute a chunk and write its parts; returns what to report.
+///
+/// # Errors
+/// I/O and Polars errors writing the parts.
+pub fn commit_chunk(results_dir: &Path, processor: &mut ChunkProcessor, spec: &BatchSpec, chunk: &Chunk) -> Result<ChunkReport, WorkerError> {
+    let (cases, trends) = processor.screen_cases(spec, &chunk.cases);
+    write_parts(results_dir, spec, chunk.seq, &cases, &trends, false)
+}
+
+/// Write a dead-lettered chunk: every case an error row with `reason`.
+///
+/// # Errors
+/// I/O and Polars errors.
+pub fn commit_dead_chunk(results_dir: &Path, spec: &BatchSpec, chunk: &Chunk, reason: &str) -> Result<ChunkReport, WorkerError> {
+    let table = species::bundled();
+    let cases: Vec<rows::CaseRow> = chunk
+        .cases
+        .iter()
+        .map(|c| build_rows(c, &c.conditions.or_defaults(&spec.default_conditions), Err(reason.to_string()), table).0)
+        .collect();
+    write_parts(results_dir, spec, chunk.seq, &cases, &[], true)
+}
+
+fn write_parts(results_dir: &Path, spec: &BatchSpec, seq: u64, cases: &[rows::CaseRow], trends: &[rows::TrendRow], dead: bool) -> Result<ChunkReport, WorkerError> {
+    let errors = cases.iter().filter(|r| !r.ok).count() as u64;
+    // Trends first: the cases part is what the finalizer checks for, so it lands last.
+    write_part(&part_path(results_dir, &spec.batch_id, "trends", seq)?, &mut rows::trends_frame(trends)?)?;
+    write_part(&part_path(results_dir, &spec.batch_id, "cases", seq)?, &mut rows::cases_frame(cases)?)?;
+    Ok(ChunkReport { cases: cases.len() as u64, errors, dead_lettered: dead })
+}
+
+fn engine_thread(results_dir: PathBuf, keep_parts: bool, jobs: std::sync::mpsc::Receiver<Job>) {
+    let mut processor = ChunkProcessor::new();
+    while let Ok(job) = jobs.recv() {
+        match job {
+            Job::Chunk { spec, chunk, dead_reason, reply } => {
+                let r = match dead_reason {
+                    Some(reason) => commit_dead_chunk(&results_dir, &spec, &chunk, &reason),
+                    None => commit_chunk(&results_dir, &mut processor, &spec, &chunk),
+                };
+                let _ = reply.send(r);
+            }
+            Job::Finalize { spec, progress, reply } => {
+                let _ = reply.send(finalize(&results_dir, &spec, &progress, keep_parts));
+            }
+        }
+    }
+}
+
+/// Run a worker until `shutdown` completes.
+///
+/// # Errors
+/// `WorkerError::Spawn` when an engine thread cannot start. Queue errors while running are
+/// logged and retried, not returned: a worker outlives a Redis restart.
+pub async fn run(queue: Arc<dyn Queue>, cfg: WorkerConfig, shutdown: impl Future<Output = ()> + Send + 'static) -> Result<WorkerStats, WorkerError> {
+    let (stop_tx, stop_rx) = watch::channel(false);
+    tokio::spawn(async move {
+        shutdown.await;
+        let _ = stop_tx.send(true);
+    });
+    let mut slots = Vec::new();
+    let mut threads = Vec::new();
+    for i in 0..cfg.threads.max(1) {
+        let (tx, rx) = std::sync::mpsc::channel::<Job>();
+        let (dir, keep) = (cfg.results_dir.clone(), cfg.keep_parts);
+        let t = std::thread::Builder::new().name(format!("engine-{i}")).spawn(move || engine_thread(dir, keep, rx)).map_err(WorkerError::Spawn)?;
+        threads.push(t);
+        let slot = Slot { queue: queue.clone(), cfg: cfg.clone(), consumer: format!("{}-{i}", cfg.consumer), jobs: tx, specs: HashMap::new(), stats: WorkerStats::default() };
+        slots.push(tokio::spawn(slot.run(stop_rx.clone())));
+    }
+    let mut stats = WorkerStats::default();
+    for s in slots {
+        if let Ok(s) = s.await {
+            stats.chunks += s.chunks;
+            stats.cases += s.cases;
+            stats.dead_lettered += s.dead_lettered;
+            stats.finalized += s.finalized;
+        }
+    }
+    // The slots dropped their senders: the engine threads end after their last job.
+    let _ = tokio::task::spawn_blocking(move || threads.into_iter().for_each(|t| drop(t.join()))).await;
+    tracing::info!(chunks = stats.chunks, cases = stats.cases, "worker stopped");
+    Ok(stats)
+}
+
+struct Slot {
+    queue: Arc<dyn Queue>,
+    cfg: WorkerConfig,
+    consumer: String,
+    jobs: std::sync::mpsc::Sender<Job>,
+    specs: HashMap<String, Arc<BatchSpec>>,
+    stats: WorkerStats,
+}
+
+impl Slot {
+    async fn run(mut self, stop: watch::Receiver<bool>) -> WorkerStats {
+        let mut last_reclaim = Instant::now();
+        let mut backoff = Duration::from_millis(200);
+        while !*stop.borrow() {
+            let next = if last_reclaim.elapsed() >= self.cfg.reclaim_idle / 2 {
+                last_reclaim = Instant::now();
+                match self.queue.reclaim(&self.consumer, self.cfg.reclaim_idle, 1).await {
+                    Ok(mut v) if !v.is_empty() => {
+                        tracing::warn!(consumer = %self.consumer, entry_id = %v[0].entry_id, deliveries = v[0].deliveries, "reclaimed an abandoned task");
+                        Ok(v.pop())
+                    }
+                    Ok(_) => self.queue.poll(&self.consumer, self.cfg.block).await,
+                    Err(e) => Err(e),
+                }
+            } else {
+                self.queue.poll(&self.consumer, self.cfg.block).await
+            };
+            match next {
+                Ok(Some(d)) => {
+                    backoff = Duration::from_millis(200);
+                    if let Err(e) = self.handle(d).await {
+                        tracing::error!(consumer = %self.consumer, error = %e, "task failed; it stays pending and will be retried");
+                    }
+                }
+                Ok(None) => {}
+                Err(QueueError::GroupMissing { stream, group }) => {
+                    tracing::error!(%stream, %group, "consumer group missing: redis lost its data; batches in flight are lost and will report as failed; recreating the group");
+                    if let Err(e) = self.queue.recover().await {
+                        tracing::error!(error = %e, "could not recreate the consumer group");
+                    }
+                    tokio::time::sleep(backoff).await;
+                }
+                Err(e) => {
+                    tracing::warn!(error = %e, retryable = e.retryable(), "queue read failed; retrying");
+                    tokio::time::sleep(backoff).await;
+                    backoff = (backoff * 2).min(Duration::from_secs(5));
+                }
+            }
+        }
+        self.stats
+    }
+
+    async fn spec(&mut self, batch_id: &str) -> Result<Option<Arc<BatchSpec>>, WorkerError> {
+        if let Some(s) = self.specs.get(batch_id) {
+            return Ok(Some(s.clone()));
+        }
+        let Some(spec) = self.queue.batch_spec(batch_id).await? else { return Ok(None) };
+        if self.specs.len() > 64 {
+            self.specs.clear();
+        }
+        let spec = Arc::new(spec);
+        self.specs.insert(batch_id.to_string(), spec.clone());
+        Ok(Some(spec))
+    }
+
+    async fn handle(&mut self, d: Delivery) -> Result<(), WorkerError> {
+        let batch_id = d.task.batch_id().to_string();
+        let progress = self.queue.progress(&batch_id).await?;
+        let spec = self.spec(&batch_id).await?;
+        let (Some(progress), Some(spec)) = (progress, spec) else {
+            tracing::error!(batch_id = %batch_id, entry_id = %d.entry_id, "task of a batch the queue does not know (expired or lost in a redis restart); discarding it");
+            self.queue.discard(&d).await?;
+            return Ok(());
+        };
+        if matches!(progress.state, BatchState::Cancelled | BatchState::Failed | BatchState::Done) {
+            tracing::info!(batch_id = %batch_id, state = progress.state.as_str(), "skipping a task of a finished batch");
+            self.queue.discard(&d).await?;
+            return Ok(());
+        }
+        match &d.task {
+            Task::Chunk(chunk) => {
+                let dead_reason = (d.deliveries > self.cfg.max_deliveries).then(|| {
+                    format!(
+                        "not computed: chunk {} was delivered {} times without completing (a worker crashed or timed out on it) and was dead-lettered; resubmit these cases",
+                        chunk.seq, d.deliveries
+                    )
+                });
+                if let Some(reason) = &dead_reason {
+                    tracing::error!(batch_id = %batch_id, seq = chunk.seq, deliveries = d.deliveries, "dead-lettering a chunk");
+                    self.queue.dead_letter(&d, reason).await?;
+                }
+                let (reply, rx) = oneshot::channel();
+                let seq = chunk.seq;
+                self.jobs.send(Job::Chunk { spec, chunk: chunk.clone(), dead_reason, reply }).map_err(|_| WorkerError::EngineGone)?;
+                let report = rx.await.map_err(|_| WorkerError::EngineGone)??;
+                self.queue.complete_chunk(&d, seq, report).await?;
+                self.stats.chunks += 1;
+                self.stats.cases += report.cases;
+                self.stats.dead_lettered += u64::from(report.dead_lettered);
+                tracing::debug!(batch_id = %batch_id, seq, cases = report.cases, errors = report.errors, "chunk committed");
+            }
+            Task::Finalize { .. } => {
+                let (reply, rx) = oneshot::channel();
+                self.jobs.send(Job::Finalize { spec, progress, reply }).map_err(|_| WorkerError::EngineGone)?;
+                let outcome = match rx.await.map_err(|_| WorkerError::EngineGone)? {
+                    Ok(m) => {
+                        tracing::info!(batch_id = %batch_id, cases = m.counts.cases, errors = m.counts.cases_error, routes = m.counts.routes, seconds = m.timings.elapsed_seconds, "batch tables written");
+                        Ok(())
+                    }
+                    Err(e) => {
+                        tracing::error!(batch_id = %batch_id, error = %e, "finalizing failed; the batch is failed");
+                        Err(format!("writing the tables failed: {e}"))
+                    }
+                };
+                self.queue.complete_finalize(&d, outcome).await?;
+                self.stats.finalized += 1;
+            }
+        }
+        Ok(())
+    }
+}

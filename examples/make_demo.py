@@ -28,7 +28,7 @@ STEPS = [
     ("hydrogenation", "C2H4(g) + H2(g) -> C2H6(g)"),
     ("hydrogenation", "C3H6,propylene + H2(g) -> C3H8(g)"),
     ("hydrogenation", "C6H6(g) + H2(g) -> C6H12,cyclo-"),
-    ("hydrogenation", "C8H8(g) + H2(g) -> C8H10(g)"),
+    ("hydrogenation", "C8H8(g) + H2(g) -> C8H10,ethylbenz(g)"),
     ("oxidation", "C2H4(g) + O2(g) -> C2H4O,ethylen"),
     ("oxidation", "C2H4(g) + O2(g) -> CO2(g) + H2O(g)"),
     ("oxidation", "CH4(g) + O2(g) -> CO(g) + H2(g)"),

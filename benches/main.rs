@@ -48,7 +48,12 @@ impl Drop for Proc {
 fn vm_hwm_kb(pid: u32) -> u64 {
     std::fs::read_to_string(format!("/proc/{pid}/status"))
         .ok()
-        .and_then(|s| s.lines().find(|l| l.starts_with("VmHWM:")).and_then(|l| l.split_whitespace().nth(1)).and_then(|v| v.parse().ok()))
+        .and_then(|s| {
+            s.lines()
+                .find(|l| l.starts_with("VmHWM:"))
+                .and_then(|l| l.split_whitespace().nth(1))
+                .and_then(|v| v.parse().ok())
+        })
         .unwrap_or(0)
 }
 
@@ -92,7 +97,10 @@ async fn main() -> anyhow::Result<()> {
         None => std::env::current_exe()?.parent().context("exe dir")?.join("thermosieve"),
     };
     if !bin.exists() {
-        bail!("{} not found: build it with cargo build --release -p thermosieve-cli", bin.display());
+        bail!(
+            "{} not found: build it with cargo build --release -p thermosieve-cli",
+            bin.display()
+        );
     }
     let demo: Vec<CaseInput> = input::open(&a.input, None)?.collect();
     let dir = std::env::temp_dir().join(format!("thermosieve-bench-{}", std::process::id()));
@@ -100,7 +108,17 @@ async fn main() -> anyhow::Result<()> {
     let rport = free_port()?;
     let redis = Proc(
         Command::new("redis-server")
-            .args(["--port", &rport.to_string(), "--bind", "127.0.0.1", "--save", "", "--appendonly", "no", "--dir"])
+            .args([
+                "--port",
+                &rport.to_string(),
+                "--bind",
+                "127.0.0.1",
+                "--save",
+                "",
+                "--appendonly",
+                "no",
+                "--dir",
+            ])
             .arg(&dir)
             .stdout(Stdio::null())
             .spawn()
@@ -108,11 +126,27 @@ async fn main() -> anyhow::Result<()> {
     );
     tokio::time::sleep(Duration::from_millis(300)).await;
     let fport = free_port()?;
-    let env = [("THERMOSIEVE_REDIS_URL", format!("redis://127.0.0.1:{rport}/")), ("THERMOSIEVE_RESULTS_DIR", dir.join("results").display().to_string()), ("THERMOSIEVE_LOG", "warn".into())];
-    let front = Proc(Command::new(&bin).args(["serve", "--listen", &format!("127.0.0.1:{fport}")]).envs(env.clone()).stdout(Stdio::null()).spawn()?);
+    let env = [
+        ("THERMOSIEVE_REDIS_URL", format!("redis://127.0.0.1:{rport}/")),
+        ("THERMOSIEVE_RESULTS_DIR", dir.join("results").display().to_string()),
+        ("THERMOSIEVE_LOG", "warn".into()),
+    ];
+    let front = Proc(
+        Command::new(&bin)
+            .args(["serve", "--listen", &format!("127.0.0.1:{fport}")])
+            .envs(env.clone())
+            .stdout(Stdio::null())
+            .spawn()?,
+    );
     let mut workers = Vec::new();
     for w in 0..a.workers {
-        workers.push(Proc(Command::new(&bin).args(["work", "--threads", "1", "--consumer", &format!("bench-{w}")]).envs(env.clone()).stdout(Stdio::null()).spawn()?));
+        workers.push(Proc(
+            Command::new(&bin)
+                .args(["work", "--threads", "1", "--consumer", &format!("bench-{w}")])
+                .envs(env.clone())
+                .stdout(Stdio::null())
+                .spawn()?,
+        ));
     }
     let url = format!("http://127.0.0.1:{fport}");
     let mut client = loop {
@@ -126,17 +160,35 @@ async fn main() -> anyhow::Result<()> {
     let n = a.cases;
     let demo2 = demo.clone();
     let feeder = tokio::task::spawn_blocking(move || {
-        let _ = tx.blocking_send(pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Header(pb::BatchHeader { label: "bench".into(), chunk_size: a.chunk_size, ..Default::default() })) });
+        let _ = tx.blocking_send(pb::SubmitBatchRequest {
+            item: Some(pb::submit_batch_request::Item::Header(pb::BatchHeader {
+                label: "bench".into(),
+                chunk_size: a.chunk_size,
+                ..Default::default()
+            })),
+        });
         for c in cases(&demo2, n) {
-            if tx.blocking_send(pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Case(convert::case_to_pb(&c))) }).is_err() {
+            if tx
+                .blocking_send(pb::SubmitBatchRequest {
+                    item: Some(pb::submit_batch_request::Item::Case(convert::case_to_pb(&c))),
+                })
+                .is_err()
+            {
                 break;
             }
         }
     });
-    let id = client.submit_batch(tokio_stream::wrappers::ReceiverStream::new(rx)).await?.into_inner().batch_id;
+    let id = client
+        .submit_batch(tokio_stream::wrappers::ReceiverStream::new(rx))
+        .await?
+        .into_inner()
+        .batch_id;
     feeder.await?;
     let submitted = t0.elapsed().as_secs_f64();
-    let mut watch = client.watch_batch(pb::WatchBatchRequest { batch_id: id.clone() }).await?.into_inner();
+    let mut watch = client
+        .watch_batch(pb::WatchBatchRequest { batch_id: id.clone() })
+        .await?
+        .into_inner();
     let mut last = None;
     while let Some(s) = watch.message().await? {
         last = Some(s);
@@ -158,7 +210,11 @@ async fn main() -> anyhow::Result<()> {
     println!("end to end: {e2e_s:.1} s, {e2e_rate:.0} cases/s (front + redis + workers + parquet, finalize included)");
     println!("engine only ({} threads): {engine_rate:.0} cases/s", a.workers);
     println!("ratio e2e / engine: {:.2}", e2e_rate / engine_rate);
-    println!("peak RSS (VmHWM): front {} MB, workers {:?} MB", front_kb / 1024, worker_kb.iter().map(|k| k / 1024).collect::<Vec<_>>());
+    println!(
+        "peak RSS (VmHWM): front {} MB, workers {:?} MB",
+        front_kb / 1024,
+        worker_kb.iter().map(|k| k / 1024).collect::<Vec<_>>()
+    );
     let _ = std::fs::remove_dir_all(&dir);
     Ok(())
 }

@@ -12,6 +12,9 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     let fds = protox::compile(protos, ["."])?;
     let out = PathBuf::from(std::env::var("OUT_DIR")?);
     std::fs::write(out.join("thermosieve_descriptor.bin"), prost::Message::encode_to_vec(&fds))?;
-    tonic_prost_build::configure().build_client(true).build_server(true).compile_fds(fds)?;
+    tonic_prost_build::configure()
+        .build_client(true)
+        .build_server(true)
+        .compile_fds(fds)?;
     Ok(())
 }

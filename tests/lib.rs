@@ -10,7 +10,10 @@ use std::time::{Duration, Instant};
 
 /// The workspace root.
 pub fn root() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).parent().map(Path::to_path_buf).unwrap_or_default()
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .parent()
+        .map(Path::to_path_buf)
+        .unwrap_or_default()
 }
 
 /// `examples/nightly_screen.csv`.
@@ -33,7 +36,10 @@ impl RedisServer {
     /// does not answer within 10 s.
     pub fn start() -> RedisServer {
         let bin = std::env::var("THERMOSIEVE_TEST_REDIS_SERVER").unwrap_or_else(|_| "redis-server".into());
-        let port = TcpListener::bind("127.0.0.1:0").and_then(|l| l.local_addr()).map(|a| a.port()).expect("no free loopback port");
+        let port = TcpListener::bind("127.0.0.1:0")
+            .and_then(|l| l.local_addr())
+            .map(|a| a.port())
+            .expect("no free loopback port");
         let dir = tempfile::tempdir().expect("temp dir");
         let child = Command::new(&bin)
             .args(["--port", &port.to_string(), "--bind", "127.0.0.1", "--save", "", "--appendonly", "no", "--dir"])
@@ -46,7 +52,10 @@ impl RedisServer {
         let deadline = Instant::now() + Duration::from_secs(10);
         // Ready when it answers PING (a bare connect can succeed before it serves).
         while !pong(port) {
-            assert!(Instant::now() < deadline, "redis-server on port {port} did not answer PING within 10 s");
+            assert!(
+                Instant::now() < deadline,
+                "redis-server on port {port} did not answer PING within 10 s"
+            );
             std::thread::sleep(Duration::from_millis(20));
         }
         server
@@ -100,7 +109,12 @@ pub fn table_metadata(path: &Path) -> Vec<(String, String)> {
 /// # Panics
 /// When the column is missing or not a string column.
 pub fn strings(df: &DataFrame, name: &str) -> Vec<Option<String>> {
-    let c = df.column(name).unwrap_or_else(|e| panic!("{name}: {e}")).str().expect("string column").clone();
+    let c = df
+        .column(name)
+        .unwrap_or_else(|e| panic!("{name}: {e}"))
+        .str()
+        .expect("string column")
+        .clone();
     (0..c.len()).map(|i| c.get(i).map(String::from)).collect()
 }
 
@@ -109,13 +123,20 @@ pub fn strings(df: &DataFrame, name: &str) -> Vec<Option<String>> {
 /// # Panics
 /// When the column is missing or not Float64.
 pub fn floats(df: &DataFrame, name: &str) -> Vec<Option<f64>> {
-    let c = df.column(name).unwrap_or_else(|e| panic!("{name}: {e}")).f64().expect("f64 column").clone();
+    let c = df
+        .column(name)
+        .unwrap_or_else(|e| panic!("{name}: {e}"))
+        .f64()
+        .expect("f64 column")
+        .clone();
     (0..c.len()).map(|i| c.get(i)).collect()
 }
 
 fn pong(port: u16) -> bool {
     use std::io::{Read, Write};
-    let Ok(mut s) = std::net::TcpStream::connect(("127.0.0.1", port)) else { return false };
+    let Ok(mut s) = std::net::TcpStream::connect(("127.0.0.1", port)) else {
+        return false;
+    };
     let _ = s.set_read_timeout(Some(Duration::from_millis(500)));
     if s.write_all(b"PING\r\n").is_err() {
         return false;

@@ -21,8 +21,14 @@ fn demo_cases() -> Vec<thermosieve_queue::CaseInput> {
 }
 
 async fn embedded(dir: &Path) -> (DataFrame, DataFrame, DataFrame) {
-    let out = thermosieve_front::embedded::run_cases(demo_cases().into_iter(), BatchOptions::default(), dir, 2).await.expect("embedded run");
-    (read_table(&out.batch_dir.join("cases.parquet")), read_table(&out.batch_dir.join("trends.parquet")), read_table(&out.batch_dir.join("routes.parquet")))
+    let out = thermosieve_front::embedded::run_cases(demo_cases().into_iter(), BatchOptions::default(), dir, 2)
+        .await
+        .expect("embedded run");
+    (
+        read_table(&out.batch_dir.join("cases.parquet")),
+        read_table(&out.batch_dir.join("trends.parquet")),
+        read_table(&out.batch_dir.join("routes.parquet")),
+    )
 }
 
 fn each_case_once(cases: &DataFrame, expected: &[thermosieve_queue::CaseInput]) {
@@ -49,12 +55,23 @@ async fn embedded_run_on_demo_data_gives_every_case_once_with_the_engines_values
     let n_err = status.iter().filter(|s| s.as_deref() == Some("error")).count();
     assert_eq!(n_err, 5, "the demo has five deliberately bad rows");
     let all_errors: Vec<&str> = errors.iter().flatten().map(String::as_str).collect();
-    assert!(all_errors.iter().any(|e| e.contains("unknown element symbol 'Xq'")), "{all_errors:?}");
+    assert!(
+        all_errors.iter().any(|e| e.contains("unknown element symbol 'Xq'")),
+        "{all_errors:?}"
+    );
     assert!(all_errors.iter().any(|e| e.contains("cannot be balanced")), "{all_errors:?}");
     assert!(all_errors.iter().any(|e| e.contains("column reaction: missing")), "{all_errors:?}");
-    assert!(all_errors.iter().any(|e| e.contains("column scale_mol: expected a number, got \"about 40\"")), "{all_errors:?}");
+    assert!(
+        all_errors
+            .iter()
+            .any(|e| e.contains("column scale_mol: expected a number, got \"about 40\"")),
+        "{all_errors:?}"
+    );
     assert!(all_errors.iter().any(|e| e.contains("ambiguous")), "{all_errors:?}");
-    assert!(all_errors.iter().all(|e| e.starts_with("row ")), "error messages name the row: {all_errors:?}");
+    assert!(
+        all_errors.iter().all(|e| e.starts_with("row ")),
+        "error messages name the row: {all_errors:?}"
+    );
 
     // The values are the engine's own: screen a sample directly and compare.
     let mut screener = Screener::new(species::bundled(), TemperatureGrid::default_process());
@@ -62,6 +79,10 @@ async fn embedded_run_on_demo_data_gives_every_case_once_with_the_engines_values
     let dh = floats(&cases, "delta_h_298_kj_per_mol");
     let dg = floats(&cases, "delta_g_298_kj_per_mol");
     let eq = strings(&cases, "balanced_equation");
+    let heat = floats(&cases, "heat_kj_per_mol");
+    let t_used = floats(&cases, "process_temperature_used_k");
+    let classes = cases.column("criticality_class").expect("criticality_class column");
+    assert!(classes.null_count() < cases.height() / 2, "most demo cases give MTT and T_D24");
     let by_id: HashMap<&str, &thermosieve_queue::CaseInput> = input.iter().map(|c| (c.case_id.as_str(), c)).collect();
     let mut checked = 0;
     for i in (0..ids.len()).step_by(37) {
@@ -73,6 +94,14 @@ async fn embedded_run_on_demo_data_gives_every_case_once_with_the_engines_values
         assert_eq!(eq[i].as_deref(), Some(s.balanced_equation.as_str()));
         assert_eq!(dh[i], Some(s.standard.delta_h_kj_per_mol), "{id}");
         assert_eq!(dg[i], Some(s.standard.delta_g_kj_per_mol), "{id}");
+        // The heat column is the engine's process view at the temperature it used.
+        let t = t_used[i].expect("process temperature used");
+        let expected = -thermosieve_engine::process::point_at(&s, t).delta_h_kj_per_mol;
+        assert!(
+            (heat[i].expect("heat") - expected).abs() < 1e-9,
+            "{id}: heat {:?} vs {expected}",
+            heat[i]
+        );
         checked += 1;
     }
     assert!(checked > 40);
@@ -85,7 +114,10 @@ async fn embedded_run_on_demo_data_gives_every_case_once_with_the_engines_values
 
     let batch = std::fs::read_dir(dir.path()).unwrap().next().unwrap().unwrap().path();
     let md: HashMap<String, String> = table_metadata(&batch.join("cases.parquet")).into_iter().collect();
-    assert_eq!(md.get("thermosieve.engine_version").map(String::as_str), Some(thermosieve_engine::VERSION));
+    assert_eq!(
+        md.get("thermosieve.engine_version").map(String::as_str),
+        Some(thermosieve_engine::VERSION)
+    );
     assert_eq!(md.get("thermosieve.caution").map(String::as_str), Some(thermosieve_engine::CAUTION));
     assert!(md.get("thermosieve.data_sources").is_some_and(|s| s.contains("NASA")));
     assert!(md.get("thermosieve.temperature_grid_k").is_some_and(|s| s.starts_with("[273.15")));
@@ -120,7 +152,11 @@ impl Service {
         let results = tempfile::tempdir().unwrap();
         let listener = tokio::net::TcpListener::bind("127.0.0.1:0").await.unwrap();
         let addr = listener.local_addr().unwrap();
-        let cfg = FrontConfig { results_dir: results.path().to_path_buf(), limits: IngestLimits::default(), watch_interval: Duration::from_millis(50) };
+        let cfg = FrontConfig {
+            results_dir: results.path().to_path_buf(),
+            limits: IngestLimits::default(),
+            watch_interval: Duration::from_millis(50),
+        };
         let front = Arc::new(Front::new(redis_queue(&redis.url()).await, cfg));
         let mut stop = Vec::new();
         let mut tasks = Vec::new();
@@ -147,11 +183,19 @@ impl Service {
                 .expect("worker");
             }));
         }
-        Service { redis, addr, results, stop, tasks }
+        Service {
+            redis,
+            addr,
+            results,
+            stop,
+            tasks,
+        }
     }
 
     async fn client(&self) -> ScreeningClient<tonic::transport::Channel> {
-        ScreeningClient::connect(format!("http://{}", self.addr)).await.expect("connect to the front")
+        ScreeningClient::connect(format!("http://{}", self.addr))
+            .await
+            .expect("connect to the front")
     }
 
     async fn stop(self) {
@@ -166,19 +210,38 @@ impl Service {
     }
 }
 
-async fn submit(client: &mut ScreeningClient<tonic::transport::Channel>, cases: &[thermosieve_queue::CaseInput], chunk_size: u32) -> String {
-    let mut msgs = vec![pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Header(pb::BatchHeader { chunk_size, ..Default::default() })) }];
-    msgs.extend(cases.iter().map(|c| pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Case(convert::case_to_pb(c))) }));
+async fn submit(
+    client: &mut ScreeningClient<tonic::transport::Channel>,
+    cases: &[thermosieve_queue::CaseInput],
+    chunk_size: u32,
+) -> String {
+    let mut msgs = vec![pb::SubmitBatchRequest {
+        item: Some(pb::submit_batch_request::Item::Header(pb::BatchHeader {
+            chunk_size,
+            ..Default::default()
+        })),
+    }];
+    msgs.extend(cases.iter().map(|c| pb::SubmitBatchRequest {
+        item: Some(pb::submit_batch_request::Item::Case(convert::case_to_pb(c))),
+    }));
     let r = client.submit_batch(tokio_stream::iter(msgs)).await.expect("submit").into_inner();
     assert_eq!(r.cases_received, cases.len() as u64);
     r.batch_id
 }
 
 async fn wait_done(client: &mut ScreeningClient<tonic::transport::Channel>, id: &str) -> pb::BatchStatus {
-    let mut s = client.watch_batch(pb::WatchBatchRequest { batch_id: id.into() }).await.expect("watch").into_inner();
+    let mut s = client
+        .watch_batch(pb::WatchBatchRequest { batch_id: id.into() })
+        .await
+        .expect("watch")
+        .into_inner();
     let mut last = None;
     let deadline = tokio::time::Instant::now() + Duration::from_secs(120);
-    while let Some(m) = tokio::time::timeout_at(deadline, s.message()).await.expect("batch finishes within 120 s").expect("watch stream") {
+    while let Some(m) = tokio::time::timeout_at(deadline, s.message())
+        .await
+        .expect("batch finishes within 120 s")
+        .expect("watch stream")
+    {
         last = Some(m);
     }
     let last = last.expect("a status");
@@ -187,7 +250,14 @@ async fn wait_done(client: &mut ScreeningClient<tonic::transport::Channel>, id: 
 }
 
 async fn fetch(client: &mut ScreeningClient<tonic::transport::Channel>, id: &str, table: pb::Table) -> Vec<u8> {
-    let mut s = client.fetch_table(pb::FetchTableRequest { batch_id: id.into(), table: table as i32 }).await.expect("fetch").into_inner();
+    let mut s = client
+        .fetch_table(pb::FetchTableRequest {
+            batch_id: id.into(),
+            table: table as i32,
+        })
+        .await
+        .expect("fetch")
+        .into_inner();
     let mut bytes = Vec::new();
     while let Some(c) = s.message().await.expect("fetch stream") {
         assert_eq!(c.offset, bytes.len() as u64);
@@ -213,8 +283,15 @@ async fn redis_grpc_two_workers_give_the_same_tables_as_embedded() {
     each_case_once(&r_cases, &cases);
     for c in e_cases.columns() {
         let name = c.name().as_str();
-        let other = r_cases.column(name).unwrap_or_else(|_| panic!("column {name} missing on the Redis path"));
-        assert!(c.equals_missing(other), "column {name} differs between Redis and embedded: {:?} vs {:?}", c.head(Some(3)), other.head(Some(3)));
+        let other = r_cases
+            .column(name)
+            .unwrap_or_else(|_| panic!("column {name} missing on the Redis path"));
+        assert!(
+            c.equals_missing(other),
+            "column {name} differs between Redis and embedded: {:?} vs {:?}",
+            c.head(Some(3)),
+            other.head(Some(3))
+        );
     }
     assert!(r_cases.equals_missing(&e_cases), "cases.parquet differs between Redis and embedded");
     assert!(r_trends.equals_missing(&e_trends), "trends.parquet differs");
@@ -223,25 +300,54 @@ async fn redis_grpc_two_workers_give_the_same_tables_as_embedded() {
     assert_eq!(manifest["batch_id"], id.as_str());
 
     // Malformed requests name the field; unknown ids are NOT_FOUND; inline and species calls work.
-    let bad = client.get_batch_status(pb::GetBatchStatusRequest { batch_id: "nope".into() }).await.unwrap_err();
+    let bad = client
+        .get_batch_status(pb::GetBatchStatusRequest { batch_id: "nope".into() })
+        .await
+        .unwrap_err();
     assert_eq!(bad.code(), tonic::Code::InvalidArgument);
     assert!(bad.message().starts_with("batch_id:"), "{}", bad.message());
-    let missing = client.get_batch_status(pb::GetBatchStatusRequest { batch_id: "0".repeat(32) }).await.unwrap_err();
+    let missing = client
+        .get_batch_status(pb::GetBatchStatusRequest { batch_id: "0".repeat(32) })
+        .await
+        .unwrap_err();
     assert_eq!(missing.code(), tonic::Code::NotFound);
-    let no_header = client.submit_batch(tokio_stream::iter(vec![pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Case(pb::Case::default())) }])).await.unwrap_err();
+    let no_header = client
+        .submit_batch(tokio_stream::iter(vec![pb::SubmitBatchRequest {
+            item: Some(pb::submit_batch_request::Item::Case(pb::Case::default())),
+        }]))
+        .await
+        .unwrap_err();
     assert_eq!(no_header.code(), tonic::Code::InvalidArgument);
     assert!(no_header.message().starts_with("item.header"), "{}", no_header.message());
-    let bad_grid = pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Header(pb::BatchHeader { temperatures_k: vec![1.0], ..Default::default() })) };
+    let bad_grid = pb::SubmitBatchRequest {
+        item: Some(pb::submit_batch_request::Item::Header(pb::BatchHeader {
+            temperatures_k: vec![1.0],
+            ..Default::default()
+        })),
+    };
     let e = client.submit_batch(tokio_stream::iter(vec![bad_grid])).await.unwrap_err();
     assert!(e.message().starts_with("header.temperatures_k"), "{}", e.message());
     let inline = client
-        .screen_inline(pb::ScreenInlineRequest { cases: vec![pb::Case { case_id: "x".into(), reaction: "CaCO3(s) -> CaO(s) + CO2(g)".into(), ..Default::default() }], ..Default::default() })
+        .screen_inline(pb::ScreenInlineRequest {
+            cases: vec![pb::Case {
+                case_id: "x".into(),
+                reaction: "CaCO3(s) -> CaO(s) + CO2(g)".into(),
+                ..Default::default()
+            }],
+            ..Default::default()
+        })
         .await
         .unwrap()
         .into_inner();
     assert_eq!(inline.cases[0].status, "ok");
     assert_eq!(inline.trends.len(), 15);
-    let sp = client.resolve_species(pb::ResolveSpeciesRequest { species: vec!["H2O(l)".into(), "Xq".into()] }).await.unwrap().into_inner();
+    let sp = client
+        .resolve_species(pb::ResolveSpeciesRequest {
+            species: vec!["H2O(l)".into(), "Xq".into()],
+        })
+        .await
+        .unwrap()
+        .into_inner();
     // ΔfH°(H2O, l, 298.15 K) = −285.83 kJ/mol (CODATA key values, Cox, Wagman & Medvedev 1989).
     assert!((sp.species[0].delta_fh_298_kj_per_mol + 285.83).abs() < 0.1, "{:?}", sp.species[0]);
     assert!(!sp.species[1].error.is_empty());
@@ -256,7 +362,14 @@ async fn a_chunk_abandoned_by_a_crashed_worker_is_reclaimed_and_every_case_appea
     // avoided by submitting first and taking the chunk with a consumer of our own at once.
     let q = redis_queue(&svc.redis.url()).await;
     let cases: Vec<_> = demo_cases().into_iter().take(300).collect();
-    let spec = batch_spec(BatchOptions { chunk_size: 50, ..Default::default() }, &IngestLimits::default()).unwrap();
+    let spec = batch_spec(
+        BatchOptions {
+            chunk_size: 50,
+            ..Default::default()
+        },
+        &IngestLimits::default(),
+    )
+    .unwrap();
     let id = spec.batch_id.clone();
     // Steal chunks as they are enqueued, until we hold one.
     let thief = q.clone();
@@ -291,7 +404,14 @@ async fn a_chunk_delivered_too_often_is_dead_lettered_and_its_cases_are_error_ro
     .await;
     let q = redis_queue(&svc.redis.url()).await;
     let cases: Vec<_> = demo_cases().into_iter().take(120).collect();
-    let spec = batch_spec(BatchOptions { chunk_size: 40, ..Default::default() }, &IngestLimits::default()).unwrap();
+    let spec = batch_spec(
+        BatchOptions {
+            chunk_size: 40,
+            ..Default::default()
+        },
+        &IngestLimits::default(),
+    )
+    .unwrap();
     let id = spec.batch_id.clone();
     let thief = q.clone();
     let stolen = tokio::spawn(async move {
@@ -307,7 +427,9 @@ async fn a_chunk_delivered_too_often_is_dead_lettered_and_its_cases_are_error_ro
     }
     ing.finish().await.unwrap();
     let held = stolen.await.unwrap();
-    let thermosieve_queue::Task::Chunk(held_chunk) = &held.task else { panic!("expected a chunk") };
+    let thermosieve_queue::Task::Chunk(held_chunk) = &held.task else {
+        panic!("expected a chunk")
+    };
     let held_ids: Vec<String> = held_chunk.cases.iter().map(|c| c.case_id.clone()).collect();
     let mut client = svc.client().await;
     let st = wait_done(&mut client, &id).await;
@@ -323,7 +445,11 @@ async fn a_chunk_delivered_too_often_is_dead_lettered_and_its_cases_are_error_ro
             assert!(msg[i].as_deref().unwrap().contains("dead-lettered"), "{:?}", msg[i]);
         }
     }
-    let mut c = redis::Client::open(svc.redis.url()).unwrap().get_multiplexed_async_connection().await.unwrap();
+    let mut c = redis::Client::open(svc.redis.url())
+        .unwrap()
+        .get_multiplexed_async_connection()
+        .await
+        .unwrap();
     let n: u64 = redis::cmd("XLEN").arg("thermosieve:dead").query_async(&mut c).await.unwrap();
     assert_eq!(n, 1);
     assert_eq!(q.progress(&id).await.unwrap().unwrap().state, BatchState::Done);

@@ -45,7 +45,12 @@ pub struct RunArgs {
 #[derive(clap::Args, Debug)]
 pub struct RedisArgs {
     /// Redis URL (a password belongs in this variable, never on a command line).
-    #[arg(long, default_value = "redis://127.0.0.1:6379/", env = "THERMOSIEVE_REDIS_URL", hide_env_values = true)]
+    #[arg(
+        long,
+        default_value = "redis://127.0.0.1:6379/",
+        env = "THERMOSIEVE_REDIS_URL",
+        hide_env_values = true
+    )]
     pub redis_url: String,
     /// Key prefix in Redis.
     #[arg(long, default_value = "thermosieve", env = "THERMOSIEVE_REDIS_PREFIX")]
@@ -175,7 +180,9 @@ impl std::error::Error for BatchEnded {}
 
 pub fn main(cmd: Cmd) -> ExitCode {
     tracing_subscriber::fmt()
-        .with_env_filter(tracing_subscriber::EnvFilter::try_from_env("THERMOSIEVE_LOG").unwrap_or_else(|_| tracing_subscriber::EnvFilter::new("info")))
+        .with_env_filter(
+            tracing_subscriber::EnvFilter::try_from_env("THERMOSIEVE_LOG").unwrap_or_else(|_| tracing_subscriber::EnvFilter::new("info")),
+        )
         .with_writer(std::io::stderr)
         .init();
     let rt = match tokio::runtime::Builder::new_multi_thread().enable_all().build() {
@@ -213,7 +220,9 @@ pub fn main(cmd: Cmd) -> ExitCode {
 fn format_arg(f: &Option<String>) -> anyhow::Result<Option<Format>> {
     match f {
         None => Ok(None),
-        Some(s) => Format::parse(s).map(Some).ok_or_else(|| Usage(format!("--format {s:?}: expected csv, tsv, jsonl or parquet")).into()),
+        Some(s) => Format::parse(s)
+            .map(Some)
+            .ok_or_else(|| Usage(format!("--format {s:?}: expected csv, tsv, jsonl or parquet")).into()),
     }
 }
 
@@ -244,23 +253,46 @@ async fn shutdown_signal() {
 }
 
 fn threads(t: Option<usize>) -> usize {
-    t.unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get())).max(1)
+    t.unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()))
+        .max(1)
 }
 
 async fn run(a: RunArgs) -> anyhow::Result<()> {
     let cases = open_input(&a.input, &a.format)?;
-    let options = BatchOptions { temperatures_k: a.temperatures_k.unwrap_or_default(), chunk_size: a.chunk_size, label: a.label, ..BatchOptions::default() };
+    let options = BatchOptions {
+        temperatures_k: a.temperatures_k.unwrap_or_default(),
+        chunk_size: a.chunk_size,
+        label: a.label,
+        ..BatchOptions::default()
+    };
     std::fs::create_dir_all(&a.out).with_context(|| format!("creating {}", a.out.display()))?;
     let t0 = std::time::Instant::now();
-    let outcome = thermosieve_front::embedded::run_cases(cases, options, &a.out, threads(a.threads)).await.map_err(|e| match e {
-        thermosieve_front::FrontError::InvalidArgument { field, reason } => anyhow::Error::new(Usage(format!("{}: {reason}", field.replace("header.", "--").replace('_', "-")))),
-        other => anyhow::Error::new(other),
-    })?;
+    let outcome = thermosieve_front::embedded::run_cases(cases, options, &a.out, threads(a.threads))
+        .await
+        .map_err(|e| match e {
+            thermosieve_front::FrontError::InvalidArgument { field, reason } => {
+                anyhow::Error::new(Usage(format!("{}: {reason}", field.replace("header.", "--").replace('_', "-"))))
+            }
+            other => anyhow::Error::new(other),
+        })?;
     let s = &outcome.submitted;
     let p = &outcome.progress;
     let secs = t0.elapsed().as_secs_f64();
-    println!("batch {}: {} cases ({} ok, {} error) in {:.2} s ({:.0} cases/s)", s.batch_id, p.cases_done, p.cases_done - p.cases_error, p.cases_error, secs, p.cases_done as f64 / secs.max(1e-9));
-    for f in [thermosieve_worker::CASES_FILE, thermosieve_worker::TRENDS_FILE, thermosieve_worker::ROUTES_FILE, thermosieve_worker::MANIFEST_FILE] {
+    println!(
+        "batch {}: {} cases ({} ok, {} error) in {:.2} s ({:.0} cases/s)",
+        s.batch_id,
+        p.cases_done,
+        p.cases_done - p.cases_error,
+        p.cases_error,
+        secs,
+        p.cases_done as f64 / secs.max(1e-9)
+    );
+    for f in [
+        thermosieve_worker::CASES_FILE,
+        thermosieve_worker::TRENDS_FILE,
+        thermosieve_worker::ROUTES_FILE,
+        thermosieve_worker::MANIFEST_FILE,
+    ] {
         println!("  {}", outcome.batch_dir.join(f).display());
     }
     println!("caution: {}", thermosieve_engine::CAUTION);
@@ -272,7 +304,9 @@ async fn redis_queue(r: &RedisArgs) -> anyhow::Result<Arc<dyn Queue>> {
     cfg.prefix = r.redis_prefix.clone();
     cfg.retention = Duration::from_secs(r.retention_hours * 3600);
     // The URL may hold a password: never print it.
-    let q = RedisQueue::connect(cfg).await.context("connecting to redis (THERMOSIEVE_REDIS_URL)")?;
+    let q = RedisQueue::connect(cfg)
+        .await
+        .context("connecting to redis (THERMOSIEVE_REDIS_URL)")?;
     Ok(Arc::new(q))
 }
 
@@ -281,10 +315,16 @@ async fn serve(a: ServeArgs) -> anyhow::Result<()> {
     std::fs::create_dir_all(&a.results_dir).with_context(|| format!("creating {}", a.results_dir.display()))?;
     let cfg = FrontConfig {
         results_dir: a.results_dir,
-        limits: IngestLimits { default_chunk_size: a.chunk_size, max_queue_depth: a.max_queue_depth, enqueue_wait: Duration::from_secs(a.enqueue_wait_s) },
+        limits: IngestLimits {
+            default_chunk_size: a.chunk_size,
+            max_queue_depth: a.max_queue_depth,
+            enqueue_wait: Duration::from_secs(a.enqueue_wait_s),
+        },
         watch_interval: Duration::from_millis(250),
     };
-    let listener = tokio::net::TcpListener::bind(a.listen).await.with_context(|| format!("binding {}", a.listen))?;
+    let listener = tokio::net::TcpListener::bind(a.listen)
+        .await
+        .with_context(|| format!("binding {}", a.listen))?;
     println!("listening on {}", listener.local_addr()?);
     thermosieve_front::serve(listener, Arc::new(Front::new(queue, cfg)), shutdown_signal()).await?;
     Ok(())
@@ -297,7 +337,9 @@ async fn work(a: WorkArgs) -> anyhow::Result<()> {
     if let Some(c) = a.consumer {
         cfg.consumer = c;
     } else {
-        let host = std::fs::read_to_string("/etc/hostname").map(|h| h.trim().to_string()).unwrap_or_else(|_| "worker".into());
+        let host = std::fs::read_to_string("/etc/hostname")
+            .map(|h| h.trim().to_string())
+            .unwrap_or_else(|_| "worker".into());
         cfg.consumer = format!("{host}-{}", std::process::id());
     }
     cfg.reclaim_idle = Duration::from_secs(a.reclaim_idle_s.max(1));
@@ -305,12 +347,17 @@ async fn work(a: WorkArgs) -> anyhow::Result<()> {
     cfg.keep_parts = a.keep_parts;
     tracing::info!(consumer = %cfg.consumer, threads = cfg.threads, "worker starting");
     let stats = thermosieve_worker::run(queue, cfg, shutdown_signal()).await?;
-    println!("worker stopped: {} chunks, {} cases, {} dead-lettered, {} batches finalized", stats.chunks, stats.cases, stats.dead_lettered, stats.finalized);
+    println!(
+        "worker stopped: {} chunks, {} cases, {} dead-lettered, {} batches finalized",
+        stats.chunks, stats.cases, stats.dead_lettered, stats.finalized
+    );
     Ok(())
 }
 
 async fn client(front: &str) -> anyhow::Result<ScreeningClient<tonic::transport::Channel>> {
-    let c = ScreeningClient::connect(front.to_string()).await.with_context(|| format!("connecting to the front at {front} (THERMOSIEVE_FRONT)"))?;
+    let c = ScreeningClient::connect(front.to_string())
+        .await
+        .with_context(|| format!("connecting to the front at {front} (THERMOSIEVE_FRONT)"))?;
     Ok(c.max_decoding_message_size(64 << 20))
 }
 
@@ -324,22 +371,44 @@ fn status_error(what: &str, s: tonic::Status) -> anyhow::Error {
 async fn submit(a: SubmitArgs) -> anyhow::Result<()> {
     let cases = open_input(&a.input, &a.format)?;
     let mut c = client(&a.front).await?;
-    let header = pb::BatchHeader { temperatures_k: a.temperatures_k.unwrap_or_default(), default_conditions: None, chunk_size: a.chunk_size, label: a.label };
+    let header = pb::BatchHeader {
+        temperatures_k: a.temperatures_k.unwrap_or_default(),
+        default_conditions: None,
+        chunk_size: a.chunk_size,
+        label: a.label,
+    };
     let (tx, rx) = tokio::sync::mpsc::channel::<pb::SubmitBatchRequest>(256);
     // Reading the file is blocking I/O: a thread of its own feeds the stream.
     let reader = tokio::task::spawn_blocking(move || {
-        if tx.blocking_send(pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Header(header)) }).is_err() {
+        if tx
+            .blocking_send(pb::SubmitBatchRequest {
+                item: Some(pb::submit_batch_request::Item::Header(header)),
+            })
+            .is_err()
+        {
             return;
         }
         for case in cases {
-            if tx.blocking_send(pb::SubmitBatchRequest { item: Some(pb::submit_batch_request::Item::Case(convert::case_to_pb(&case))) }).is_err() {
+            if tx
+                .blocking_send(pb::SubmitBatchRequest {
+                    item: Some(pb::submit_batch_request::Item::Case(convert::case_to_pb(&case))),
+                })
+                .is_err()
+            {
                 return;
             }
         }
     });
-    let r = c.submit_batch(tokio_stream::wrappers::ReceiverStream::new(rx)).await.map_err(|s| status_error("submit", s))?.into_inner();
+    let r = c
+        .submit_batch(tokio_stream::wrappers::ReceiverStream::new(rx))
+        .await
+        .map_err(|s| status_error("submit", s))?
+        .into_inner();
     let _ = reader.await;
-    eprintln!("submitted {} cases ({} input errors) in {} chunks", r.cases_received, r.input_errors, r.chunks);
+    eprintln!(
+        "submitted {} cases ({} input errors) in {} chunks",
+        r.cases_received, r.input_errors, r.chunks
+    );
     println!("{}", r.batch_id);
     Ok(())
 }
@@ -358,7 +427,13 @@ fn state_name(s: i32) -> &'static str {
 
 async fn watch(a: WatchArgs) -> anyhow::Result<()> {
     let mut c = client(&a.front).await?;
-    let mut stream = c.watch_batch(pb::WatchBatchRequest { batch_id: a.batch_id.clone() }).await.map_err(|s| status_error("watch", s))?.into_inner();
+    let mut stream = c
+        .watch_batch(pb::WatchBatchRequest {
+            batch_id: a.batch_id.clone(),
+        })
+        .await
+        .map_err(|s| status_error("watch", s))?
+        .into_inner();
     let bar = ProgressBar::new(0);
     bar.set_style(
         ProgressStyle::with_template("{spinner} {msg:>10} [{bar:40}] {pos}/{len} cases  {per_sec}  eta {eta}")
@@ -373,8 +448,23 @@ async fn watch(a: WatchArgs) -> anyhow::Result<()> {
         last = Some(s);
     }
     bar.finish();
-    let Some(s) = last else { bail!("the front ended the watch without a status") };
-    println!("batch {}: {} — {} cases, {} errors, {} chunks dead-lettered, {:.1} s{}", s.batch_id, state_name(s.state), s.cases_done, s.cases_error, s.chunks_dead_lettered, s.elapsed_seconds, if s.message.is_empty() { String::new() } else { format!(" ({})", s.message) });
+    let Some(s) = last else {
+        bail!("the front ended the watch without a status")
+    };
+    println!(
+        "batch {}: {} — {} cases, {} errors, {} chunks dead-lettered, {:.1} s{}",
+        s.batch_id,
+        state_name(s.state),
+        s.cases_done,
+        s.cases_error,
+        s.chunks_dead_lettered,
+        s.elapsed_seconds,
+        if s.message.is_empty() {
+            String::new()
+        } else {
+            format!(" ({})", s.message)
+        }
+    );
     if s.state != pb::BatchState::Done as i32 {
         return Err(BatchEnded(format!("batch {} ended {}", s.batch_id, state_name(s.state))).into());
     }
@@ -385,7 +475,14 @@ async fn fetch(a: FetchArgs) -> anyhow::Result<()> {
     let mut c = client(&a.front).await?;
     std::fs::create_dir_all(&a.out).with_context(|| format!("creating {}", a.out.display()))?;
     for table in [pb::Table::Cases, pb::Table::Trends, pb::Table::Routes, pb::Table::Manifest] {
-        let mut stream = c.fetch_table(pb::FetchTableRequest { batch_id: a.batch_id.clone(), table: table as i32 }).await.map_err(|s| status_error("fetch", s))?.into_inner();
+        let mut stream = c
+            .fetch_table(pb::FetchTableRequest {
+                batch_id: a.batch_id.clone(),
+                table: table as i32,
+            })
+            .await
+            .map_err(|s| status_error("fetch", s))?
+            .into_inner();
         // Streamed to a temp file, renamed when complete: memory stays at one message.
         let tmp = a.out.join(format!(".fetch-{}-{}.part", table as i32, std::process::id()));
         let mut file = std::io::BufWriter::new(std::fs::File::create(&tmp).with_context(|| format!("writing {}", tmp.display()))?);

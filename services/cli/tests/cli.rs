@@ -11,9 +11,21 @@ fn bin() -> Command {
 fn run_writes_the_tables_and_prints_where_they_are() {
     let dir = tempfile::tempdir().unwrap();
     let input = dir.path().join("cases.tsv");
-    std::fs::write(&input, "case_id\treaction\troute_id\tstep\nq1\tNaOH(s) + HCl(g) -> NaCl(s) + H2O(l)\tR\t1\nq2\tXq + O2 -> XqO\tR\t2\n").unwrap();
+    std::fs::write(
+        &input,
+        "case_id\treaction\troute_id\tstep\nq1\tNaOH(s) + HCl(g) -> NaCl(s) + H2O(l)\tR\t1\nq2\tXq + O2 -> XqO\tR\t2\n",
+    )
+    .unwrap();
     let out = dir.path().join("results");
-    let o = bin().args(["run"]).arg(&input).arg("--out").arg(&out).args(["--temperatures-k", "300,400"]).env("THERMOSIEVE_LOG", "warn").output().unwrap();
+    let o = bin()
+        .args(["run"])
+        .arg(&input)
+        .arg("--out")
+        .arg(&out)
+        .args(["--temperatures-k", "300,400"])
+        .env("THERMOSIEVE_LOG", "warn")
+        .output()
+        .unwrap();
     assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
     let text = String::from_utf8_lossy(&o.stdout);
     assert!(text.contains("2 cases (1 ok, 1 error)"), "{text}");
@@ -34,7 +46,18 @@ fn bad_usage_exits_2_with_a_message() {
     assert!(String::from_utf8_lossy(&o.stderr).contains("no column \"case_id\""));
     let good = dir.path().join("good.csv");
     std::fs::write(&good, "case_id,reaction\n1,CO + O2 -> CO2\n").unwrap();
-    let o = bin().arg("run").arg(&good).arg("--out").arg(dir.path()).args(["--temperatures-k", "1"]).output().unwrap();
+    let o = bin()
+        .arg("run")
+        .arg(&good)
+        .arg("--out")
+        .arg(dir.path())
+        .args(["--temperatures-k", "1"])
+        .output()
+        .unwrap();
     assert_eq!(o.status.code(), Some(2), "{}", String::from_utf8_lossy(&o.stderr));
-    assert!(String::from_utf8_lossy(&o.stderr).contains("temperatures-k"), "{}", String::from_utf8_lossy(&o.stderr));
+    assert!(
+        String::from_utf8_lossy(&o.stderr).contains("temperatures-k"),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
 }

@@ -71,7 +71,13 @@ pub fn case_from_pb(c: pb::Case) -> CaseInput {
         step: c.step,
         phase,
         conditions,
-        input_error: input_error.map(|e| if e.starts_with("row ") || c.row_number == 0 { e } else { format!("row {}, {e}", c.row_number) }),
+        input_error: input_error.map(|e| {
+            if e.starts_with("row ") || c.row_number == 0 {
+                e
+            } else {
+                format!("row {}, {e}", c.row_number)
+            }
+        }),
         row: c.row_number,
     }
 }
@@ -137,7 +143,12 @@ pub fn state_to_pb(s: BatchState) -> pb::BatchState {
 pub fn status_to_pb(batch_id: &str, p: &Progress) -> pb::BatchStatus {
     let end = p.finished_unix_ms.unwrap_or_else(thermosieve_queue::now_unix_ms);
     let tables = if p.state == BatchState::Done {
-        vec![pb::Table::Cases as i32, pb::Table::Trends as i32, pb::Table::Routes as i32, pb::Table::Manifest as i32]
+        vec![
+            pb::Table::Cases as i32,
+            pb::Table::Trends as i32,
+            pb::Table::Routes as i32,
+            pb::Table::Manifest as i32,
+        ]
     } else {
         Vec::new()
     };

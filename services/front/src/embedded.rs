@@ -24,11 +24,20 @@ pub struct RunOutcome {
 ///
 /// # Errors
 /// Invalid options, or a worker that cannot start.
-pub async fn run_cases(cases: impl Iterator<Item = CaseInput> + Send, options: BatchOptions, out_dir: &Path, threads: usize) -> Result<RunOutcome, FrontError> {
+pub async fn run_cases(
+    cases: impl Iterator<Item = CaseInput> + Send,
+    options: BatchOptions,
+    out_dir: &Path,
+    threads: usize,
+) -> Result<RunOutcome, FrontError> {
     let queue: Arc<dyn Queue> = Arc::new(MemoryQueue::new());
     // Embedded mode has no other submitters: the queue may hold any depth, but stays bounded by
     // the workers' pace through the same backpressure as the service.
-    let limits = IngestLimits { max_queue_depth: (threads as u64) * 8, enqueue_wait: Duration::from_secs(24 * 3600), ..IngestLimits::default() };
+    let limits = IngestLimits {
+        max_queue_depth: (threads as u64) * 8,
+        enqueue_wait: Duration::from_secs(24 * 3600),
+        ..IngestLimits::default()
+    };
     let spec = batch_spec(options, &limits)?;
     let batch_id = spec.batch_id.clone();
     let mut cfg = WorkerConfig::new(out_dir);
@@ -52,9 +61,21 @@ pub async fn run_cases(cases: impl Iterator<Item = CaseInput> + Send, options: B
         }
     };
     let _ = stop_tx.send(());
-    let worker = worker.await.map_err(|e| FrontError::Internal(format!("worker task: {e}")))?.map_err(|e| FrontError::Internal(e.to_string()))?;
+    let worker = worker
+        .await
+        .map_err(|e| FrontError::Internal(format!("worker task: {e}")))?
+        .map_err(|e| FrontError::Internal(e.to_string()))?;
     if progress.state != BatchState::Done {
-        return Err(FrontError::Internal(format!("batch ended {}: {}", progress.state.as_str(), progress.message)));
+        return Err(FrontError::Internal(format!(
+            "batch ended {}: {}",
+            progress.state.as_str(),
+            progress.message
+        )));
     }
-    Ok(RunOutcome { batch_dir: out_dir.join(&batch_id), submitted, progress, worker })
+    Ok(RunOutcome {
+        batch_dir: out_dir.join(&batch_id),
+        submitted,
+        progress,
+        worker,
+    })
 }

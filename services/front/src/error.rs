@@ -24,7 +24,10 @@ pub enum FrontError {
 
 impl FrontError {
     pub fn invalid(field: &str, reason: impl Into<String>) -> FrontError {
-        FrontError::InvalidArgument { field: field.to_string(), reason: reason.into() }
+        FrontError::InvalidArgument {
+            field: field.to_string(),
+            reason: reason.into(),
+        }
     }
 }
 

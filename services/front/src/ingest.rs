@@ -38,7 +38,11 @@ pub struct IngestLimits {
 
 impl Default for IngestLimits {
     fn default() -> Self {
-        IngestLimits { default_chunk_size: 2000, max_queue_depth: 10_000, enqueue_wait: Duration::from_secs(30) }
+        IngestLimits {
+            default_chunk_size: 2000,
+            max_queue_depth: 10_000,
+            enqueue_wait: Duration::from_secs(30),
+        }
     }
 }
 
@@ -89,13 +93,21 @@ pub fn batch_spec(options: BatchOptions, limits: &IngestLimits) -> Result<BatchS
     };
     let chunk_size = match options.chunk_size {
         0 => limits.default_chunk_size,
-        n if n > MAX_CHUNK_SIZE => return Err(FrontError::invalid("header.chunk_size", format!("{n} is more than the limit of {MAX_CHUNK_SIZE}"))),
+        n if n > MAX_CHUNK_SIZE => {
+            return Err(FrontError::invalid(
+                "header.chunk_size",
+                format!("{n} is more than the limit of {MAX_CHUNK_SIZE}"),
+            ))
+        }
         n => n,
     };
     for (name, v) in thermosieve_queue::CONDITION_FIELDS.iter().zip(options.default_conditions.values()) {
         if let Some(v) = v {
             if !v.is_finite() || v < 0.0 {
-                return Err(FrontError::invalid(&format!("header.default_conditions.{name}"), format!("expected a finite number ≥ 0, got {v}")));
+                return Err(FrontError::invalid(
+                    &format!("header.default_conditions.{name}"),
+                    format!("expected a finite number ≥ 0, got {v}"),
+                ));
             }
         }
     }
@@ -140,11 +152,25 @@ impl Ingest {
     pub async fn start(queue: Arc<dyn Queue>, spec: BatchSpec, limits: IngestLimits) -> Result<Ingest, FrontError> {
         let depth = queue.depth().await?;
         if depth > limits.max_queue_depth {
-            return Err(FrontError::QueueFull { depth, limit: limits.max_queue_depth });
+            return Err(FrontError::QueueFull {
+                depth,
+                limit: limits.max_queue_depth,
+            });
         }
         queue.create_batch(&spec).await?;
         tracing::info!(batch_id = %spec.batch_id, chunk_size = spec.chunk_size, grid_points = spec.temperatures_k.len(), "batch created");
-        Ok(Ingest { queue, limits, spec, chunk: Vec::new(), seq: 0, route: None, route_steps: 0, closed_routes: HashSet::new(), cases: 0, input_errors: 0 })
+        Ok(Ingest {
+            queue,
+            limits,
+            spec,
+            chunk: Vec::new(),
+            seq: 0,
+            route: None,
+            route_steps: 0,
+            closed_routes: HashSet::new(),
+            cases: 0,
+            input_errors: 0,
+        })
     }
 
     pub fn batch_id(&self) -> &str {
@@ -169,7 +195,10 @@ impl Ingest {
         if same_route {
             self.route_steps += 1;
             if self.route_steps > MAX_ROUTE_STEPS && case.input_error.is_none() {
-                case.input_error = Some(format!("row {}, column route_id: route has more than {MAX_ROUTE_STEPS} steps; the rest are not screened", case.row));
+                case.input_error = Some(format!(
+                    "row {}, column route_id: route has more than {MAX_ROUTE_STEPS} steps; the rest are not screened",
+                    case.row
+                ));
             }
         } else {
             if let Some(r) = self.route.take() {
@@ -201,7 +230,11 @@ impl Ingest {
             return Ok(());
         }
         self.wait_for_room().await?;
-        let chunk = Chunk { batch_id: self.spec.batch_id.clone(), seq: self.seq, cases: std::mem::take(&mut self.chunk) };
+        let chunk = Chunk {
+            batch_id: self.spec.batch_id.clone(),
+            seq: self.seq,
+            cases: std::mem::take(&mut self.chunk),
+        };
         self.queue.enqueue(&chunk).await?;
         self.seq += 1;
         Ok(())
@@ -215,7 +248,10 @@ impl Ingest {
                 return Ok(());
             }
             if Instant::now() >= deadline {
-                return Err(FrontError::QueueFull { depth, limit: self.limits.max_queue_depth });
+                return Err(FrontError::QueueFull {
+                    depth,
+                    limit: self.limits.max_queue_depth,
+                });
             }
             tokio::time::sleep(Duration::from_millis(100)).await;
         }
@@ -229,7 +265,12 @@ impl Ingest {
         self.flush().await?;
         self.queue.seal(&self.spec.batch_id).await?;
         tracing::info!(batch_id = %self.spec.batch_id, cases = self.cases, chunks = self.seq, input_errors = self.input_errors, "batch sealed");
-        Ok(Submitted { batch_id: self.spec.batch_id.clone(), cases: self.cases, input_errors: self.input_errors, chunks: self.seq })
+        Ok(Submitted {
+            batch_id: self.spec.batch_id.clone(),
+            cases: self.cases,
+            input_errors: self.input_errors,
+            chunks: self.seq,
+        })
     }
 
     /// The submission broke off: fail the batch so nobody waits for it.
@@ -252,7 +293,9 @@ fn validate_case(case: &mut CaseInput) {
         Some("column case_id: missing (every case needs an id; this row is reported as row-N)".to_string())
     } else if case.case_id.len() > MAX_CASE_ID_BYTES {
         case.case_id = format!("row-{row}");
-        Some(format!("column case_id: longer than {MAX_CASE_ID_BYTES} bytes (this row is reported as row-N)"))
+        Some(format!(
+            "column case_id: longer than {MAX_CASE_ID_BYTES} bytes (this row is reported as row-N)"
+        ))
     } else if case.reaction.trim().is_empty() {
         Some("column reaction: missing (expected a reaction equation such as \"CO(g) + H2O(g) -> CO2(g) + H2(g)\")".to_string())
     } else if case.reaction.len() > MAX_REACTION_BYTES {
@@ -271,13 +314,25 @@ mod tests {
     use thermosieve_queue::{MemoryQueue, Task};
 
     fn case(id: &str, route: Option<&str>) -> CaseInput {
-        CaseInput { case_id: id.into(), reaction: "CO + O2 -> CO2".into(), route_id: route.map(String::from), ..Default::default() }
+        CaseInput {
+            case_id: id.into(),
+            reaction: "CO + O2 -> CO2".into(),
+            route_id: route.map(String::from),
+            ..Default::default()
+        }
     }
 
     #[tokio::test]
     async fn routes_stay_in_one_chunk_and_a_returning_route_is_an_error_row() {
         let q = Arc::new(MemoryQueue::new());
-        let spec = batch_spec(BatchOptions { chunk_size: 2, ..Default::default() }, &IngestLimits::default()).unwrap();
+        let spec = batch_spec(
+            BatchOptions {
+                chunk_size: 2,
+                ..Default::default()
+            },
+            &IngestLimits::default(),
+        )
+        .unwrap();
         let mut ing = Ingest::start(q.clone(), spec, IngestLimits::default()).await.unwrap();
         for (id, r) in [("a1", "A"), ("a2", "A"), ("a3", "A"), ("b1", "B"), ("x", ""), ("a4", "A")] {
             ing.push(case(id, (!r.is_empty()).then_some(r))).await.unwrap();
@@ -301,7 +356,14 @@ mod tests {
 
     #[test]
     fn a_bad_grid_names_the_field() {
-        let e = batch_spec(BatchOptions { temperatures_k: vec![5.0], ..Default::default() }, &IngestLimits::default()).unwrap_err();
+        let e = batch_spec(
+            BatchOptions {
+                temperatures_k: vec![5.0],
+                ..Default::default()
+            },
+            &IngestLimits::default(),
+        )
+        .unwrap_err();
         assert!(e.to_string().starts_with("header.temperatures_k: "), "{e}");
     }
 }

@@ -99,7 +99,11 @@ fn condition_range(field: &str) -> (f64, f64, &'static str) {
         "pressure_bar" | "scale_mol" | "reaction_mass_kg" | "cp_kj_per_kg_k" => (f64::MIN_POSITIVE, f64::MAX, "a positive number"),
         "dosing_time_h" | "ua_w_per_k" => (0.0, f64::MAX, "a number ≥ 0"),
         // Temperatures, K.
-        _ => (f64::MIN_POSITIVE, 20_000.0, "a temperature above 0 K (−273.15 °C) and below 20000 K"),
+        _ => (
+            f64::MIN_POSITIVE,
+            20_000.0,
+            "a temperature above 0 K (−273.15 °C) and below 20000 K",
+        ),
     }
 }
 
@@ -110,7 +114,10 @@ pub const PHASES: [&str; 4] = ["gas", "liquid", "solid", "standard"];
 /// the row's column names (for the extra conditions).
 pub fn case_from_cells<'a>(row: u64, columns: impl Iterator<Item = &'a str>, get: impl Fn(&str) -> Option<String>) -> CaseInput {
     let mut errors: Vec<String> = Vec::new();
-    let mut case = CaseInput { row, ..CaseInput::default() };
+    let mut case = CaseInput {
+        row,
+        ..CaseInput::default()
+    };
     match get("case_id") {
         Some(id) => case.case_id = id,
         None => {
@@ -162,7 +169,8 @@ pub fn case_from_cells<'a>(row: u64, columns: impl Iterator<Item = &'a str>, get
             *slot = Some(v);
         }
     }
-    let known = |c: &str| matches!(c, "case_id" | "reaction" | "route_id" | "step" | "phase") || CONDITION_COLUMNS.iter().any(|(n, _, _)| *n == c);
+    let known =
+        |c: &str| matches!(c, "case_id" | "reaction" | "route_id" | "step" | "phase") || CONDITION_COLUMNS.iter().any(|(n, _, _)| *n == c);
     for c in columns {
         if !known(c) {
             if let Some(v) = get(c) {
@@ -191,8 +199,13 @@ pub type Cases = Box<dyn Iterator<Item = CaseInput> + Send>;
 /// `InputError` when the file cannot be opened, its format is unknown, or it lacks a required
 /// column.
 pub fn open(path: &Path, format: Option<Format>) -> Result<Cases, InputError> {
-    let format = format.or_else(|| Format::from_path(path)).ok_or_else(|| InputError::UnknownFormat { path: path.to_path_buf() })?;
-    let file = File::open(path).map_err(|source| InputError::Open { path: path.to_path_buf(), source })?;
+    let format = format
+        .or_else(|| Format::from_path(path))
+        .ok_or_else(|| InputError::UnknownFormat { path: path.to_path_buf() })?;
+    let file = File::open(path).map_err(|source| InputError::Open {
+        path: path.to_path_buf(),
+        source,
+    })?;
     match format {
         Format::Csv | Format::Tsv => delimited(path, file, if format == Format::Csv { b',' } else { b'\t' }),
         Format::JsonLines => Ok(json_lines(BufReader::new(file))),
@@ -203,17 +216,26 @@ pub fn open(path: &Path, format: Option<Format>) -> Result<Cases, InputError> {
 fn require(path: &Path, headers: &[String]) -> Result<(), InputError> {
     for column in ["case_id", "reaction"] {
         if !headers.iter().any(|h| h == column) {
-            return Err(InputError::MissingColumn { path: path.to_path_buf(), column });
+            return Err(InputError::MissingColumn {
+                path: path.to_path_buf(),
+                column,
+            });
         }
     }
     Ok(())
 }
 
 fn delimited(path: &Path, file: File, delimiter: u8) -> Result<Cases, InputError> {
-    let mut reader = csv::ReaderBuilder::new().delimiter(delimiter).flexible(true).from_reader(BufReader::new(file));
+    let mut reader = csv::ReaderBuilder::new()
+        .delimiter(delimiter)
+        .flexible(true)
+        .from_reader(BufReader::new(file));
     let headers: Vec<String> = reader
         .headers()
-        .map_err(|e| InputError::Unreadable { path: path.to_path_buf(), reason: e.to_string() })?
+        .map_err(|e| InputError::Unreadable {
+            path: path.to_path_buf(),
+            reason: e.to_string(),
+        })?
         .iter()
         .map(|h| h.trim().trim_start_matches('\u{feff}').to_string())
         .collect();
@@ -230,7 +252,12 @@ fn delimited(path: &Path, file: File, delimiter: u8) -> Result<Cases, InputError
                 }
                 case
             }
-            Err(e) => CaseInput { case_id: format!("row-{row}"), row, input_error: Some(format!("row {row}: cannot be read: {e}")), ..CaseInput::default() },
+            Err(e) => CaseInput {
+                case_id: format!("row-{row}"),
+                row,
+                input_error: Some(format!("row {row}: cannot be read: {e}")),
+                ..CaseInput::default()
+            },
         }
     })))
 }
@@ -251,20 +278,33 @@ fn json_lines(reader: impl BufRead + Send + 'static) -> Cases {
             Ok(l) => l,
             Err(e) => {
                 row += 1;
-                return Some(CaseInput { case_id: format!("row-{row}"), row, input_error: Some(format!("row {row}: cannot be read: {e}")), ..CaseInput::default() });
+                return Some(CaseInput {
+                    case_id: format!("row-{row}"),
+                    row,
+                    input_error: Some(format!("row {row}: cannot be read: {e}")),
+                    ..CaseInput::default()
+                });
             }
         };
         row += 1;
         Some(match serde_json::from_str::<serde_json::Map<String, serde_json::Value>>(&line) {
             Ok(obj) => case_from_cells(row, obj.keys().map(String::as_str), |k| obj.get(k).and_then(json_text)),
-            Err(e) => CaseInput { case_id: format!("row-{row}"), row, input_error: Some(format!("row {row}: expected a JSON object on one line: {e}")), ..CaseInput::default() },
+            Err(e) => CaseInput {
+                case_id: format!("row-{row}"),
+                row,
+                input_error: Some(format!("row {row}: expected a JSON object on one line: {e}")),
+                ..CaseInput::default()
+            },
         })
     }))
 }
 
 fn parquet(path: &Path, file: File) -> Result<Cases, InputError> {
     use polars::prelude::*;
-    let unreadable = |e: PolarsError| InputError::Unreadable { path: path.to_path_buf(), reason: e.to_string() };
+    let unreadable = |e: PolarsError| InputError::Unreadable {
+        path: path.to_path_buf(),
+        reason: e.to_string(),
+    };
     let df = ParquetReader::new(file).finish().map_err(unreadable)?;
     let headers: Vec<String> = df.get_column_names().iter().map(|s| s.to_string()).collect();
     require(path, &headers)?;
@@ -295,9 +335,14 @@ mod tests {
 
     #[test]
     fn bad_cells_become_error_rows_that_name_row_and_column() {
-        let c = cases("case_id,reaction,scale_mol,process_temperature_c,step,solvent\nA,H2 + O2 -> H2O(l),abc,25,1,toluene\n,CO + O2 -> CO2,,,x,\n");
+        let c = cases(
+            "case_id,reaction,scale_mol,process_temperature_c,step,solvent\nA,H2 + O2 -> H2O(l),abc,25,1,toluene\n,CO + O2 -> CO2,,,x,\n",
+        );
         assert_eq!(c.len(), 2);
-        assert_eq!(c[0].input_error.as_deref(), Some("row 1, column scale_mol: expected a number, got \"abc\""));
+        assert_eq!(
+            c[0].input_error.as_deref(),
+            Some("row 1, column scale_mol: expected a number, got \"abc\"")
+        );
         assert_eq!(c[0].conditions.process_temperature_k, Some(298.15));
         assert_eq!(c[0].conditions.extra.get("solvent").map(String::as_str), Some("toluene"));
         let e = c[1].input_error.as_deref().unwrap();
@@ -309,7 +354,11 @@ mod tests {
     #[test]
     fn kelvin_and_celsius_for_one_field_is_an_error() {
         let c = cases("case_id,reaction,mtt_k,mtt_c\nA,CO + O2 -> CO2,400,120\n");
-        assert!(c[0].input_error.as_deref().unwrap().contains("columns mtt_k and mtt_c both give mtt_k"));
+        assert!(c[0]
+            .input_error
+            .as_deref()
+            .unwrap()
+            .contains("columns mtt_k and mtt_c both give mtt_k"));
     }
 
     #[test]
@@ -343,7 +392,8 @@ mod tests {
 
     #[test]
     fn json_lines_numbers_and_bad_lines() {
-        let r = std::io::Cursor::new("{\"case_id\": \"A\", \"reaction\": \"CO + O2 -> CO2\", \"step\": 2, \"pressure_bar\": 1.5}\nnot json\n");
+        let r =
+            std::io::Cursor::new("{\"case_id\": \"A\", \"reaction\": \"CO + O2 -> CO2\", \"step\": 2, \"pressure_bar\": 1.5}\nnot json\n");
         let c: Vec<CaseInput> = json_lines(r).collect();
         assert_eq!((c[0].step, c[0].conditions.pressure_bar), (Some(2), Some(1.5)));
         assert!(c[1].input_error.as_deref().unwrap().starts_with("row 2: expected a JSON object"));

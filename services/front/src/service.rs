@@ -49,7 +49,12 @@ pub struct Front {
 
 impl Front {
     pub fn new(queue: Arc<dyn Queue>, cfg: FrontConfig) -> Front {
-        Front { queue, cfg, known: Mutex::new(HashMap::new()), inline: Arc::new(Mutex::new(ChunkProcessor::new())) }
+        Front {
+            queue,
+            cfg,
+            known: Mutex::new(HashMap::new()),
+            inline: Arc::new(Mutex::new(ChunkProcessor::new())),
+        }
     }
 
     fn remember(&self, id: &str) {
@@ -64,7 +69,10 @@ impl Front {
         if is_batch_id(id) {
             Ok(())
         } else {
-            Err(FrontError::invalid("batch_id", "expected the 32 hex digits returned by SubmitBatch"))
+            Err(FrontError::invalid(
+                "batch_id",
+                "expected the 32 hex digits returned by SubmitBatch",
+            ))
         }
     }
 
@@ -94,7 +102,10 @@ impl Front {
     }
 
     async fn submit(&self, mut stream: Streaming<pb::SubmitBatchRequest>) -> Result<pb::SubmitBatchResponse, FrontError> {
-        let first = stream.message().await.map_err(|s| FrontError::invalid("item", format!("stream broke off: {}", s.message())))?;
+        let first = stream
+            .message()
+            .await
+            .map_err(|s| FrontError::invalid("item", format!("stream broke off: {}", s.message())))?;
         let header = match first.and_then(|m| m.item) {
             Some(pb::submit_batch_request::Item::Header(h)) => h,
             _ => return Err(FrontError::invalid("item.header", "the first message must be a header")),
@@ -119,7 +130,9 @@ impl Front {
             };
             let r = match msg.item {
                 Some(pb::submit_batch_request::Item::Case(c)) => ingest.push(case_from_pb(c)).await,
-                Some(pb::submit_batch_request::Item::Header(_)) => Err(FrontError::invalid("item.header", "only the first message may be a header")),
+                Some(pb::submit_batch_request::Item::Header(_)) => {
+                    Err(FrontError::invalid("item.header", "only the first message may be a header"))
+                }
                 None => Err(FrontError::invalid("item", "empty message: set header or case")),
             };
             if let Err(e) = r {
@@ -128,7 +141,12 @@ impl Front {
             }
         }
         let s = ingest.finish().await?;
-        Ok(pb::SubmitBatchResponse { batch_id: s.batch_id, cases_received: s.cases, input_errors: s.input_errors, chunks: s.chunks })
+        Ok(pb::SubmitBatchResponse {
+            batch_id: s.batch_id,
+            cases_received: s.cases,
+            input_errors: s.input_errors,
+            chunks: s.chunks,
+        })
     }
 }
 
@@ -185,7 +203,11 @@ impl Screening for ScreeningService {
     async fn cancel_batch(&self, request: Request<pb::CancelBatchRequest>) -> Result<Response<pb::BatchStatus>, Status> {
         let id = request.into_inner().batch_id;
         Front::check_id(&id)?;
-        self.0.queue.stop_batch(&id, BatchState::Cancelled, "cancelled by a caller").await.map_err(FrontError::from)?;
+        self.0
+            .queue
+            .stop_batch(&id, BatchState::Cancelled, "cancelled by a caller")
+            .await
+            .map_err(FrontError::from)?;
         tracing::info!(batch_id = %id, "batch cancelled");
         let p = self.0.progress(&id).await?;
         Ok(Response::new(status_to_pb(&id, &p)))
@@ -206,8 +228,13 @@ impl Screening for ScreeningService {
             Ok(pb::Table::Manifest) => thermosieve_worker::MANIFEST_FILE,
             _ => return Err(FrontError::invalid("table", "expected TABLE_CASES, TABLE_TRENDS, TABLE_ROUTES or TABLE_MANIFEST").into()),
         };
-        let path = batch_dir(&self.0.cfg.results_dir, &r.batch_id).map_err(|e| FrontError::Internal(e.to_string()))?.join(name);
-        let io = |source| FrontError::Io { path: path.display().to_string(), source };
+        let path = batch_dir(&self.0.cfg.results_dir, &r.batch_id)
+            .map_err(|e| FrontError::Internal(e.to_string()))?
+            .join(name);
+        let io = |source| FrontError::Io {
+            path: path.display().to_string(),
+            source,
+        };
         let mut file = tokio::fs::File::open(&path).await.map_err(io)?;
         let total = file.metadata().await.map_err(io)?.len();
         let (tx, rx) = tokio::sync::mpsc::channel(2);
@@ -224,7 +251,12 @@ impl Screening for ScreeningService {
                     }
                 };
                 buf.truncate(n);
-                let msg = pb::TableChunk { data: buf, offset, total_bytes: total, file_name: name.to_string() };
+                let msg = pb::TableChunk {
+                    data: buf,
+                    offset,
+                    total_bytes: total,
+                    file_name: name.to_string(),
+                };
                 offset += n as u64;
                 if tx.send(Ok(msg)).await.is_err() {
                     break;
@@ -237,27 +269,45 @@ impl Screening for ScreeningService {
     async fn screen_inline(&self, request: Request<pb::ScreenInlineRequest>) -> Result<Response<pb::ScreenInlineResponse>, Status> {
         let r = request.into_inner();
         if r.cases.len() > MAX_INLINE {
-            return Err(FrontError::invalid("cases", format!("{} cases; ScreenInline takes at most {MAX_INLINE} (use SubmitBatch)", r.cases.len())).into());
+            return Err(FrontError::invalid(
+                "cases",
+                format!("{} cases; ScreenInline takes at most {MAX_INLINE} (use SubmitBatch)", r.cases.len()),
+            )
+            .into());
         }
-        let options = BatchOptions { temperatures_k: r.temperatures_k, default_conditions: conditions_from_pb(r.default_conditions), chunk_size: 0, label: String::new() };
+        let options = BatchOptions {
+            temperatures_k: r.temperatures_k,
+            default_conditions: conditions_from_pb(r.default_conditions),
+            chunk_size: 0,
+            label: String::new(),
+        };
         let spec = batch_spec(options, &self.0.cfg.limits).map_err(|e| match e {
-            FrontError::InvalidArgument { field, reason } => FrontError::InvalidArgument { field: field.replace("header.", ""), reason },
+            FrontError::InvalidArgument { field, reason } => FrontError::InvalidArgument {
+                field: field.replace("header.", ""),
+                reason,
+            },
             other => other,
         })?;
-        let cases: Vec<_> = r.cases.into_iter().enumerate().map(|(i, c)| {
-            let mut c = case_from_pb(c);
-            if c.row == 0 {
-                c.row = i as u64 + 1;
-            }
-            if c.case_id.trim().is_empty() && c.input_error.is_none() {
-                c.input_error = Some(format!("row {}, column case_id: missing", c.row));
-            }
-            c
-        }).collect();
+        let cases: Vec<_> = r
+            .cases
+            .into_iter()
+            .enumerate()
+            .map(|(i, c)| {
+                let mut c = case_from_pb(c);
+                if c.row == 0 {
+                    c.row = i as u64 + 1;
+                }
+                if c.case_id.trim().is_empty() && c.input_error.is_none() {
+                    c.input_error = Some(format!("row {}, column case_id: missing", c.row));
+                }
+                c
+            })
+            .collect();
         let processor = self.0.inline.clone();
-        let (case_rows, trend_rows) = tokio::task::spawn_blocking(move || processor.lock().unwrap_or_else(|e| e.into_inner()).screen_cases(&spec, &cases))
-            .await
-            .map_err(|e| FrontError::Internal(format!("engine task: {e}")))?;
+        let (case_rows, trend_rows) =
+            tokio::task::spawn_blocking(move || processor.lock().unwrap_or_else(|e| e.into_inner()).screen_cases(&spec, &cases))
+                .await
+                .map_err(|e| FrontError::Internal(format!("engine task: {e}")))?;
         Ok(Response::new(pb::ScreenInlineResponse {
             cases: case_rows.iter().map(case_row_to_pb).collect(),
             trends: trend_rows.iter().map(trend_row_to_pb).collect(),
@@ -271,15 +321,22 @@ impl Screening for ScreeningService {
         if r.species.len() > MAX_INLINE {
             return Err(FrontError::invalid("species", format!("{} species; at most {MAX_INLINE}", r.species.len())).into());
         }
-        Ok(Response::new(pb::ResolveSpeciesResponse { species: r.species.into_iter().map(|s| resolve_one(&s)).collect() }))
+        Ok(Response::new(pb::ResolveSpeciesResponse {
+            species: r.species.into_iter().map(|s| resolve_one(&s)).collect(),
+        }))
     }
 }
 
 /// What the bundled data says about one written species.
 pub fn resolve_one(query: &str) -> pb::SpeciesInfo {
     let table = species::bundled();
-    let mut info = pb::SpeciesInfo { query: query.to_string(), ..Default::default() };
-    let resolved = parse_species(query.trim(), 0).map_err(|e| e.to_string()).and_then(|spec| table.resolve(&spec).map_err(|e| e.to_string()));
+    let mut info = pb::SpeciesInfo {
+        query: query.to_string(),
+        ..Default::default()
+    };
+    let resolved = parse_species(query.trim(), 0)
+        .map_err(|e| e.to_string())
+        .and_then(|spec| table.resolve(&spec).map_err(|e| e.to_string()));
     match resolved {
         Err(e) => info.error = e,
         Ok(r) => {
@@ -312,7 +369,10 @@ pub async fn serve(listener: TcpListener, front: Arc<Front>, shutdown: impl Futu
         .register_encoded_file_descriptor_set(tonic_health::pb::FILE_DESCRIPTOR_SET)
         .build_v1()
         .map_err(|e| FrontError::Internal(format!("reflection: {e}")))?;
-    let addr = listener.local_addr().map_err(|source| FrontError::Io { path: "listener".into(), source })?;
+    let addr = listener.local_addr().map_err(|source| FrontError::Io {
+        path: "listener".into(),
+        source,
+    })?;
     tracing::info!(%addr, "front listening");
     tonic::transport::Server::builder()
         .add_service(health_service)

@@ -34,7 +34,11 @@ pub enum QueueError {
     #[error("batch {0} is not known to the queue (expired, or lost when redis restarted)")]
     UnknownBatch(String),
     #[error("batch {batch_id} is {state}, so it cannot take {what}")]
-    WrongState { batch_id: String, state: &'static str, what: &'static str },
+    WrongState {
+        batch_id: String,
+        state: &'static str,
+        what: &'static str,
+    },
     #[error("encoding a task: {0}")]
     Encode(#[from] serde_json::Error),
 }

@@ -40,7 +40,9 @@ impl Inner {
         let Some(b) = self.batches.get_mut(batch_id) else { return };
         if b.progress.state == BatchState::Running && b.progress.chunks_done >= b.progress.chunks_total {
             b.progress.state = BatchState::Finalizing;
-            self.push(Task::Finalize { batch_id: batch_id.to_string() });
+            self.push(Task::Finalize {
+                batch_id: batch_id.to_string(),
+            });
         }
     }
 
@@ -90,7 +92,14 @@ impl Queue for MemoryQueue {
             created_unix_ms: spec.created_unix_ms,
             finished_unix_ms: None,
         };
-        self.lock().batches.insert(spec.batch_id.clone(), BatchRecord { spec: spec.clone(), progress, done: HashSet::new() });
+        self.lock().batches.insert(
+            spec.batch_id.clone(),
+            BatchRecord {
+                spec: spec.clone(),
+                progress,
+                done: HashSet::new(),
+            },
+        );
         Ok(())
     }
 
@@ -101,9 +110,16 @@ impl Queue for MemoryQueue {
     async fn enqueue(&self, chunk: &Chunk) -> Result<(), QueueError> {
         {
             let mut g = self.lock();
-            let b = g.batches.get_mut(&chunk.batch_id).ok_or_else(|| QueueError::UnknownBatch(chunk.batch_id.clone()))?;
+            let b = g
+                .batches
+                .get_mut(&chunk.batch_id)
+                .ok_or_else(|| QueueError::UnknownBatch(chunk.batch_id.clone()))?;
             if b.progress.state != BatchState::Receiving {
-                return Err(QueueError::WrongState { batch_id: chunk.batch_id.clone(), state: b.progress.state.as_str(), what: "chunks" });
+                return Err(QueueError::WrongState {
+                    batch_id: chunk.batch_id.clone(),
+                    state: b.progress.state.as_str(),
+                    what: "chunks",
+                });
             }
             b.progress.chunks_total += 1;
             b.progress.cases_total += chunk.cases.len() as u64;
@@ -116,9 +132,16 @@ impl Queue for MemoryQueue {
     async fn seal(&self, batch_id: &str) -> Result<(), QueueError> {
         {
             let mut g = self.lock();
-            let b = g.batches.get_mut(batch_id).ok_or_else(|| QueueError::UnknownBatch(batch_id.to_string()))?;
+            let b = g
+                .batches
+                .get_mut(batch_id)
+                .ok_or_else(|| QueueError::UnknownBatch(batch_id.to_string()))?;
             if b.progress.state != BatchState::Receiving {
-                return Err(QueueError::WrongState { batch_id: batch_id.to_string(), state: b.progress.state.as_str(), what: "a seal" });
+                return Err(QueueError::WrongState {
+                    batch_id: batch_id.to_string(),
+                    state: b.progress.state.as_str(),
+                    what: "a seal",
+                });
             }
             b.progress.state = BatchState::Running;
             g.maybe_finalize(batch_id);
@@ -141,13 +164,24 @@ impl Queue for MemoryQueue {
                 let mut g = self.lock();
                 if let Some((id, task, prior)) = g.ready.pop_front() {
                     let deliveries = prior + 1;
-                    g.pending.insert(id, Pending { task: task.clone(), deliveries, delivered_at: Instant::now() });
+                    g.pending.insert(
+                        id,
+                        Pending {
+                            task: task.clone(),
+                            deliveries,
+                            delivered_at: Instant::now(),
+                        },
+                    );
                     let more = !g.ready.is_empty();
                     drop(g);
                     if more {
                         self.wake.notify_one();
                     }
-                    return Ok(Some(Delivery { entry_id: id.to_string(), task, deliveries }));
+                    return Ok(Some(Delivery {
+                        entry_id: id.to_string(),
+                        task,
+                        deliveries,
+                    }));
                 }
             }
             if tokio::time::timeout_at(deadline, notified).await.is_err() {
@@ -167,7 +201,11 @@ impl Queue for MemoryQueue {
             if now.duration_since(p.delivered_at) >= min_idle {
                 p.deliveries += 1;
                 p.delivered_at = now;
-                out.push(Delivery { entry_id: id.to_string(), task: p.task.clone(), deliveries: p.deliveries });
+                out.push(Delivery {
+                    entry_id: id.to_string(),
+                    task: p.task.clone(),
+                    deliveries: p.deliveries,
+                });
             }
         }
         Ok(out)
@@ -178,7 +216,10 @@ impl Queue for MemoryQueue {
         {
             let mut g = self.lock();
             g.ack(&delivery.entry_id);
-            let b = g.batches.get_mut(&batch_id).ok_or_else(|| QueueError::UnknownBatch(batch_id.clone()))?;
+            let b = g
+                .batches
+                .get_mut(&batch_id)
+                .ok_or_else(|| QueueError::UnknownBatch(batch_id.clone()))?;
             if b.done.insert(seq) {
                 b.progress.chunks_done += 1;
                 b.progress.cases_done += report.cases;
@@ -225,7 +266,10 @@ impl Queue for MemoryQueue {
 
     async fn stop_batch(&self, batch_id: &str, state: BatchState, message: &str) -> Result<BatchState, QueueError> {
         let mut g = self.lock();
-        let b = g.batches.get_mut(batch_id).ok_or_else(|| QueueError::UnknownBatch(batch_id.to_string()))?;
+        let b = g
+            .batches
+            .get_mut(batch_id)
+            .ok_or_else(|| QueueError::UnknownBatch(batch_id.to_string()))?;
         if !b.progress.state.is_final() {
             b.progress.state = state;
             b.progress.message = message.to_string();
@@ -244,11 +288,27 @@ mod tests {
     use super::*;
 
     fn spec(id: &str) -> BatchSpec {
-        BatchSpec { batch_id: id.into(), temperatures_k: vec![300.0], default_conditions: Conditions::default(), chunk_size: 2, label: String::new(), created_unix_ms: 0 }
+        BatchSpec {
+            batch_id: id.into(),
+            temperatures_k: vec![300.0],
+            default_conditions: Conditions::default(),
+            chunk_size: 2,
+            label: String::new(),
+            created_unix_ms: 0,
+        }
     }
 
     fn chunk(id: &str, seq: u64, n: usize) -> Chunk {
-        Chunk { batch_id: id.into(), seq, cases: (0..n).map(|i| CaseInput { case_id: format!("c{i}"), ..Default::default() }).collect() }
+        Chunk {
+            batch_id: id.into(),
+            seq,
+            cases: (0..n)
+                .map(|i| CaseInput {
+                    case_id: format!("c{i}"),
+                    ..Default::default()
+                })
+                .collect(),
+        }
     }
 
     #[tokio::test]
@@ -263,15 +323,32 @@ mod tests {
         let again = q.reclaim("w2", Duration::ZERO, 10).await.unwrap();
         assert_eq!(again.len(), 1);
         assert_eq!(again[0].deliveries, 2);
-        let report = ChunkReport { cases: 2, errors: 0, dead_lettered: false };
+        let report = ChunkReport {
+            cases: 2,
+            errors: 0,
+            dead_lettered: false,
+        };
         q.complete_chunk(&d0, 0, report).await.unwrap();
         q.complete_chunk(&again[0], 0, report).await.unwrap();
         let p = q.progress("b").await.unwrap().unwrap();
         assert_eq!((p.chunks_done, p.cases_done, p.state), (1, 2, BatchState::Running));
         let d1 = q.poll("w", Duration::from_millis(10)).await.unwrap().unwrap();
-        q.complete_chunk(&d1, 1, ChunkReport { cases: 1, errors: 1, dead_lettered: false }).await.unwrap();
+        q.complete_chunk(
+            &d1,
+            1,
+            ChunkReport {
+                cases: 1,
+                errors: 1,
+                dead_lettered: false,
+            },
+        )
+        .await
+        .unwrap();
         let p = q.progress("b").await.unwrap().unwrap();
-        assert_eq!((p.chunks_done, p.cases_done, p.cases_error, p.state), (2, 3, 1, BatchState::Finalizing));
+        assert_eq!(
+            (p.chunks_done, p.cases_done, p.cases_error, p.state),
+            (2, 3, 1, BatchState::Finalizing)
+        );
         let f = q.poll("w", Duration::from_millis(10)).await.unwrap().unwrap();
         assert_eq!(f.task, Task::Finalize { batch_id: "b".into() });
         q.complete_finalize(&f, Ok(())).await.unwrap();
@@ -296,8 +373,15 @@ mod tests {
 
     #[test]
     fn row_conditions_win_over_defaults() {
-        let row = Conditions { scale_mol: Some(2.0), ..Default::default() };
-        let d = Conditions { scale_mol: Some(9.0), pressure_bar: Some(1.5), ..Default::default() };
+        let row = Conditions {
+            scale_mol: Some(2.0),
+            ..Default::default()
+        };
+        let d = Conditions {
+            scale_mol: Some(9.0),
+            pressure_bar: Some(1.5),
+            ..Default::default()
+        };
         let c = row.or_defaults(&d);
         assert_eq!((c.scale_mol, c.pressure_bar), (Some(2.0), Some(1.5)));
     }

@@ -256,5 +256,7 @@ pub struct ChunkReport {
 
 /// Milliseconds since the Unix epoch, for timestamps in batch state.
 pub fn now_unix_ms() -> u64 {
-    std::time::SystemTime::now().duration_since(std::time::UNIX_EPOCH).map_or(0, |d| d.as_millis() as u64)
+    std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .map_or(0, |d| d.as_millis() as u64)
 }

@@ -43,7 +43,12 @@ pub struct RedisConfig {
 
 impl RedisConfig {
     pub fn new(url: impl Into<String>) -> RedisConfig {
-        RedisConfig { url: url.into(), prefix: "thermosieve".into(), retention: Duration::from_secs(7 * 24 * 3600), response_timeout: Duration::from_secs(10) }
+        RedisConfig {
+            url: url.into(),
+            prefix: "thermosieve".into(),
+            retention: Duration::from_secs(7 * 24 * 3600),
+            response_timeout: Duration::from_secs(10),
+        }
     }
 }
 
@@ -142,7 +147,9 @@ impl RedisQueue {
         let client = redis::Client::open(cfg.url.as_str())?;
         let conn = client
             .get_multiplexed_async_connection_with_config(
-                &AsyncConnectionConfig::new().set_response_timeout(Some(cfg.response_timeout)).set_connection_timeout(Some(Duration::from_secs(5))),
+                &AsyncConnectionConfig::new()
+                    .set_response_timeout(Some(cfg.response_timeout))
+                    .set_connection_timeout(Some(Duration::from_secs(5))),
             )
             .await?;
         let with_finalize = |body: &str| format!("{MAYBE_FINALIZE_LUA}\n{body}");
@@ -153,7 +160,13 @@ impl RedisQueue {
             finish: Script::new(FINISH_LUA),
             stop: Script::new(STOP_LUA),
         };
-        let q = RedisQueue { client, cfg, conn, blocking: Mutex::new(HashMap::new()), scripts };
+        let q = RedisQueue {
+            client,
+            cfg,
+            conn,
+            blocking: Mutex::new(HashMap::new()),
+            scripts,
+        };
         q.ensure_group().await?;
         Ok(q)
     }
@@ -174,7 +187,14 @@ impl RedisQueue {
     async fn ensure_group(&self) -> Result<(), QueueError> {
         let mut c = self.conn.clone();
         // "0": a group recreated after a loss also sees entries added before it.
-        let r: Result<(), redis::RedisError> = redis::cmd("XGROUP").arg("CREATE").arg(self.tasks_key()).arg(GROUP).arg("0").arg("MKSTREAM").query_async(&mut c).await;
+        let r: Result<(), redis::RedisError> = redis::cmd("XGROUP")
+            .arg("CREATE")
+            .arg(self.tasks_key())
+            .arg(GROUP)
+            .arg("0")
+            .arg("MKSTREAM")
+            .query_async(&mut c)
+            .await;
         match r {
             Ok(()) => Ok(()),
             Err(e) if e.code() == Some("BUSYGROUP") => Ok(()),
@@ -184,7 +204,10 @@ impl RedisQueue {
 
     fn map_group_error(&self, e: redis::RedisError) -> QueueError {
         if e.code() == Some("NOGROUP") {
-            QueueError::GroupMissing { stream: self.tasks_key(), group: GROUP.into() }
+            QueueError::GroupMissing {
+                stream: self.tasks_key(),
+                group: GROUP.into(),
+            }
         } else {
             e.into()
         }
@@ -192,22 +215,34 @@ impl RedisQueue {
 
     async fn blocking_conn(&self, response_timeout: Duration) -> Result<(u64, MultiplexedConnection), QueueError> {
         let key = response_timeout.as_millis() as u64;
-        let idle = self.blocking.lock().unwrap_or_else(|e| e.into_inner()).get_mut(&key).and_then(Vec::pop);
+        let idle = self
+            .blocking
+            .lock()
+            .unwrap_or_else(|e| e.into_inner())
+            .get_mut(&key)
+            .and_then(Vec::pop);
         match idle {
             Some(c) => Ok((key, c)),
             None => {
-                let cfg = AsyncConnectionConfig::new().set_response_timeout(Some(response_timeout)).set_connection_timeout(Some(Duration::from_secs(5)));
+                let cfg = AsyncConnectionConfig::new()
+                    .set_response_timeout(Some(response_timeout))
+                    .set_connection_timeout(Some(Duration::from_secs(5)));
                 Ok((key, self.client.get_multiplexed_async_connection_with_config(&cfg).await?))
             }
         }
     }
 
     fn finalize_payload(batch_id: &str) -> Result<String, QueueError> {
-        Ok(serde_json::to_string(&Task::Finalize { batch_id: batch_id.to_string() })?)
+        Ok(serde_json::to_string(&Task::Finalize {
+            batch_id: batch_id.to_string(),
+        })?)
     }
 
     fn decode(entry: &StreamId) -> Result<Task, QueueError> {
-        let bad = |reason: &str| QueueError::BadEntry { entry_id: entry.id.clone(), reason: reason.to_string() };
+        let bad = |reason: &str| QueueError::BadEntry {
+            entry_id: entry.id.clone(),
+            reason: reason.to_string(),
+        };
         let v = entry.map.get("task").ok_or_else(|| bad("no field 'task'"))?;
         let bytes = match v {
             Value::BulkString(b) => b.as_slice(),
@@ -219,14 +254,26 @@ impl RedisQueue {
 
     async fn delivery_count(&self, id: &str) -> Result<u64, QueueError> {
         let mut c = self.conn.clone();
-        let r: StreamPendingCountReply = redis::cmd("XPENDING").arg(self.tasks_key()).arg(GROUP).arg(id).arg(id).arg(1).query_async(&mut c).await.map_err(|e| self.map_group_error(e))?;
+        let r: StreamPendingCountReply = redis::cmd("XPENDING")
+            .arg(self.tasks_key())
+            .arg(GROUP)
+            .arg(id)
+            .arg(id)
+            .arg(1)
+            .query_async(&mut c)
+            .await
+            .map_err(|e| self.map_group_error(e))?;
         Ok(r.ids.first().map_or(1, |p| p.times_delivered as u64))
     }
 
     fn check(&self, r: i64, batch_id: &str, what: &'static str) -> Result<(), QueueError> {
         match r {
             -1 => Err(QueueError::UnknownBatch(batch_id.to_string())),
-            0 => Err(QueueError::WrongState { batch_id: batch_id.to_string(), state: "past receiving", what }),
+            0 => Err(QueueError::WrongState {
+                batch_id: batch_id.to_string(),
+                state: "past receiving",
+                what,
+            }),
             _ => Ok(()),
         }
     }
@@ -272,7 +319,11 @@ impl Queue for RedisQueue {
 
     async fn batch_spec(&self, batch_id: &str) -> Result<Option<BatchSpec>, QueueError> {
         let mut c = self.conn.clone();
-        let s: Option<String> = redis::cmd("HGET").arg(self.batch_key(batch_id)).arg("spec").query_async(&mut c).await?;
+        let s: Option<String> = redis::cmd("HGET")
+            .arg(self.batch_key(batch_id))
+            .arg("spec")
+            .query_async(&mut c)
+            .await?;
         Ok(match s {
             Some(s) => Some(serde_json::from_str(&s)?),
             None => None,
@@ -282,13 +333,28 @@ impl Queue for RedisQueue {
     async fn enqueue(&self, chunk: &Chunk) -> Result<(), QueueError> {
         let payload = serde_json::to_string(&Task::Chunk(chunk.clone()))?;
         let mut c = self.conn.clone();
-        let r: i64 = self.scripts.enqueue.key(self.tasks_key()).key(self.batch_key(&chunk.batch_id)).arg(payload).arg(chunk.cases.len()).invoke_async(&mut c).await?;
+        let r: i64 = self
+            .scripts
+            .enqueue
+            .key(self.tasks_key())
+            .key(self.batch_key(&chunk.batch_id))
+            .arg(payload)
+            .arg(chunk.cases.len())
+            .invoke_async(&mut c)
+            .await?;
         self.check(r, &chunk.batch_id, "chunks")
     }
 
     async fn seal(&self, batch_id: &str) -> Result<(), QueueError> {
         let mut c = self.conn.clone();
-        let r: i64 = self.scripts.seal.key(self.tasks_key()).key(self.batch_key(batch_id)).arg(Self::finalize_payload(batch_id)?).invoke_async(&mut c).await?;
+        let r: i64 = self
+            .scripts
+            .seal
+            .key(self.tasks_key())
+            .key(self.batch_key(batch_id))
+            .arg(Self::finalize_payload(batch_id)?)
+            .invoke_async(&mut c)
+            .await?;
         self.check(r, batch_id, "a seal")
     }
 
@@ -316,7 +382,12 @@ impl Queue for RedisQueue {
             .await;
         let reply = match r {
             Ok(r) => {
-                self.blocking.lock().unwrap_or_else(|e| e.into_inner()).entry(key).or_default().push(c);
+                self.blocking
+                    .lock()
+                    .unwrap_or_else(|e| e.into_inner())
+                    .entry(key)
+                    .or_default()
+                    .push(c);
                 r
             }
             // A failed connection is dropped rather than returned to the pool.
@@ -326,7 +397,11 @@ impl Queue for RedisQueue {
             return Ok(None);
         };
         let task = Self::decode(&entry)?;
-        Ok(Some(Delivery { entry_id: entry.id, task, deliveries: 1 }))
+        Ok(Some(Delivery {
+            entry_id: entry.id,
+            task,
+            deliveries: 1,
+        }))
     }
 
     async fn reclaim(&self, consumer: &str, min_idle: Duration, max: usize) -> Result<Vec<Delivery>, QueueError> {
@@ -349,10 +424,19 @@ impl Queue for RedisQueue {
         for entry in r.claimed {
             let deliveries = self.delivery_count(&entry.id).await?;
             match Self::decode(&entry) {
-                Ok(task) => out.push(Delivery { entry_id: entry.id, task, deliveries }),
+                Ok(task) => out.push(Delivery {
+                    entry_id: entry.id,
+                    task,
+                    deliveries,
+                }),
                 Err(e) => {
                     tracing::error!(error = %e, "dropping an undecodable queue entry");
-                    let _: () = redis::cmd("XACK").arg(self.tasks_key()).arg(GROUP).arg(&entry.id).query_async(&mut c).await?;
+                    let _: () = redis::cmd("XACK")
+                        .arg(self.tasks_key())
+                        .arg(GROUP)
+                        .arg(&entry.id)
+                        .query_async(&mut c)
+                        .await?;
                 }
             }
         }
@@ -433,7 +517,18 @@ impl Queue for RedisQueue {
 
     async fn discard(&self, delivery: &Delivery) -> Result<(), QueueError> {
         let mut c = self.conn.clone();
-        let _: () = redis::pipe().cmd("XACK").arg(self.tasks_key()).arg(GROUP).arg(&delivery.entry_id).ignore().cmd("XDEL").arg(self.tasks_key()).arg(&delivery.entry_id).ignore().query_async(&mut c).await?;
+        let _: () = redis::pipe()
+            .cmd("XACK")
+            .arg(self.tasks_key())
+            .arg(GROUP)
+            .arg(&delivery.entry_id)
+            .ignore()
+            .cmd("XDEL")
+            .arg(self.tasks_key())
+            .arg(&delivery.entry_id)
+            .ignore()
+            .query_async(&mut c)
+            .await?;
         Ok(())
     }
 

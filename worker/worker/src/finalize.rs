@@ -27,9 +27,15 @@ pub fn table_metadata(spec: &BatchSpec, table: &str) -> Vec<(String, String)> {
         ("thermosieve.batch_id".to_string(), spec.batch_id.clone()),
         ("thermosieve.engine_version".to_string(), VERSION.to_string()),
         ("thermosieve.data_sources".to_string(), species::SOURCE_NAME.to_string()),
-        ("thermosieve.species_data_provenance".to_string(), species::bundled().provenance.clone()),
+        (
+            "thermosieve.species_data_provenance".to_string(),
+            species::bundled().provenance.clone(),
+        ),
         ("thermosieve.elements_data_provenance".to_string(), elements::source().to_string()),
-        ("thermosieve.temperature_grid_k".to_string(), serde_json::to_string(&spec.temperatures_k).unwrap_or_default()),
+        (
+            "thermosieve.temperature_grid_k".to_string(),
+            serde_json::to_string(&spec.temperatures_k).unwrap_or_default(),
+        ),
         ("thermosieve.caution".to_string(), CAUTION.to_string()),
     ];
     if table == ROUTES_FILE {
@@ -127,7 +133,11 @@ impl Routes {
                 let s = step.get(i).unwrap_or(u32::MAX);
                 if a.first_error.as_ref().is_none_or(|(fs, fo, _)| (s, self.seen) < (*fs, *fo)) {
                     let label = step.get(i).map_or("step ?".to_string(), |s| format!("step {s}"));
-                    a.first_error = Some((s, self.seen, format!("{label} (case {}): {}", case.get(i).unwrap_or(""), err.get(i).unwrap_or(""))));
+                    a.first_error = Some((
+                        s,
+                        self.seen,
+                        format!("{label} (case {}): {}", case.get(i).unwrap_or(""), err.get(i).unwrap_or("")),
+                    ));
                 }
             }
         }
@@ -154,7 +164,10 @@ impl Routes {
         let mut ranked: Vec<usize> = (0..out.len()).filter(|&i| out[i].total_delta_h_298_kj_per_mol.is_some()).collect();
         ranked.sort_by(|&a, &b| {
             let (x, y) = (&out[a], &out[b]);
-            x.total_delta_h_298_kj_per_mol.unwrap_or(0.0).total_cmp(&y.total_delta_h_298_kj_per_mol.unwrap_or(0.0)).then_with(|| x.route_id.cmp(&y.route_id))
+            x.total_delta_h_298_kj_per_mol
+                .unwrap_or(0.0)
+                .total_cmp(&y.total_delta_h_298_kj_per_mol.unwrap_or(0.0))
+                .then_with(|| x.route_id.cmp(&y.route_id))
         });
         for (k, &i) in ranked.iter().enumerate() {
             out[i].rank = Some(k as u32 + 1);
@@ -165,7 +178,15 @@ impl Routes {
 }
 
 /// Concatenate the parts of `table` (`cases` or `trends`) for chunks `0..chunks` into `file`.
-fn concat_parts(results_dir: &Path, spec: &BatchSpec, table: &str, file: &str, chunks: u64, empty: &DataFrame, mut each: impl FnMut(&DataFrame) -> Result<(), WorkerError>) -> Result<(u64, u64), WorkerError> {
+fn concat_parts(
+    results_dir: &Path,
+    spec: &BatchSpec,
+    table: &str,
+    file: &str,
+    chunks: u64,
+    empty: &DataFrame,
+    mut each: impl FnMut(&DataFrame) -> Result<(), WorkerError>,
+) -> Result<(u64, u64), WorkerError> {
     let dir = batch_dir(results_dir, &spec.batch_id)?;
     let path = dir.join(file);
     let mut rows = 0u64;
@@ -176,7 +197,11 @@ fn concat_parts(results_dir: &Path, spec: &BatchSpec, table: &str, file: &str, c
         for seq in 0..chunks {
             let p = part_path(results_dir, &spec.batch_id, table, seq)?;
             if !p.exists() {
-                return Err(WorkerError::MissingPart { batch_id: spec.batch_id.clone(), seq, table: table.to_string() });
+                return Err(WorkerError::MissingPart {
+                    batch_id: spec.batch_id.clone(),
+                    seq,
+                    table: table.to_string(),
+                });
             }
             let df = read_parquet(&p)?;
             each(&df)?;
@@ -208,7 +233,11 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
     let chunks = progress.chunks_total;
 
     let mut routes = Routes::default();
-    let mut counts = Counts { chunks, chunks_dead_lettered: progress.chunks_dead, ..Counts::default() };
+    let mut counts = Counts {
+        chunks,
+        chunks_dead_lettered: progress.chunks_dead,
+        ..Counts::default()
+    };
     let mut ok = 0u64;
     let empty_cases = rows::cases_frame(&[])?;
     let (cases, cases_bytes) = concat_parts(results_dir, spec, "cases", CASES_FILE, chunks, &empty_cases, |df| {
@@ -239,9 +268,21 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
         default_conditions: spec.default_conditions.clone(),
         counts,
         files: vec![
-            FileEntry { name: CASES_FILE.into(), rows: cases, bytes: cases_bytes },
-            FileEntry { name: TRENDS_FILE.into(), rows: trend_rows, bytes: trends_bytes },
-            FileEntry { name: ROUTES_FILE.into(), rows: route_rows.len() as u64, bytes: routes_bytes },
+            FileEntry {
+                name: CASES_FILE.into(),
+                rows: cases,
+                bytes: cases_bytes,
+            },
+            FileEntry {
+                name: TRENDS_FILE.into(),
+                rows: trend_rows,
+                bytes: trends_bytes,
+            },
+            FileEntry {
+                name: ROUTES_FILE.into(),
+                rows: route_rows.len() as u64,
+                bytes: routes_bytes,
+            },
         ],
         cautions: vec![CAUTION.to_string(), ROUTE_RANK_NOTE.to_string()],
         timings: Timings {
@@ -254,7 +295,10 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
     };
     let json = serde_json::to_vec_pretty(&manifest)?;
     write_atomic(&dir.join(MANIFEST_FILE), |f: &mut File| {
-        std::io::Write::write_all(f, &json).map_err(|source| WorkerError::Io { path: dir.join(MANIFEST_FILE), source })
+        std::io::Write::write_all(f, &json).map_err(|source| WorkerError::Io {
+            path: dir.join(MANIFEST_FILE),
+            source,
+        })
     })?;
     if !keep_parts {
         let parts = dir.join("parts");

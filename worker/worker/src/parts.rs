@@ -29,11 +29,16 @@ pub fn batch_dir(results_dir: &Path, batch_id: &str) -> Result<PathBuf, WorkerEr
 /// # Errors
 /// As [`batch_dir`].
 pub fn part_path(results_dir: &Path, batch_id: &str, table: &str, seq: u64) -> Result<PathBuf, WorkerError> {
-    Ok(batch_dir(results_dir, batch_id)?.join("parts").join(format!("{table}-{seq:08}.parquet")))
+    Ok(batch_dir(results_dir, batch_id)?
+        .join("parts")
+        .join(format!("{table}-{seq:08}.parquet")))
 }
 
 fn io(path: &Path) -> impl FnOnce(std::io::Error) -> WorkerError + '_ {
-    move |source| WorkerError::Io { path: path.to_path_buf(), source }
+    move |source| WorkerError::Io {
+        path: path.to_path_buf(),
+        source,
+    }
 }
 
 /// Write a file atomically: `write` fills a temporary file beside `path`, which is synced and
@@ -48,7 +53,11 @@ pub fn write_atomic(path: &Path, write: impl FnOnce(&mut File) -> Result<(), Wor
     // Unique per process and call: two threads (or a redelivered chunk in another worker) never
     // write the same temp file.
     static NEXT: AtomicU64 = AtomicU64::new(0);
-    let tmp = dir.join(format!(".{name}.tmp-{}-{}", std::process::id(), NEXT.fetch_add(1, Ordering::Relaxed)));
+    let tmp = dir.join(format!(
+        ".{name}.tmp-{}-{}",
+        std::process::id(),
+        NEXT.fetch_add(1, Ordering::Relaxed)
+    ));
     let result = (|| {
         let mut f = File::create(&tmp).map_err(io(&tmp))?;
         write(&mut f)?;
@@ -74,7 +83,9 @@ pub fn write_atomic(path: &Path, write: impl FnOnce(&mut File) -> Result<(), Wor
 /// I/O and Polars errors.
 pub fn write_parquet(path: &Path, df: &mut DataFrame, metadata: Option<Vec<(String, String)>>) -> Result<(), WorkerError> {
     write_atomic(path, |f| {
-        ParquetWriter::new(f).with_key_value_metadata(metadata.map(KeyValueMetadata::from_static)).finish(df)?;
+        ParquetWriter::new(f)
+            .with_key_value_metadata(metadata.map(KeyValueMetadata::from_static))
+            .finish(df)?;
         Ok(())
     })
 }
@@ -86,7 +97,10 @@ pub fn write_parquet(path: &Path, df: &mut DataFrame, metadata: Option<Vec<(Stri
 /// I/O and Polars errors.
 pub fn write_part(path: &Path, df: &mut DataFrame) -> Result<(), WorkerError> {
     write_atomic(path, |f| {
-        ParquetWriter::new(f).with_compression(ParquetCompression::Lz4Raw).set_parallel(false).finish(df)?;
+        ParquetWriter::new(f)
+            .with_compression(ParquetCompression::Lz4Raw)
+            .set_parallel(false)
+            .finish(df)?;
         Ok(())
     })
 }

@@ -62,7 +62,10 @@ impl ChunkProcessor {
                             continue;
                         }
                         Ok(Err(e)) => Err(rows::engine_error_message(case, &e)),
-                        Err(_) => Err(format!("internal error: the engine panicked on this reaction ({:?}); please report it", case.reaction)),
+                        Err(_) => Err(format!(
+                            "internal error: the engine panicked on this reaction ({:?}); please report it",
+                            case.reaction
+                        )),
                     }
                 }
             };

@@ -7,6 +7,7 @@
 //! function: nothing else in the service changes.
 
 use polars::prelude::{Column, DataFrame, PolarsResult};
+use thermosieve_engine::process::{self, Assessment, CaseProcess, ProcessConditions, Scale};
 use thermosieve_engine::{species::Table, ScreenError, Screened};
 use thermosieve_queue::{CaseInput, CONDITION_FIELDS};
 
@@ -44,6 +45,81 @@ pub struct CaseRow {
     pub conditions_extra_json: Option<String>,
     /// 1-based input row (0 unknown).
     pub input_row: u64,
+    /// The process view (heat budget, equilibrium, criticality) at the case's conditions.
+    pub process: ProcessColumns,
+}
+
+/// Process-view columns of a case row; all empty when the reaction failed.
+#[derive(Clone, Debug, PartialEq, Default)]
+pub struct ProcessColumns {
+    pub process_temperature_k: Option<f64>,
+    pub reaction_mol_per_batch: Option<f64>,
+    pub log10_k_process: Option<f64>,
+    pub equilibrium_conversion: Option<f64>,
+    pub heat_kj_per_mol: Option<f64>,
+    pub heat_kj_per_kg: Option<f64>,
+    pub heat_kj_per_batch: Option<f64>,
+    pub adiabatic_rise_k: Option<f64>,
+    pub mtsr_k: Option<f64>,
+    pub severity: Option<String>,
+    pub criticality_class: Option<u32>,
+    /// Why the class is not assessed (the missing inputs), when it is not.
+    pub criticality_not_assessed: Option<String>,
+    pub gas_mol_per_batch: Option<f64>,
+    pub gas_m3_at_0c_1atm: Option<f64>,
+    pub cooling_margin_kw: Option<f64>,
+    /// Defaults used for this case (common practice, not physics).
+    pub assumed_inputs: Option<String>,
+    /// A process input that could not be used (the thermodynamics above still stand).
+    pub process_error: Option<String>,
+}
+
+/// The engine's process inputs from a case's conditions. A dosing time of 0 is how tables write
+/// "all charged at once": it means batch, not an invalid semi-batch.
+fn process_conditions(c: &thermosieve_queue::Conditions) -> ProcessConditions {
+    let dosing = c.dosing_time_h.filter(|&h| h != 0.0);
+    ProcessConditions {
+        process_temperature_k: c.process_temperature_k,
+        pressure_bar: c.pressure_bar,
+        scale: c.scale_mol.map(Scale::MolOfReaction),
+        reaction_mass_kg: c.reaction_mass_kg,
+        cp_kj_per_kg_k: c.cp_kj_per_kg_k,
+        operation: (dosing.is_some() || c.accumulation_fraction.is_some()).then_some(process::Operation::SemiBatch),
+        dosing_time_h: dosing,
+        accumulation_fraction: c.accumulation_fraction,
+        mtt_k: c.mtt_k,
+        t_d24_k: c.t_d24_k,
+        dsc_onset_k: c.dsc_onset_k,
+        coolant_temperature_k: c.coolant_temperature_k,
+        ua_w_per_k: c.ua_w_per_k,
+        ..ProcessConditions::default()
+    }
+}
+
+fn process_columns(p: &CaseProcess) -> ProcessColumns {
+    let (class, not_assessed) = match &p.criticality {
+        Assessment::Assessed(k) => (Some(u32::from(k.class.number())), None),
+        Assessment::NotAssessed { reason, .. } => (None, Some(reason.clone())),
+    };
+    ProcessColumns {
+        process_temperature_k: Some(p.conditions.process_temperature_k),
+        reaction_mol_per_batch: Some(p.conditions.reaction_mol),
+        log10_k_process: Some(p.equilibrium.point.log10_k),
+        equilibrium_conversion: p.equilibrium.conversion.value().map(|c| c.conversion),
+        heat_kj_per_mol: Some(p.heat.heat_kj_per_mol),
+        heat_kj_per_kg: Some(p.heat.heat_kj_per_kg),
+        heat_kj_per_batch: Some(p.heat.heat_kj_per_batch),
+        adiabatic_rise_k: Some(p.heat.adiabatic_rise_k),
+        mtsr_k: Some(p.heat.mtsr_k),
+        severity: Some(p.severity.as_str().to_string()),
+        criticality_class: class,
+        criticality_not_assessed: not_assessed,
+        gas_mol_per_batch: Some(p.gas.gas_mol_per_batch),
+        gas_m3_at_0c_1atm: Some(p.gas.gas_m3_at_stp),
+        cooling_margin_kw: p.cooling.value().map(|c| c.margin_kw),
+        assumed_inputs: (!p.assumed.is_empty()).then(|| p.assumed.join(JOIN)),
+        process_error: None,
+    }
 }
 
 /// One row of `trends.parquet`: one case at one grid temperature.
@@ -93,11 +169,19 @@ fn row_prefix(row: u64) -> String {
 
 /// The message of a case that has no reaction.
 pub fn missing_reaction_message(case: &CaseInput) -> String {
-    format!("{}column reaction: missing (expected a reaction equation such as \"CO(g) + H2O(g) -> CO2(g) + H2(g)\")", row_prefix(case.row))
+    format!(
+        "{}column reaction: missing (expected a reaction equation such as \"CO(g) + H2O(g) -> CO2(g) + H2(g)\")",
+        row_prefix(case.row)
+    )
 }
 
 /// The rows of one case. `conditions` are the case's conditions merged with the batch defaults.
-pub fn build_rows(case: &CaseInput, conditions: &thermosieve_queue::Conditions, result: Result<&Screened, String>, table: &Table) -> (CaseRow, Vec<TrendRow>) {
+pub fn build_rows(
+    case: &CaseInput,
+    conditions: &thermosieve_queue::Conditions,
+    result: Result<&Screened, String>,
+    table: &Table,
+) -> (CaseRow, Vec<TrendRow>) {
     let mut row = CaseRow {
         case_id: case.case_id.clone(),
         route_id: case.route_id.clone(),
@@ -120,6 +204,7 @@ pub fn build_rows(case: &CaseInput, conditions: &thermosieve_queue::Conditions, 
         conditions: conditions.values(),
         conditions_extra_json: (!conditions.extra.is_empty()).then(|| serde_json::to_string(&conditions.extra).unwrap_or_default()),
         input_row: case.row,
+        process: ProcessColumns::default(),
     };
     let s = match result {
         Ok(s) => s,
@@ -136,10 +221,20 @@ pub fn build_rows(case: &CaseInput, conditions: &thermosieve_queue::Conditions, 
     row.log10_k_298 = Some(s.standard.log10_k);
     row.delta_g_zero_k = s.delta_g_zero_k;
     row.delta_h_uncertainty_kj_per_mol = s.delta_h_uncertainty_kj_per_mol;
-    // The engine has no estimation yet: every species is tabulated or supplied.
-    row.estimated_species = 0;
+    row.estimated_species = s.estimated_species as u32;
+    row.process = match process::evaluate(s, &process_conditions(conditions)) {
+        Ok(p) => process_columns(&p),
+        Err(e) => ProcessColumns {
+            process_error: Some(format!("{}{e}", row_prefix(case.row))),
+            ..ProcessColumns::default()
+        },
+    };
     row.all_points_in_valid_range = Some(s.points.iter().all(|p| p.in_valid_range));
-    let sources: Vec<String> = s.species.iter().map(|t| format!("{}: {}", t.species.resolved.label, t.species.resolved.source_line(table))).collect();
+    let sources: Vec<String> = s
+        .species
+        .iter()
+        .map(|t| format!("{}: {}", t.species.resolved.label, t.species.resolved.source_line(table)))
+        .collect();
     row.species_sources = Some(sources.join(JOIN));
     row.notes = (!s.notes.is_empty()).then(|| s.notes.join(JOIN));
     let trends = s
@@ -192,7 +287,12 @@ pub fn cases_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
         col("case_id", rows.iter().map(|r| r.case_id.clone()).collect::<Vec<String>>()),
         col("route_id", s(|r| r.route_id.clone())),
         col("step", rows.iter().map(|r| r.step).collect::<Vec<Option<u32>>>()),
-        col("status", rows.iter().map(|r| (if r.ok { STATUS_OK } else { STATUS_ERROR }).to_string()).collect::<Vec<String>>()),
+        col(
+            "status",
+            rows.iter()
+                .map(|r| (if r.ok { STATUS_OK } else { STATUS_ERROR }).to_string())
+                .collect::<Vec<String>>(),
+        ),
         col("error_message", s(|r| r.error_message.clone())),
         col("balanced_equation", s(|r| r.balanced_equation.clone())),
         col("delta_h_298_kj_per_mol", n(|r| r.delta_h_298_kj_per_mol)),
@@ -202,7 +302,10 @@ pub fn cases_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
         col("delta_g_zero_k", n(|r| r.delta_g_zero_k)),
         col("delta_h_uncertainty_kj_per_mol", n(|r| r.delta_h_uncertainty_kj_per_mol)),
         col("estimated_species", rows.iter().map(|r| r.estimated_species).collect::<Vec<u32>>()),
-        col("all_points_in_valid_range", rows.iter().map(|r| r.all_points_in_valid_range).collect::<Vec<Option<bool>>>()),
+        col(
+            "all_points_in_valid_range",
+            rows.iter().map(|r| r.all_points_in_valid_range).collect::<Vec<Option<bool>>>(),
+        ),
         col("species_sources", s(|r| r.species_sources.clone())),
         col("notes", s(|r| r.notes.clone())),
         col("reaction", rows.iter().map(|r| r.reaction.clone()).collect::<Vec<String>>()),
@@ -212,6 +315,30 @@ pub fn cases_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
         columns.push(col(name, rows.iter().map(|r| r.conditions[i]).collect::<Vec<Option<f64>>>()));
     }
     columns.push(col("conditions_extra_json", s(|r| r.conditions_extra_json.clone())));
+    let pn = |f: fn(&ProcessColumns) -> Option<f64>| rows.iter().map(|r| f(&r.process)).collect::<Vec<Option<f64>>>();
+    let ps = |f: fn(&ProcessColumns) -> Option<String>| rows.iter().map(|r| f(&r.process)).collect::<Vec<Option<String>>>();
+    columns.extend([
+        col("process_temperature_used_k", pn(|p| p.process_temperature_k)),
+        col("reaction_mol_per_batch", pn(|p| p.reaction_mol_per_batch)),
+        col("log10_k_process", pn(|p| p.log10_k_process)),
+        col("equilibrium_conversion", pn(|p| p.equilibrium_conversion)),
+        col("heat_kj_per_mol", pn(|p| p.heat_kj_per_mol)),
+        col("heat_kj_per_kg", pn(|p| p.heat_kj_per_kg)),
+        col("heat_kj_per_batch", pn(|p| p.heat_kj_per_batch)),
+        col("adiabatic_rise_k", pn(|p| p.adiabatic_rise_k)),
+        col("mtsr_k", pn(|p| p.mtsr_k)),
+        col("severity", ps(|p| p.severity.clone())),
+        col(
+            "criticality_class",
+            rows.iter().map(|r| r.process.criticality_class).collect::<Vec<Option<u32>>>(),
+        ),
+        col("criticality_not_assessed", ps(|p| p.criticality_not_assessed.clone())),
+        col("gas_mol_per_batch", pn(|p| p.gas_mol_per_batch)),
+        col("gas_m3_at_0c_1atm", pn(|p| p.gas_m3_at_0c_1atm)),
+        col("cooling_margin_kw", pn(|p| p.cooling_margin_kw)),
+        col("assumed_inputs", ps(|p| p.assumed_inputs.clone())),
+        col("process_error", ps(|p| p.process_error.clone())),
+    ]);
     columns.push(col("input_row", rows.iter().map(|r| r.input_row).collect::<Vec<u64>>()));
     DataFrame::new(rows.len(), columns)
 }
@@ -248,8 +375,14 @@ pub fn routes_frame(rows: &[RouteRow]) -> PolarsResult<DataFrame> {
             col("steps", rows.iter().map(|r| r.steps).collect::<Vec<u32>>()),
             col("failed_steps", rows.iter().map(|r| r.failed_steps).collect::<Vec<u32>>()),
             col("rank", rows.iter().map(|r| r.rank).collect::<Vec<Option<u32>>>()),
-            col("total_delta_h_298_kj_per_mol", rows.iter().map(|r| r.total_delta_h_298_kj_per_mol).collect::<Vec<Option<f64>>>()),
-            col("first_error", rows.iter().map(|r| r.first_error.clone()).collect::<Vec<Option<String>>>()),
+            col(
+                "total_delta_h_298_kj_per_mol",
+                rows.iter().map(|r| r.total_delta_h_298_kj_per_mol).collect::<Vec<Option<f64>>>(),
+            ),
+            col(
+                "first_error",
+                rows.iter().map(|r| r.first_error.clone()).collect::<Vec<Option<String>>>(),
+            ),
         ],
     )
 }

@@ -65,15 +65,29 @@ pub struct WorkerStats {
 }
 
 enum Job {
-    Chunk { spec: Arc<BatchSpec>, chunk: Chunk, dead_reason: Option<String>, reply: oneshot::Sender<Result<ChunkReport, WorkerError>> },
-    Finalize { spec: Arc<BatchSpec>, progress: Progress, reply: oneshot::Sender<Result<Manifest, WorkerError>> },
+    Chunk {
+        spec: Arc<BatchSpec>,
+        chunk: Chunk,
+        dead_reason: Option<String>,
+        reply: oneshot::Sender<Result<ChunkReport, WorkerError>>,
+    },
+    Finalize {
+        spec: Arc<BatchSpec>,
+        progress: Progress,
+        reply: oneshot::Sender<Result<Manifest, WorkerError>>,
+    },
 }
 
 /// Compute a chunk and write its parts; returns what to report.
 ///
 /// # Errors
 /// I/O and Polars errors writing the parts.
-pub fn commit_chunk(results_dir: &Path, processor: &mut ChunkProcessor, spec: &BatchSpec, chunk: &Chunk) -> Result<ChunkReport, WorkerError> {
+pub fn commit_chunk(
+    results_dir: &Path,
+    processor: &mut ChunkProcessor,
+    spec: &BatchSpec,
+    chunk: &Chunk,
+) -> Result<ChunkReport, WorkerError> {
     let (cases, trends) = processor.screen_cases(spec, &chunk.cases);
     write_parts(results_dir, spec, chunk.seq, &cases, &trends, false)
 }
@@ -87,24 +101,54 @@ pub fn commit_dead_chunk(results_dir: &Path, spec: &BatchSpec, chunk: &Chunk, re
     let cases: Vec<rows::CaseRow> = chunk
         .cases
         .iter()
-        .map(|c| build_rows(c, &c.conditions.or_defaults(&spec.default_conditions), Err(reason.to_string()), table).0)
+        .map(|c| {
+            build_rows(
+                c,
+                &c.conditions.or_defaults(&spec.default_conditions),
+                Err(reason.to_string()),
+                table,
+            )
+            .0
+        })
         .collect();
     write_parts(results_dir, spec, chunk.seq, &cases, &[], true)
 }
 
-fn write_parts(results_dir: &Path, spec: &BatchSpec, seq: u64, cases: &[rows::CaseRow], trends: &[rows::TrendRow], dead: bool) -> Result<ChunkReport, WorkerError> {
+fn write_parts(
+    results_dir: &Path,
+    spec: &BatchSpec,
+    seq: u64,
+    cases: &[rows::CaseRow],
+    trends: &[rows::TrendRow],
+    dead: bool,
+) -> Result<ChunkReport, WorkerError> {
     let errors = cases.iter().filter(|r| !r.ok).count() as u64;
     // Trends first: the cases part is what the finalizer checks for, so it lands last.
-    write_part(&part_path(results_dir, &spec.batch_id, "trends", seq)?, &mut rows::trends_frame(trends)?)?;
-    write_part(&part_path(results_dir, &spec.batch_id, "cases", seq)?, &mut rows::cases_frame(cases)?)?;
-    Ok(ChunkReport { cases: cases.len() as u64, errors, dead_lettered: dead })
+    write_part(
+        &part_path(results_dir, &spec.batch_id, "trends", seq)?,
+        &mut rows::trends_frame(trends)?,
+    )?;
+    write_part(
+        &part_path(results_dir, &spec.batch_id, "cases", seq)?,
+        &mut rows::cases_frame(cases)?,
+    )?;
+    Ok(ChunkReport {
+        cases: cases.len() as u64,
+        errors,
+        dead_lettered: dead,
+    })
 }
 
 fn engine_thread(results_dir: PathBuf, keep_parts: bool, jobs: std::sync::mpsc::Receiver<Job>) {
     let mut processor = ChunkProcessor::new();
     while let Ok(job) = jobs.recv() {
         match job {
-            Job::Chunk { spec, chunk, dead_reason, reply } => {
+            Job::Chunk {
+                spec,
+                chunk,
+                dead_reason,
+                reply,
+            } => {
                 let r = match dead_reason {
                     Some(reason) => commit_dead_chunk(&results_dir, &spec, &chunk, &reason),
                     None => commit_chunk(&results_dir, &mut processor, &spec, &chunk),
@@ -123,7 +167,11 @@ fn engine_thread(results_dir: PathBuf, keep_parts: bool, jobs: std::sync::mpsc::
 /// # Errors
 /// `WorkerError::Spawn` when an engine thread cannot start. Queue errors while running are
 /// logged and retried, not returned: a worker outlives a Redis restart.
-pub async fn run(queue: Arc<dyn Queue>, cfg: WorkerConfig, shutdown: impl Future<Output = ()> + Send + 'static) -> Result<WorkerStats, WorkerError> {
+pub async fn run(
+    queue: Arc<dyn Queue>,
+    cfg: WorkerConfig,
+    shutdown: impl Future<Output = ()> + Send + 'static,
+) -> Result<WorkerStats, WorkerError> {
     let (stop_tx, stop_rx) = watch::channel(false);
     tokio::spawn(async move {
         shutdown.await;
@@ -134,9 +182,19 @@ pub async fn run(queue: Arc<dyn Queue>, cfg: WorkerConfig, shutdown: impl Future
     for i in 0..cfg.threads.max(1) {
         let (tx, rx) = std::sync::mpsc::channel::<Job>();
         let (dir, keep) = (cfg.results_dir.clone(), cfg.keep_parts);
-        let t = std::thread::Builder::new().name(format!("engine-{i}")).spawn(move || engine_thread(dir, keep, rx)).map_err(WorkerError::Spawn)?;
+        let t = std::thread::Builder::new()
+            .name(format!("engine-{i}"))
+            .spawn(move || engine_thread(dir, keep, rx))
+            .map_err(WorkerError::Spawn)?;
         threads.push(t);
-        let slot = Slot { queue: queue.clone(), cfg: cfg.clone(), consumer: format!("{}-{i}", cfg.consumer), jobs: tx, specs: HashMap::new(), stats: WorkerStats::default() };
+        let slot = Slot {
+            queue: queue.clone(),
+            cfg: cfg.clone(),
+            consumer: format!("{}-{i}", cfg.consumer),
+            jobs: tx,
+            specs: HashMap::new(),
+            stats: WorkerStats::default(),
+        };
         slots.push(tokio::spawn(slot.run(stop_rx.clone())));
     }
     let mut stats = WorkerStats::default();
@@ -210,7 +268,9 @@ impl Slot {
         if let Some(s) = self.specs.get(batch_id) {
             return Ok(Some(s.clone()));
         }
-        let Some(spec) = self.queue.batch_spec(batch_id).await? else { return Ok(None) };
+        let Some(spec) = self.queue.batch_spec(batch_id).await? else {
+            return Ok(None);
+        };
         if self.specs.len() > 64 {
             self.specs.clear();
         }
@@ -247,7 +307,14 @@ impl Slot {
                 }
                 let (reply, rx) = oneshot::channel();
                 let seq = chunk.seq;
-                self.jobs.send(Job::Chunk { spec, chunk: chunk.clone(), dead_reason, reply }).map_err(|_| WorkerError::EngineGone)?;
+                self.jobs
+                    .send(Job::Chunk {
+                        spec,
+                        chunk: chunk.clone(),
+                        dead_reason,
+                        reply,
+                    })
+                    .map_err(|_| WorkerError::EngineGone)?;
                 let report = rx.await.map_err(|_| WorkerError::EngineGone)??;
                 self.queue.complete_chunk(&d, seq, report).await?;
                 self.stats.chunks += 1;
@@ -257,7 +324,9 @@ impl Slot {
             }
             Task::Finalize { .. } => {
                 let (reply, rx) = oneshot::channel();
-                self.jobs.send(Job::Finalize { spec, progress, reply }).map_err(|_| WorkerError::EngineGone)?;
+                self.jobs
+                    .send(Job::Finalize { spec, progress, reply })
+                    .map_err(|_| WorkerError::EngineGone)?;
                 let outcome = match rx.await.map_err(|_| WorkerError::EngineGone)? {
                     Ok(m) => {
                         tracing::info!(batch_id = %batch_id, cases = m.counts.cases, errors = m.counts.cases_error, routes = m.counts.routes, seconds = m.timings.elapsed_seconds, "batch tables written");

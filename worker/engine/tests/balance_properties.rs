@@ -62,7 +62,7 @@ proptest! {
 
 #[test]
 fn known_reactions_balance_and_conserve() {
-    // Textbook equations (any general-chemistry text): the unique smallest-integer answers.
+    // Standard redox and combustion equations: their unique smallest-integer answers (checked by hand: each element and the charge sum to zero).
     let cases: [(&[&str], &[&str], &[i128]); 3] = [
         (&["C2H6", "O2"], &["CO2", "H2O"], &[2, 7, 4, 6]),
         (&["Cu", "HNO3"], &["Cu(NO3)2", "NO", "H2O"], &[3, 8, 3, 2, 4]),

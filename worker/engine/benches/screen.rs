@@ -6,7 +6,7 @@ use criterion::{criterion_group, criterion_main, Criterion, Throughput};
 use std::hint::black_box;
 use thermosieve_engine::{species, Screener, TemperatureGrid};
 
-include!("reactions.rs");
+include!("shared/reactions.rs");
 
 fn bench(c: &mut Criterion) {
     let table = species::bundled();

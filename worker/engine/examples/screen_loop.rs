@@ -4,7 +4,7 @@
 use std::hint::black_box;
 use thermosieve_engine::{species, Screener, TemperatureGrid};
 
-include!("../benches/reactions.rs");
+include!("../benches/shared/reactions.rs");
 
 fn main() {
     let n: usize = std::env::args().nth(1).and_then(|a| a.parse().ok()).unwrap_or(10_000);

@@ -34,6 +34,7 @@ pub mod smiles;
 pub mod species;
 pub mod structures;
 pub mod thermo;
+mod tsv;
 
 pub use process::{evaluate as evaluate_process, CaseProcess, ProcessConditions, ProcessError};
 pub use routes::{roll_up, RouteStep, RouteSummary};

@@ -334,29 +334,11 @@ pub fn bundled() -> &'static Table {
 
 /// Append the records of one table in the `nasa_species.tsv` layout.
 fn parse_records(tsv: &str, source_name: &str, records: &mut Vec<Record>, provenance: &mut String) -> Result<(), String> {
-    let mut header: Option<Vec<&str>> = None;
-    for (i, line) in tsv.lines().enumerate() {
-        if let Some(c) = line.strip_prefix('#') {
-            provenance.push_str(c.trim());
-            provenance.push('\n');
-            continue;
-        }
-        if line.trim().is_empty() {
-            continue;
-        }
-        let f: Vec<&str> = line.split('\t').collect();
-        let Some(h) = &header else {
-            header = Some(f);
-            continue;
-        };
-        let col = |name: &str| -> Result<&str, String> {
-            let k = h
-                .iter()
-                .position(|c| *c == name)
-                .ok_or_else(|| format!("{source_name}: no column {name}"))?;
-            f.get(k).copied().ok_or_else(|| format!("line {}: missing {name}", i + 1))
-        };
-        let err = |what: &str| format!("{source_name}: species table line {}: {what}", i + 1);
+    let table = crate::tsv::read(tsv, source_name);
+    provenance.push_str(&table.comments);
+    for row in table.rows() {
+        let col = |name: &str| row.get(name);
+        let err = |what: &str| row.error(what);
         let phase = match col("phase")? {
             "g" => Phase::Gas,
             "l" => Phase::Liquid,
@@ -424,30 +406,12 @@ fn parse_records(tsv: &str, source_name: &str, records: &mut Vec<Record>, proven
 
 /// Set ΔfH° uncertainties from an overlay keyed by record name.
 fn apply_uncertainties(tsv: &str, records: &mut [Record], provenance: &mut String) -> Result<(), String> {
-    let mut header: Option<Vec<&str>> = None;
     let by_name: HashMap<String, usize> = records.iter().enumerate().map(|(k, r)| (r.name.clone(), k)).collect();
-    for (i, line) in tsv.lines().enumerate() {
-        if let Some(c) = line.strip_prefix('#') {
-            provenance.push_str(c.trim());
-            provenance.push('\n');
-            continue;
-        }
-        if line.trim().is_empty() {
-            continue;
-        }
-        let f: Vec<&str> = line.split('\t').collect();
-        let Some(h) = &header else {
-            header = Some(f);
-            continue;
-        };
-        let col = |name: &str| h.iter().position(|c| *c == name).and_then(|k| f.get(k).copied());
-        let (Some(name), Some(u)) = (col("name"), col("atct_uncertainty_kj_per_mol")) else {
-            return Err(format!(
-                "uncertainty overlay line {}: needs name and atct_uncertainty_kj_per_mol",
-                i + 1
-            ));
-        };
-        let u: f64 = u.parse().map_err(|_| format!("uncertainty overlay line {}: bad number", i + 1))?;
+    let table = crate::tsv::read(tsv, "uncertainty overlay");
+    provenance.push_str(&table.comments);
+    for row in table.rows() {
+        let (name, u) = (row.get("name")?, row.get("atct_uncertainty_kj_per_mol")?);
+        let u: f64 = u.parse().map_err(|_| row.error("bad number"))?;
         if let Some(&k) = by_name.get(name) {
             records[k].dhf_uncertainty_kj_per_mol = Some(u);
         }

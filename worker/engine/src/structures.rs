@@ -84,35 +84,14 @@ impl Structures {
     /// # Errors
     /// A message naming the line for a row that does not parse.
     pub fn from_tsv(tsv: &str) -> Result<Structures, String> {
-        let mut provenance = String::new();
-        let mut header: Option<Vec<&str>> = None;
+        let table = crate::tsv::read(tsv, "structures.tsv");
+        let provenance = table.comments.clone();
         let mut by_key: HashMap<String, Vec<String>> = HashMap::new();
         let mut named = HashMap::new();
-        for (i, line) in tsv.lines().enumerate() {
-            if let Some(c) = line.strip_prefix('#') {
-                provenance.push_str(c.trim());
-                provenance.push('\n');
-                continue;
-            }
-            if line.trim().is_empty() {
-                continue;
-            }
-            let f: Vec<&str> = line.split('\t').collect();
-            let Some(h) = &header else {
-                header = Some(f);
-                continue;
-            };
-            let col = |name: &str| -> Result<&str, String> {
-                let k = h
-                    .iter()
-                    .position(|c| *c == name)
-                    .ok_or_else(|| format!("structures.tsv: no column {name}"))?;
-                f.get(k)
-                    .copied()
-                    .ok_or_else(|| format!("structures.tsv line {}: missing {name}", i + 1))
-            };
+        for row in table.rows() {
+            let col = |name: &str| row.get(name);
             let (name, smiles) = (col("name")?, col("smiles")?);
-            let m = Molecule::parse(smiles, 0).map_err(|e| format!("structures.tsv line {}: {e}", i + 1))?;
+            let m = Molecule::parse(smiles, 0).map_err(|e| row.error(&e.to_string()))?;
             let key = m.canonical_key();
             by_key.entry(key.clone()).or_default().push(name.to_string());
             named.insert(name.to_string(), key);

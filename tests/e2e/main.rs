@@ -111,6 +111,7 @@ async fn embedded_run_on_demo_data_gives_every_case_once_with_the_engines_values
     assert_eq!(routes.height(), 380);
     let ranks = routes.column("rank").unwrap().u32().unwrap().clone();
     assert_eq!(ranks.get(0), Some(1));
+    routes_are_the_engines_roll_up(&routes, &input);
 
     let batch = std::fs::read_dir(dir.path()).unwrap().next().unwrap().unwrap().path();
     let md: HashMap<String, String> = table_metadata(&batch.join("cases.parquet")).into_iter().collect();
@@ -124,6 +125,69 @@ async fn embedded_run_on_demo_data_gives_every_case_once_with_the_engines_values
     let manifest: serde_json::Value = serde_json::from_slice(&std::fs::read(batch.join("manifest.json")).unwrap()).unwrap();
     assert_eq!(manifest["counts"]["cases"], 2017);
     assert!(!batch.join("parts").exists(), "part files are removed after finalizing");
+}
+
+/// The routes table, read back, against the engine's own roll-up of the same cases (screened and
+/// evaluated here, not through the worker's rows).
+fn routes_are_the_engines_roll_up(routes: &DataFrame, input: &[thermosieve_queue::CaseInput]) {
+    use thermosieve_engine::routes::{roll_up, RouteStep, StepFacts};
+    let mut screener = Screener::new(species::bundled(), TemperatureGrid::default_process());
+    let defaults = thermosieve_queue::Conditions::default();
+    let results: Vec<Result<StepFacts, String>> = input
+        .iter()
+        .map(|c| {
+            if let Some(e) = &c.input_error {
+                return Err(e.clone());
+            }
+            let s = screener.screen(&c.reaction).map_err(|e| e.to_string())?;
+            let conditions = thermosieve_worker::rows::process_conditions(&c.conditions.or_defaults(&defaults));
+            let p = thermosieve_engine::process::evaluate(&s, &conditions).map_err(|e| e.to_string())?;
+            Ok(StepFacts::from(&p))
+        })
+        .collect();
+    let steps: Vec<RouteStep> = input
+        .iter()
+        .zip(&results)
+        .filter_map(|(c, r)| {
+            Some(RouteStep {
+                case_id: &c.case_id,
+                route_id: c.route_id.as_deref()?,
+                step: i64::from(c.step.unwrap_or(0)),
+                result: r.clone().map_err(|_| "failed"),
+            })
+        })
+        .collect();
+    let want = roll_up(&steps);
+    assert_eq!(routes.height(), want.len());
+    let ids = strings(routes, "route_id");
+    let ranks = routes.column("rank").unwrap().u32().unwrap().clone();
+    let failed = routes.column("failed_steps").unwrap().u32().unwrap().clone();
+    let class = routes.column("worst_criticality_class").unwrap().u32().unwrap().clone();
+    let rise = floats(routes, "worst_adiabatic_rise_k");
+    let heat = floats(routes, "total_heat_kj_per_batch");
+    let gas = floats(routes, "total_gas_mol_per_batch");
+    let flagged = strings(routes, "flagged_steps");
+    let close = |a: Option<f64>, b: Option<f64>| match (a, b) {
+        (Some(a), Some(b)) => (a - b).abs() <= 1e-9 * a.abs().max(1.0),
+        (a, b) => a == b,
+    };
+    for (i, w) in want.iter().enumerate() {
+        let id = &w.route_id;
+        assert_eq!(ids[i].as_deref(), Some(id.as_str()), "rank order at row {i}");
+        assert_eq!(ranks.get(i), Some(w.rank as u32), "{id}");
+        assert_eq!(failed.get(i), Some(w.failed_steps as u32), "{id}");
+        assert_eq!(class.get(i), w.worst_class.as_ref().map(|c| u32::from(c.value.number())), "{id}");
+        assert!(
+            close(rise[i], w.worst_adiabatic_rise_k.as_ref().map(|r| r.value)),
+            "{id}: {:?}",
+            rise[i]
+        );
+        assert!(close(heat[i], w.total_heat_kj), "{id}: {:?} vs {:?}", heat[i], w.total_heat_kj);
+        assert!(close(gas[i], w.total_gas_mol), "{id}");
+        assert_eq!(flagged[i].is_some(), !w.flagged_steps.is_empty(), "{id}");
+    }
+    assert!(want.iter().any(|w| w.failed.is_some()), "the demo's bad rows fail their routes");
+    assert!(want.iter().any(|w| w.worst_class.is_some()), "the demo has assessed classes");
 }
 
 struct Service {

@@ -121,17 +121,22 @@ impl SpeciesSpec {
     pub fn charge(&self) -> i32 {
         self.formula.as_ref().map_or(0, |f| f.charge)
     }
-}
 
-impl fmt::Display for SpeciesSpec {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+    /// The written text with its charge, without phase or form tags: `NH4+`, `SO4-2`, `Ca(OH)2`.
+    pub fn text_with_charge(&self) -> String {
         let mut s = self.text.clone();
         if self.text != "e" {
             push_charge(&mut s, self.charge());
         } else {
             s.push('-');
         }
-        f.write_str(&s)?;
+        s
+    }
+}
+
+impl fmt::Display for SpeciesSpec {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.text_with_charge())?;
         match (self.phase, &self.form) {
             (_, Some(form)) if form == "gr" => write!(f, "(gr)"),
             (Some(p), Some(form)) => write!(f, "({},{})", p.tag(), form),

@@ -370,6 +370,12 @@ impl CriticalityClass {
         self as u8
     }
 
+    /// The class with this number (1 to 5), as tables store it.
+    pub fn from_number(n: u8) -> Option<CriticalityClass> {
+        use CriticalityClass::*;
+        [Class1, Class2, Class3, Class4, Class5].into_iter().find(|c| c.number() == n)
+    }
+
     pub fn describe(self) -> &'static str {
         match self {
             CriticalityClass::Class1 => "class 1: MTT not reached, decomposition not triggered",

@@ -18,14 +18,56 @@ use crate::CAUTION;
 use std::cmp::Ordering;
 use std::collections::BTreeMap;
 
+/// The score in one sentence, for tables and reports that show a rank.
+pub const RANK_NOTE: &str = "rank 1 is the least hazardous route of the batch: routes are ordered by whether a step \
+failed (failed routes last), then the worst criticality class over the steps (a step whose class was not assessed \
+counts as worse than class 5), then the worst adiabatic temperature rise, then the total heat per batch, then \
+route_id. It orders candidates for a closer look; it is not a safety assessment.";
+
+/// What the roll-up needs of one step's process view: a few numbers, so a caller that keeps
+/// only table columns (the service's finalizer) can rebuild it without the full [`CaseProcess`].
+#[derive(Clone, Debug, PartialEq)]
+pub struct StepFacts {
+    pub heat_kj_per_batch: f64,
+    pub adiabatic_rise_k: f64,
+    /// `None` when the class was not assessed (missing MTT or T_D24).
+    pub class: Option<CriticalityClass>,
+    /// False when a species is outside its data's range, or past its boiling or melting point,
+    /// at the process temperature.
+    pub in_valid_range: bool,
+    /// Labels of the species whose data were estimated.
+    pub estimated_species: Vec<String>,
+    pub gas_mol_per_batch: f64,
+    pub gas_m3_at_stp: f64,
+    pub scale: Scale,
+    /// Moles of reaction per batch.
+    pub reaction_mol: f64,
+}
+
+impl From<&CaseProcess> for StepFacts {
+    fn from(p: &CaseProcess) -> StepFacts {
+        StepFacts {
+            heat_kj_per_batch: p.heat.heat_kj_per_batch,
+            adiabatic_rise_k: p.heat.adiabatic_rise_k,
+            class: p.criticality.value().map(|c| c.class),
+            in_valid_range: p.heat.in_valid_range,
+            estimated_species: p.estimated_species.clone(),
+            gas_mol_per_batch: p.gas.gas_mol_per_batch,
+            gas_m3_at_stp: p.gas.gas_m3_at_stp,
+            scale: p.conditions.scale.clone(),
+            reaction_mol: p.conditions.reaction_mol,
+        }
+    }
+}
+
 /// One case as the roll-up sees it.
-#[derive(Clone, Copy, Debug)]
+#[derive(Clone, Debug)]
 pub struct RouteStep<'a> {
     pub case_id: &'a str,
     pub route_id: &'a str,
     pub step: i64,
     /// The case's process view, or its error message.
-    pub result: Result<&'a CaseProcess, &'a str>,
+    pub result: Result<StepFacts, &'a str>,
 }
 
 /// A step singled out by the roll-up.
@@ -63,6 +105,8 @@ pub struct RouteSummary {
     pub case_ids: Vec<String>,
     /// The first failed step (in step order), with its error message.
     pub failed: Option<StepValue<String>>,
+    /// How many steps failed.
+    pub failed_steps: usize,
     /// Sum of Q per batch over the steps, kJ; `None` when a step failed.
     pub total_heat_kj: Option<f64>,
     pub heat_per_final_product: Option<HeatPerProduct>,
@@ -90,46 +134,89 @@ pub fn roll_up(steps: &[RouteStep]) -> Vec<RouteSummary> {
     for s in steps.iter().filter(|s| !s.route_id.is_empty()) {
         by_route.entry(s.route_id).or_default().push(s);
     }
-    let mut summaries: Vec<(ScoreKey, RouteSummary)> = by_route
-        .into_iter()
-        .map(|(id, mut route)| {
-            route.sort_by(|a, b| a.step.cmp(&b.step).then_with(|| a.case_id.cmp(b.case_id)));
-            roll_up_route(id, &route)
-        })
-        .collect();
-    summaries.sort_by(|a, b| a.0.cmp(&b.0));
+    let mut summaries: Vec<RouteSummary> = by_route.into_iter().map(|(id, route)| summarise(id, route)).collect();
+    rank(&mut summaries);
     summaries
-        .into_iter()
-        .enumerate()
-        .map(|(i, (_, mut s))| {
-            s.rank = i + 1;
-            s
-        })
-        .collect()
 }
 
-/// Orders routes: failed last, then worst class (not assessed = 6), worst ΔT_ad, total heat, id.
-#[derive(Debug)]
-struct ScoreKey {
-    failed: bool,
-    class: u8,
-    worst_rise_k: f64,
-    total_heat_kj: f64,
-    route_id: String,
-}
-
-impl ScoreKey {
-    fn cmp(&self, o: &ScoreKey) -> Ordering {
-        self.failed
-            .cmp(&o.failed)
-            .then(self.class.cmp(&o.class))
-            .then(self.worst_rise_k.total_cmp(&o.worst_rise_k))
-            .then(self.total_heat_kj.total_cmp(&o.total_heat_kj))
-            .then_with(|| self.route_id.cmp(&o.route_id))
+/// Sort `summaries` by the module's score and number them from 1. For a caller that rolls up
+/// routes a few at a time (with [`summarise`]) and ranks them all at the end.
+pub fn rank(summaries: &mut [RouteSummary]) {
+    summaries.sort_by(|a, b| a.score_cmp(b));
+    for (i, s) in summaries.iter_mut().enumerate() {
+        s.rank = i + 1;
     }
 }
 
-fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> (ScoreKey, RouteSummary) {
+/// Roll up one route's steps (any order; they are sorted by step, then case id). The rank is
+/// left at 0 for [`rank`] to set.
+pub fn summarise(route_id: &str, mut route: Vec<&RouteStep>) -> RouteSummary {
+    route.sort_by(|a, b| a.step.cmp(&b.step).then_with(|| a.case_id.cmp(b.case_id)));
+    roll_up_route(route_id, &route)
+}
+
+impl RouteSummary {
+    /// The module's score, as an order (less is better).
+    pub fn score_cmp(&self, o: &RouteSummary) -> Ordering {
+        let class = |s: &RouteSummary| {
+            if s.class_not_assessed.is_empty() {
+                s.worst_class.as_ref().map_or(6, |w| w.value.number())
+            } else {
+                6
+            }
+        };
+        let rise = |s: &RouteSummary| s.worst_adiabatic_rise_k.as_ref().map_or(f64::INFINITY, |w| w.value);
+        let heat = |s: &RouteSummary| s.total_heat_kj.unwrap_or(f64::INFINITY);
+        self.failed
+            .is_some()
+            .cmp(&o.failed.is_some())
+            .then(class(self).cmp(&class(o)))
+            .then(rise(self).total_cmp(&rise(o)))
+            .then(heat(self).total_cmp(&heat(o)))
+            .then_with(|| self.route_id.cmp(&o.route_id))
+    }
+
+    /// Fold in more steps of the same route that were rolled up apart (`later`, whose steps came
+    /// after this summary's in the input). Worst values and counts combine as over the whole
+    /// route; totals stay only when neither part failed. Heat per final product is dropped, with
+    /// a note: which part holds the final step is not known here.
+    pub fn merge(&mut self, later: RouteSummary) {
+        let keep_own_failure = match (&self.failed, &later.failed) {
+            (Some(a), Some(b)) => a.step <= b.step,
+            (Some(_), None) => true,
+            (None, _) => false,
+        };
+        if !keep_own_failure {
+            self.failed = later.failed;
+        }
+        self.failed_steps += later.failed_steps;
+        let complete = self.failed.is_none();
+        let sum = |a: Option<f64>, b: Option<f64>| complete.then(|| a.unwrap_or(0.0) + b.unwrap_or(0.0));
+        self.total_heat_kj = sum(self.total_heat_kj, later.total_heat_kj);
+        self.total_gas_mol = sum(self.total_gas_mol, later.total_gas_mol);
+        self.total_gas_m3_at_stp = sum(self.total_gas_m3_at_stp, later.total_gas_m3_at_stp);
+        if self.heat_per_final_product.take().is_some() || later.heat_per_final_product.is_some() {
+            self.notes
+                .push("heat per final product not computed: the route's steps were rolled up in parts".to_string());
+        }
+        if let Some(w) = later.worst_adiabatic_rise_k {
+            if self.worst_adiabatic_rise_k.as_ref().is_none_or(|v| w.value > v.value) {
+                self.worst_adiabatic_rise_k = Some(w);
+            }
+        }
+        if let Some(w) = later.worst_class {
+            if self.worst_class.as_ref().is_none_or(|v| w.value > v.value) {
+                self.worst_class = Some(w);
+            }
+        }
+        self.case_ids.extend(later.case_ids);
+        self.class_not_assessed.extend(later.class_not_assessed);
+        self.flagged_steps.extend(later.flagged_steps);
+        self.notes.extend(later.notes);
+    }
+}
+
+fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> RouteSummary {
     let mut notes = Vec::new();
     for w in route.windows(2) {
         if w[0].step == w[1].step {
@@ -144,14 +231,15 @@ fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> (ScoreKey, RouteSummar
         }),
         Ok(_) => None,
     });
-    let ok: Vec<(&RouteStep, &CaseProcess)> = route.iter().filter_map(|s| s.result.ok().map(|p| (*s, p))).collect();
+    let failed_steps = route.iter().filter(|s| s.result.is_err()).count();
+    let ok: Vec<(&RouteStep, &StepFacts)> = route.iter().filter_map(|s| s.result.as_ref().ok().map(|p| (*s, p))).collect();
 
     let mut worst_rise: Option<StepValue<f64>> = None;
     let mut worst_class: Option<StepValue<CriticalityClass>> = None;
     let mut class_not_assessed = Vec::new();
     let mut flagged_steps = Vec::new();
     for (s, p) in &ok {
-        let rise = p.heat.adiabatic_rise_k;
+        let rise = p.adiabatic_rise_k;
         if worst_rise.as_ref().is_none_or(|w| rise > w.value) {
             worst_rise = Some(StepValue {
                 case_id: s.case_id.to_string(),
@@ -160,22 +248,22 @@ fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> (ScoreKey, RouteSummar
             });
         }
         let mut reasons = Vec::new();
-        match p.criticality.value() {
-            Some(c) => {
-                if worst_class.as_ref().is_none_or(|w| c.class > w.value) {
+        match p.class {
+            Some(class) => {
+                if worst_class.as_ref().is_none_or(|w| class > w.value) {
                     worst_class = Some(StepValue {
                         case_id: s.case_id.to_string(),
                         step: s.step,
-                        value: c.class,
+                        value: class,
                     });
                 }
-                if c.class >= CriticalityClass::Class3 {
-                    reasons.push(format!("criticality class {}", c.class.number()));
+                if class >= CriticalityClass::Class3 {
+                    reasons.push(format!("criticality class {}", class.number()));
                 }
             }
             None => class_not_assessed.push(s.case_id.to_string()),
         }
-        if !p.heat.in_valid_range {
+        if !p.in_valid_range {
             reasons.push("thermo data extrapolated, or a phase past its boiling or melting point, at the process temperature".to_string());
         }
         if !p.estimated_species.is_empty() {
@@ -191,36 +279,26 @@ fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> (ScoreKey, RouteSummar
     }
 
     let complete = failed.is_none();
-    let total_heat_kj = complete.then(|| ok.iter().map(|(_, p)| p.heat.heat_kj_per_batch).sum::<f64>());
-    let total_gas_mol = complete.then(|| ok.iter().map(|(_, p)| p.gas.gas_mol_per_batch).sum::<f64>());
-    let total_gas_m3_at_stp = complete.then(|| ok.iter().map(|(_, p)| p.gas.gas_m3_at_stp).sum::<f64>());
+    let total_heat_kj = complete.then(|| ok.iter().map(|(_, p)| p.heat_kj_per_batch).sum::<f64>());
+    let total_gas_mol = complete.then(|| ok.iter().map(|(_, p)| p.gas_mol_per_batch).sum::<f64>());
+    let total_gas_m3_at_stp = complete.then(|| ok.iter().map(|(_, p)| p.gas_m3_at_stp).sum::<f64>());
     let heat_per_final_product = match (total_heat_kj, ok.last()) {
-        (Some(q), Some((_, last))) => Some(match &last.conditions.scale {
+        (Some(q), Some((_, last))) => Some(match &last.scale {
             Scale::KgOfProduct { species, kg } => HeatPerProduct::KjPerKg {
                 species: species.clone(),
                 value: q / kg,
             },
-            Scale::MolOfReaction(_) => HeatPerProduct::KjPerMolOfFinalReaction(q / last.conditions.reaction_mol),
+            Scale::MolOfReaction(_) => HeatPerProduct::KjPerMolOfFinalReaction(q / last.reaction_mol),
         }),
         _ => None,
     };
 
-    let key = ScoreKey {
-        failed: !complete,
-        class: if class_not_assessed.is_empty() {
-            worst_class.as_ref().map_or(6, |w| w.value.number())
-        } else {
-            6
-        },
-        worst_rise_k: worst_rise.as_ref().map_or(f64::INFINITY, |w| w.value),
-        total_heat_kj: total_heat_kj.unwrap_or(f64::INFINITY),
-        route_id: route_id.to_string(),
-    };
-    let summary = RouteSummary {
+    RouteSummary {
         route_id: route_id.to_string(),
         rank: 0,
         case_ids: route.iter().map(|s| s.case_id.to_string()).collect(),
         failed,
+        failed_steps,
         total_heat_kj,
         heat_per_final_product,
         total_gas_mol,
@@ -231,6 +309,5 @@ fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> (ScoreKey, RouteSummar
         flagged_steps,
         notes,
         caution: CAUTION,
-    };
-    (key, summary)
+    }
 }

@@ -561,7 +561,21 @@ impl Table {
         }
         let mut ids: Vec<usize> = by_name.to_vec();
         if ids.is_empty() {
-            ids = self.by_formula(&formula.hill()).to_vec();
+            let same_formula = self.by_formula(&formula.hill());
+            // An isomer qualifier (`C7H14,methylcyclohexane`) names one compound: when no record
+            // has that name, another isomer with the formula is not a stand-in for it.
+            if spec.text.contains(',') {
+                let mut have: Vec<String> = same_formula.iter().map(|&k| self.records[k].name.clone()).collect();
+                have.sort();
+                have.dedup();
+                let hint = if have.is_empty() {
+                    " (no record has that name or formula)".to_string()
+                } else {
+                    format!(" (no record has that name; the records with its formula are {})", have.join(", "))
+                };
+                return Err(ResolveError::NotFound { species: shown, hint });
+            }
+            ids = same_formula.to_vec();
         }
         let all = ids.clone();
         ids.retain(|&k| {
@@ -666,19 +680,6 @@ impl Table {
             })
             .min_by(|a, b| a.0.total_cmp(&b.0))
             .map_or(Phase::Gas, |(_, p)| p)
-    }
-}
-
-impl SpeciesSpec {
-    /// The written text with its charge: `NH4+`, `SO4-2`.
-    pub fn text_with_charge(&self) -> String {
-        let mut s = self.to_string();
-        if let Some(k) = s.find('(') {
-            if self.formula.is_some() && k >= self.text.len() {
-                s.truncate(k);
-            }
-        }
-        s
     }
 }
 

@@ -33,6 +33,23 @@ fn isomers_and_several_solids_are_errors_that_name_the_candidates() {
 }
 
 #[test]
+fn an_isomer_qualifier_with_no_record_is_an_error_not_another_isomer() {
+    // C7H14 has one bundled record (1-heptene); methylcyclohexane is not bundled.
+    assert_eq!(resolve("C7H14(g)").unwrap().formula.hill(), "C7H14");
+    let e = resolve("C7H14,methylcyclohexane(g)").unwrap_err();
+    assert!(matches!(e, ResolveError::NotFound { .. }), "{e}");
+    assert!(e.to_string().contains("no record has that name"), "{e}");
+    assert!(resolve("C4H10,n-butane(g)").is_ok());
+}
+
+#[test]
+fn labels_carry_one_phase_tag_also_for_bracketed_formulas() {
+    assert_eq!(resolve("Ca(OH)2(s)").unwrap().label, "Ca(OH)2(s)");
+    assert_eq!(resolve("Ca(OH)2").unwrap().label, "Ca(OH)2(s)");
+    assert_eq!(resolve("NH4+").unwrap().label, "NH4+(g)");
+}
+
+#[test]
 fn untagged_species_take_the_stable_phase_at_298() {
     assert_eq!(resolve("H2O").unwrap().phase, Phase::Liquid);
     assert_eq!(resolve("CO2").unwrap().phase, Phase::Gas);

@@ -4,13 +4,14 @@
 //! stays at one part plus one small record per route, whatever the batch size.
 
 use crate::parts::{batch_dir, part_path, read_parquet, write_atomic};
-use crate::rows::{self, RouteRow, ROUTE_RANK_NOTE, STATUS_OK};
+use crate::rows::{self, STATUS_OK};
 use crate::WorkerError;
 use polars::prelude::*;
 use serde::Serialize;
 use std::collections::HashMap;
 use std::fs::File;
 use std::path::Path;
+use thermosieve_engine::routes::{rank, summarise, RouteStep, RouteSummary, RANK_NOTE};
 use thermosieve_engine::{elements, species, CAUTION, VERSION};
 use thermosieve_queue::{now_unix_ms, BatchSpec, Progress};
 
@@ -39,7 +40,7 @@ pub fn table_metadata(spec: &BatchSpec, table: &str) -> Vec<(String, String)> {
         ("thermosieve.caution".to_string(), CAUTION.to_string()),
     ];
     if table == ROUTES_FILE {
-        kv.push(("thermosieve.rank_note".to_string(), ROUTE_RANK_NOTE.to_string()));
+        kv.push(("thermosieve.rank_note".to_string(), RANK_NOTE.to_string()));
     }
     kv
 }
@@ -88,92 +89,47 @@ pub struct Timings {
     pub finalize_seconds: f64,
 }
 
-#[derive(Default)]
-struct RouteAcc {
-    steps: u32,
-    failed: u32,
-    total: f64,
-    any_ok: bool,
-    /// (step, input order, message) of the lowest failing step.
-    first_error: Option<(u32, u64, String)>,
-}
-
-/// Accumulates route rows while cases stream past.
+/// Route summaries built while cases stream past. The front keeps every step of a route in one
+/// chunk, so each part is rolled up on its own; a later row of an already closed route (an
+/// input error the front flagged) is merged into that route's summary.
 #[derive(Default)]
 struct Routes {
-    order: Vec<String>,
-    acc: HashMap<String, RouteAcc>,
-    seen: u64,
+    summaries: Vec<RouteSummary>,
+    index: HashMap<String, usize>,
 }
 
 impl Routes {
     fn add(&mut self, df: &DataFrame) -> Result<(), WorkerError> {
-        let route = df.column("route_id")?.str()?;
-        let step = df.column("step")?.u32()?;
-        let status = df.column("status")?.str()?;
-        let err = df.column("error_message")?.str()?;
-        let case = df.column("case_id")?.str()?;
-        let dh = df.column("delta_h_298_kj_per_mol")?.f64()?;
-        for i in 0..df.height() {
-            self.seen += 1;
-            let Some(r) = route.get(i) else { continue };
-            let a = match self.acc.get_mut(r) {
-                Some(a) => a,
+        let steps = rows::route_steps(df)?;
+        let mut order: Vec<&str> = Vec::new();
+        let mut by_route: HashMap<&str, Vec<&RouteStep>> = HashMap::new();
+        for s in &steps {
+            by_route
+                .entry(s.route_id)
+                .or_insert_with(|| {
+                    order.push(s.route_id);
+                    Vec::new()
+                })
+                .push(s);
+        }
+        for id in order {
+            let summary = summarise(id, by_route.remove(id).unwrap_or_default());
+            match self.index.get(id) {
+                Some(&i) => self.summaries[i].merge(summary),
                 None => {
-                    self.order.push(r.to_string());
-                    self.acc.entry(r.to_string()).or_default()
-                }
-            };
-            a.steps += 1;
-            if status.get(i) == Some(STATUS_OK) {
-                a.any_ok = true;
-                a.total += dh.get(i).unwrap_or(0.0);
-            } else {
-                a.failed += 1;
-                let s = step.get(i).unwrap_or(u32::MAX);
-                if a.first_error.as_ref().is_none_or(|(fs, fo, _)| (s, self.seen) < (*fs, *fo)) {
-                    let label = step.get(i).map_or("step ?".to_string(), |s| format!("step {s}"));
-                    a.first_error = Some((
-                        s,
-                        self.seen,
-                        format!("{label} (case {}): {}", case.get(i).unwrap_or(""), err.get(i).unwrap_or("")),
-                    ));
+                    self.index.insert(id.to_string(), self.summaries.len());
+                    self.summaries.push(summary);
                 }
             }
         }
         Ok(())
     }
 
-    /// Route rows ranked: ranked routes first by rank, then unranked ones in input order.
-    fn rows(mut self) -> Vec<RouteRow> {
-        let mut out: Vec<RouteRow> = self
-            .order
-            .iter()
-            .filter_map(|r| {
-                let a = self.acc.remove(r)?;
-                Some(RouteRow {
-                    route_id: r.clone(),
-                    steps: a.steps,
-                    failed_steps: a.failed,
-                    rank: None,
-                    total_delta_h_298_kj_per_mol: a.any_ok.then_some(a.total),
-                    first_error: a.first_error.map(|e| e.2),
-                })
-            })
-            .collect();
-        let mut ranked: Vec<usize> = (0..out.len()).filter(|&i| out[i].total_delta_h_298_kj_per_mol.is_some()).collect();
-        ranked.sort_by(|&a, &b| {
-            let (x, y) = (&out[a], &out[b]);
-            x.total_delta_h_298_kj_per_mol
-                .unwrap_or(0.0)
-                .total_cmp(&y.total_delta_h_298_kj_per_mol.unwrap_or(0.0))
-                .then_with(|| x.route_id.cmp(&y.route_id))
-        });
-        for (k, &i) in ranked.iter().enumerate() {
-            out[i].rank = Some(k as u32 + 1);
-        }
-        out.sort_by_key(|r| r.rank.unwrap_or(u32::MAX));
-        out
+    /// All routes in rank order.
+    fn ranked(mut self) -> Vec<RouteSummary> {
+        drop(self.index);
+        rank(&mut self.summaries);
+        self.summaries
     }
 }
 
@@ -247,7 +203,7 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
     })?;
     let empty_trends = rows::trends_frame(&[])?;
     let (trend_rows, trends_bytes) = concat_parts(results_dir, spec, "trends", TRENDS_FILE, chunks, &empty_trends, |_| Ok(()))?;
-    let route_rows = routes.rows();
+    let route_rows = routes.ranked();
     let mut routes_df = rows::routes_frame(&route_rows)?;
     let routes_path = dir.join(ROUTES_FILE);
     crate::parts::write_parquet(&routes_path, &mut routes_df, Some(table_metadata(spec, ROUTES_FILE)))?;
@@ -284,7 +240,7 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
                 bytes: routes_bytes,
             },
         ],
-        cautions: vec![CAUTION.to_string(), ROUTE_RANK_NOTE.to_string()],
+        cautions: vec![CAUTION.to_string(), RANK_NOTE.to_string()],
         timings: Timings {
             created_unix_ms: spec.created_unix_ms,
             finalize_started_unix_ms: started,

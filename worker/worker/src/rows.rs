@@ -7,7 +7,8 @@
 //! function: nothing else in the service changes.
 
 use polars::prelude::{Column, DataFrame, PolarsResult};
-use thermosieve_engine::process::{self, Assessment, CaseProcess, ProcessConditions, Scale};
+use thermosieve_engine::process::{self, Assessment, CaseProcess, CriticalityClass, ProcessConditions, Scale};
+use thermosieve_engine::routes::{HeatPerProduct, RouteStep, RouteSummary, StepFacts};
 use thermosieve_engine::{species::Table, ScreenError, Screened};
 use thermosieve_queue::{CaseInput, CONDITION_FIELDS};
 
@@ -70,13 +71,18 @@ pub struct ProcessColumns {
     pub cooling_margin_kw: Option<f64>,
     /// Defaults used for this case (common practice, not physics).
     pub assumed_inputs: Option<String>,
+    /// False when a species is outside its data, or past its boiling or melting point, at the
+    /// process temperature.
+    pub in_valid_range_at_process: Option<bool>,
+    /// Labels of the species whose data were estimated, joined with [`JOIN`].
+    pub estimated_species_labels: Option<String>,
     /// A process input that could not be used (the thermodynamics above still stand).
     pub process_error: Option<String>,
 }
 
 /// The engine's process inputs from a case's conditions. A dosing time of 0 is how tables write
 /// "all charged at once": it means batch, not an invalid semi-batch.
-fn process_conditions(c: &thermosieve_queue::Conditions) -> ProcessConditions {
+pub fn process_conditions(c: &thermosieve_queue::Conditions) -> ProcessConditions {
     let dosing = c.dosing_time_h.filter(|&h| h != 0.0);
     ProcessConditions {
         process_temperature_k: c.process_temperature_k,
@@ -118,6 +124,8 @@ fn process_columns(p: &CaseProcess) -> ProcessColumns {
         gas_m3_at_0c_1atm: Some(p.gas.gas_m3_at_stp),
         cooling_margin_kw: p.cooling.value().map(|c| c.margin_kw),
         assumed_inputs: (!p.assumed.is_empty()).then(|| p.assumed.join(JOIN)),
+        in_valid_range_at_process: Some(p.heat.in_valid_range),
+        estimated_species_labels: (!p.estimated_species.is_empty()).then(|| p.estimated_species.join(JOIN)),
         process_error: None,
     }
 }
@@ -133,26 +141,6 @@ pub struct TrendRow {
     pub log10_k: f64,
     pub in_valid_range: bool,
 }
-
-/// One row of `routes.parquet`.
-#[derive(Clone, Debug, PartialEq)]
-pub struct RouteRow {
-    pub route_id: String,
-    pub steps: u32,
-    pub failed_steps: u32,
-    /// Provisional rank (1 = best) by `total_delta_h_298_kj_per_mol`, most exothermic first;
-    /// `None` when no step is ok.
-    pub rank: Option<u32>,
-    /// Sum of ΔrH°(298.15 K) over the route's ok steps, kJ per mol of each step as balanced.
-    pub total_delta_h_298_kj_per_mol: Option<f64>,
-    /// `step N (case ID): message` of the lowest failing step.
-    pub first_error: Option<String>,
-}
-
-/// How route ranks are computed today, written beside the routes table.
-pub const ROUTE_RANK_NOTE: &str = "rank is provisional: routes are ordered by the sum of the standard reaction enthalpies \
-(298.15 K) of their ok steps, most exothermic first, ties by route_id; routes with no ok step have no rank. \
-The sum adds kJ per mole of each step as balanced, not per kg of product.";
 
 /// The message of an engine error for one case, naming the input row and column.
 pub fn engine_error_message(case: &CaseInput, e: &ScreenError) -> String {
@@ -337,6 +325,13 @@ pub fn cases_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
         col("gas_m3_at_0c_1atm", pn(|p| p.gas_m3_at_0c_1atm)),
         col("cooling_margin_kw", pn(|p| p.cooling_margin_kw)),
         col("assumed_inputs", ps(|p| p.assumed_inputs.clone())),
+        col(
+            "in_valid_range_at_process",
+            rows.iter()
+                .map(|r| r.process.in_valid_range_at_process)
+                .collect::<Vec<Option<bool>>>(),
+        ),
+        col("estimated_species_labels", ps(|p| p.estimated_species_labels.clone())),
         col("process_error", ps(|p| p.process_error.clone())),
     ]);
     columns.push(col("input_row", rows.iter().map(|r| r.input_row).collect::<Vec<u64>>()));
@@ -363,26 +358,138 @@ pub fn trends_frame(rows: &[TrendRow]) -> PolarsResult<DataFrame> {
     )
 }
 
-/// `routes.parquet` columns, in order.
+/// The roll-up inputs of the route steps in a cases frame: `(case_id, route_id, step, result)`
+/// per row that has a route. A step whose process view is missing (an input the engine could not
+/// use) counts as failed for the route, with that message: its heat is unknown.
+///
+/// # Errors
+/// Polars errors when a column is missing or of another type.
+pub fn route_steps(df: &DataFrame) -> PolarsResult<Vec<RouteStep<'_>>> {
+    let num = |name: &str| df.column(name).and_then(|c| c.f64().cloned());
+    let (case, route, status, error, process_error, estimated) = (
+        df.column("case_id")?.str()?,
+        df.column("route_id")?.str()?,
+        df.column("status")?.str()?,
+        df.column("error_message")?.str()?,
+        df.column("process_error")?.str()?,
+        df.column("estimated_species_labels")?.str()?,
+    );
+    let step = df.column("step")?.u32()?;
+    let class = df.column("criticality_class")?.u32()?;
+    let in_range = df.column("in_valid_range_at_process")?.bool()?;
+    let (heat, rise, gas_mol, gas_m3, mol) = (
+        num("heat_kj_per_batch")?,
+        num("adiabatic_rise_k")?,
+        num("gas_mol_per_batch")?,
+        num("gas_m3_at_0c_1atm")?,
+        num("reaction_mol_per_batch")?,
+    );
+    let mut out = Vec::new();
+    for i in 0..df.height() {
+        let Some(route_id) = route.get(i).filter(|r| !r.is_empty()) else {
+            continue;
+        };
+        let result = if status.get(i) != Some(STATUS_OK) {
+            Err(error.get(i).unwrap_or(""))
+        } else if let Some(m) = process_error.get(i) {
+            Err(m)
+        } else {
+            Ok(StepFacts {
+                heat_kj_per_batch: heat.get(i).unwrap_or(f64::NAN),
+                adiabatic_rise_k: rise.get(i).unwrap_or(f64::NAN),
+                class: class.get(i).and_then(|c| CriticalityClass::from_number(c as u8)),
+                in_valid_range: in_range.get(i).unwrap_or(false),
+                estimated_species: estimated
+                    .get(i)
+                    .map_or_else(Vec::new, |s| s.split(JOIN).map(String::from).collect()),
+                gas_mol_per_batch: gas_mol.get(i).unwrap_or(f64::NAN),
+                gas_m3_at_stp: gas_m3.get(i).unwrap_or(f64::NAN),
+                scale: Scale::MolOfReaction(mol.get(i).unwrap_or(f64::NAN)),
+                reaction_mol: mol.get(i).unwrap_or(f64::NAN),
+            })
+        };
+        out.push(RouteStep {
+            case_id: case.get(i).unwrap_or(""),
+            route_id,
+            step: i64::from(step.get(i).unwrap_or(0)),
+            result,
+        });
+    }
+    Ok(out)
+}
+
+/// `routes.parquet` columns, in order; `summaries` in rank order.
 ///
 /// # Errors
 /// Polars errors (not expected).
-pub fn routes_frame(rows: &[RouteRow]) -> PolarsResult<DataFrame> {
+pub fn routes_frame(summaries: &[RouteSummary]) -> PolarsResult<DataFrame> {
+    let s = |f: &dyn Fn(&RouteSummary) -> Option<String>| summaries.iter().map(f).collect::<Vec<Option<String>>>();
+    let n = |f: &dyn Fn(&RouteSummary) -> Option<f64>| summaries.iter().map(f).collect::<Vec<Option<f64>>>();
+    let joined = |v: &[String]| (!v.is_empty()).then(|| v.join(JOIN));
+    let per_kg = |r: &RouteSummary| match &r.heat_per_final_product {
+        Some(HeatPerProduct::KjPerKg { species, value }) => Some((species.clone(), *value)),
+        _ => None,
+    };
     DataFrame::new(
-        rows.len(),
+        summaries.len(),
         vec![
-            col("route_id", rows.iter().map(|r| r.route_id.clone()).collect::<Vec<String>>()),
-            col("steps", rows.iter().map(|r| r.steps).collect::<Vec<u32>>()),
-            col("failed_steps", rows.iter().map(|r| r.failed_steps).collect::<Vec<u32>>()),
-            col("rank", rows.iter().map(|r| r.rank).collect::<Vec<Option<u32>>>()),
+            col("route_id", summaries.iter().map(|r| r.route_id.clone()).collect::<Vec<String>>()),
+            col("rank", summaries.iter().map(|r| r.rank as u32).collect::<Vec<u32>>()),
+            col("steps", summaries.iter().map(|r| r.case_ids.len() as u32).collect::<Vec<u32>>()),
             col(
-                "total_delta_h_298_kj_per_mol",
-                rows.iter().map(|r| r.total_delta_h_298_kj_per_mol).collect::<Vec<Option<f64>>>(),
+                "failed_steps",
+                summaries.iter().map(|r| r.failed_steps as u32).collect::<Vec<u32>>(),
             ),
             col(
                 "first_error",
-                rows.iter().map(|r| r.first_error.clone()).collect::<Vec<Option<String>>>(),
+                s(&|r| {
+                    r.failed
+                        .as_ref()
+                        .map(|f| format!("step {} (case {}): {}", f.step, f.case_id, f.value))
+                }),
             ),
+            col(
+                "worst_criticality_class",
+                summaries
+                    .iter()
+                    .map(|r| r.worst_class.as_ref().map(|w| u32::from(w.value.number())))
+                    .collect::<Vec<Option<u32>>>(),
+            ),
+            col(
+                "worst_criticality_class_case_id",
+                s(&|r| r.worst_class.as_ref().map(|w| w.case_id.clone())),
+            ),
+            col("class_not_assessed_case_ids", s(&|r| joined(&r.class_not_assessed))),
+            col("worst_adiabatic_rise_k", n(&|r| r.worst_adiabatic_rise_k.as_ref().map(|w| w.value))),
+            col(
+                "worst_adiabatic_rise_case_id",
+                s(&|r| r.worst_adiabatic_rise_k.as_ref().map(|w| w.case_id.clone())),
+            ),
+            col("total_heat_kj_per_batch", n(&|r| r.total_heat_kj)),
+            col(
+                "heat_kj_per_mol_final_reaction",
+                n(&|r| match r.heat_per_final_product {
+                    Some(HeatPerProduct::KjPerMolOfFinalReaction(v)) => Some(v),
+                    _ => None,
+                }),
+            ),
+            col("heat_kj_per_kg_final_product", n(&|r| per_kg(r).map(|p| p.1))),
+            col("final_product", s(&|r| per_kg(r).map(|p| p.0))),
+            col("total_gas_mol_per_batch", n(&|r| r.total_gas_mol)),
+            col("total_gas_m3_at_0c_1atm", n(&|r| r.total_gas_m3_at_stp)),
+            col(
+                "flagged_steps",
+                s(&|r| {
+                    let f: Vec<String> = r
+                        .flagged_steps
+                        .iter()
+                        .map(|f| format!("step {} (case {}): {}", f.step, f.case_id, f.reasons.join("; ")))
+                        .collect();
+                    joined(&f)
+                }),
+            ),
+            col("notes", s(&|r| joined(&r.notes))),
+            col("case_ids", summaries.iter().map(|r| r.case_ids.join(JOIN)).collect::<Vec<String>>()),
         ],
     )
 }

@@ -198,6 +198,8 @@ async fn main() -> anyhow::Result<()> {
     if last.state != pb::BatchState::Done as i32 {
         bail!("batch ended in state {}: {}", last.state, last.message);
     }
+    let manifest: serde_json::Value = serde_json::from_slice(&std::fs::read(dir.join("results").join(&id).join("manifest.json"))?)?;
+    let finalize_s = manifest["timings"]["finalize_seconds"].as_f64().unwrap_or(f64::NAN);
     let front_kb = vm_hwm_kb(front.0.id());
     let worker_kb: Vec<u64> = workers.iter().map(|w| vm_hwm_kb(w.0.id())).collect();
     let e2e_rate = n as f64 / e2e_s;
@@ -208,6 +210,7 @@ async fn main() -> anyhow::Result<()> {
     println!("cases: {n} ({} errors), workers: {} x 1 thread", last.cases_error, a.workers);
     println!("submit stream finished after {submitted:.1} s");
     println!("end to end: {e2e_s:.1} s, {e2e_rate:.0} cases/s (front + redis + workers + parquet, finalize included)");
+    println!("  of which the finalizer (one worker, after the last chunk): {finalize_s:.1} s");
     println!("engine only ({} threads): {engine_rate:.0} cases/s", a.workers);
     println!("ratio e2e / engine: {:.2}", e2e_rate / engine_rate);
     println!(

@@ -109,8 +109,9 @@ async fn embedded_run_on_demo_data_gives_every_case_once_with_the_engines_values
     let ok = status.iter().filter(|s| s.as_deref() == Some("ok")).count();
     assert_eq!(trends.height(), ok * 15, "15 grid points per ok case");
     assert_eq!(routes.height(), 380);
-    let ranks = routes.column("rank").unwrap().u32().unwrap().clone();
-    assert_eq!(ranks.get(0), Some(1));
+    let mut ranks: Vec<u32> = routes.column("rank").unwrap().u32().unwrap().into_no_null_iter().collect();
+    ranks.sort_unstable();
+    assert_eq!(ranks, (1..=380).collect::<Vec<u32>>(), "every route has one rank");
     routes_are_the_engines_roll_up(&routes, &input);
 
     let batch = std::fs::read_dir(dir.path()).unwrap().next().unwrap().unwrap().path();
@@ -160,6 +161,8 @@ fn routes_are_the_engines_roll_up(routes: &DataFrame, input: &[thermosieve_queue
     let want = roll_up(&steps);
     assert_eq!(routes.height(), want.len());
     let ids = strings(routes, "route_id");
+    let row_of: HashMap<&str, usize> = ids.iter().enumerate().map(|(i, id)| (id.as_deref().unwrap(), i)).collect();
+    assert_eq!(row_of.len(), want.len(), "one row per route");
     let ranks = routes.column("rank").unwrap().u32().unwrap().clone();
     let failed = routes.column("failed_steps").unwrap().u32().unwrap().clone();
     let class = routes.column("worst_criticality_class").unwrap().u32().unwrap().clone();
@@ -171,9 +174,9 @@ fn routes_are_the_engines_roll_up(routes: &DataFrame, input: &[thermosieve_queue
         (Some(a), Some(b)) => (a - b).abs() <= 1e-9 * a.abs().max(1.0),
         (a, b) => a == b,
     };
-    for (i, w) in want.iter().enumerate() {
+    for w in &want {
         let id = &w.route_id;
-        assert_eq!(ids[i].as_deref(), Some(id.as_str()), "rank order at row {i}");
+        let i = row_of[id.as_str()];
         assert_eq!(ranks.get(i), Some(w.rank as u32), "{id}");
         assert_eq!(failed.get(i), Some(w.failed_steps as u32), "{id}");
         assert_eq!(class.get(i), w.worst_class.as_ref().map(|c| u32::from(c.value.number())), "{id}");
@@ -188,6 +191,48 @@ fn routes_are_the_engines_roll_up(routes: &DataFrame, input: &[thermosieve_queue
     }
     assert!(want.iter().any(|w| w.failed.is_some()), "the demo's bad rows fail their routes");
     assert!(want.iter().any(|w| w.worst_class.is_some()), "the demo has assessed classes");
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_route_step_that_comes_back_later_fails_its_route_once() {
+    let case = |id: &str, route: &str, step: u32, reaction: &str| thermosieve_queue::CaseInput {
+        case_id: id.into(),
+        route_id: Some(route.into()),
+        step: Some(step),
+        reaction: reaction.into(),
+        ..Default::default()
+    };
+    let hydrogenation = "C2H4(g) + H2(g) -> C2H6(g)";
+    let cases = vec![
+        case("a1", "A", 1, hydrogenation),
+        case("a2", "A", 2, "2 H2(g) + O2(g) -> 2 H2O(l)"),
+        case("b1", "B", 1, hydrogenation),
+        case("c1", "C", 1, hydrogenation),
+        // A again, after other routes and in a later chunk (chunk size 2).
+        case("a3", "A", 3, hydrogenation),
+    ];
+    let dir = tempfile::tempdir().unwrap();
+    let options = BatchOptions {
+        chunk_size: 2,
+        ..BatchOptions::default()
+    };
+    let out = thermosieve_front::embedded::run_cases(cases.into_iter(), options, dir.path(), 2)
+        .await
+        .expect("embedded run");
+    let routes = read_table(&out.batch_dir.join("routes.parquet"));
+    let ids = strings(&routes, "route_id");
+    assert_eq!(ids.len(), 3, "each route once: {ids:?}");
+    let a = ids.iter().position(|r| r.as_deref() == Some("A")).unwrap();
+    let col_u32 = |name: &str| routes.column(name).unwrap().u32().unwrap().get(a);
+    assert_eq!((col_u32("steps"), col_u32("failed_steps")), (Some(3), Some(1)));
+    assert_eq!(col_u32("rank"), Some(3), "a failed route ranks last");
+    assert_eq!(strings(&routes, "case_ids")[a].as_deref(), Some("a1 | a2 | a3"));
+    let first_error = strings(&routes, "first_error")[a].clone().unwrap();
+    assert!(
+        first_error.starts_with("step 3 (case a3)") && first_error.contains("already ended"),
+        "{first_error}"
+    );
+    assert_eq!(floats(&routes, "total_heat_kj_per_batch")[a], None);
 }
 
 struct Service {

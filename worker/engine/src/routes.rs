@@ -142,10 +142,22 @@ pub fn roll_up(steps: &[RouteStep]) -> Vec<RouteSummary> {
 /// Sort `summaries` by the module's score and number them from 1. For a caller that rolls up
 /// routes a few at a time (with [`summarise`]) and ranks them all at the end.
 pub fn rank(summaries: &mut [RouteSummary]) {
-    summaries.sort_by(|a, b| a.score_cmp(b));
-    for (i, s) in summaries.iter_mut().enumerate() {
-        s.rank = i + 1;
+    let ranks = ranks(&summaries.iter().map(RouteSummary::score).collect::<Vec<_>>());
+    for (s, r) in summaries.iter_mut().zip(ranks) {
+        s.rank = r;
     }
+    summaries.sort_by_key(|s| s.rank);
+}
+
+/// The rank (from 1) of each score, in the order given.
+pub fn ranks(scores: &[RouteScore]) -> Vec<usize> {
+    let mut order: Vec<usize> = (0..scores.len()).collect();
+    order.sort_by(|&a, &b| scores[a].cmp(&scores[b]));
+    let mut ranks = vec![0; scores.len()];
+    for (position, &i) in order.iter().enumerate() {
+        ranks[i] = position + 1;
+    }
+    ranks
 }
 
 /// Roll up one route's steps (any order; they are sorted by step, then case id). The rank is
@@ -155,25 +167,52 @@ pub fn summarise(route_id: &str, mut route: Vec<&RouteStep>) -> RouteSummary {
     roll_up_route(route_id, &route)
 }
 
+/// The keys of the module's score for one route: small, so a caller ranking many routes can keep
+/// these instead of whole summaries.
+#[derive(Clone, Debug, PartialEq)]
+pub struct RouteScore {
+    pub failed: bool,
+    /// Worst class number; 6 when a step's class was not assessed, or none was.
+    pub class: u8,
+    /// Worst ΔT_ad, K (infinite when no step succeeded).
+    pub worst_rise_k: f64,
+    /// Total heat, kJ per batch (infinite when a step failed).
+    pub total_heat_kj: f64,
+    pub route_id: String,
+}
+
+impl RouteScore {
+    /// The order of the score (less is better).
+    pub fn cmp(&self, o: &RouteScore) -> Ordering {
+        self.failed
+            .cmp(&o.failed)
+            .then(self.class.cmp(&o.class))
+            .then(self.worst_rise_k.total_cmp(&o.worst_rise_k))
+            .then(self.total_heat_kj.total_cmp(&o.total_heat_kj))
+            .then_with(|| self.route_id.cmp(&o.route_id))
+    }
+}
+
 impl RouteSummary {
+    /// The keys of the module's score.
+    pub fn score(&self) -> RouteScore {
+        let class = if self.class_not_assessed.is_empty() {
+            self.worst_class.as_ref().map_or(6, |w| w.value.number())
+        } else {
+            6
+        };
+        RouteScore {
+            failed: self.failed.is_some(),
+            class,
+            worst_rise_k: self.worst_adiabatic_rise_k.as_ref().map_or(f64::INFINITY, |w| w.value),
+            total_heat_kj: self.total_heat_kj.unwrap_or(f64::INFINITY),
+            route_id: self.route_id.clone(),
+        }
+    }
+
     /// The module's score, as an order (less is better).
     pub fn score_cmp(&self, o: &RouteSummary) -> Ordering {
-        let class = |s: &RouteSummary| {
-            if s.class_not_assessed.is_empty() {
-                s.worst_class.as_ref().map_or(6, |w| w.value.number())
-            } else {
-                6
-            }
-        };
-        let rise = |s: &RouteSummary| s.worst_adiabatic_rise_k.as_ref().map_or(f64::INFINITY, |w| w.value);
-        let heat = |s: &RouteSummary| s.total_heat_kj.unwrap_or(f64::INFINITY);
-        self.failed
-            .is_some()
-            .cmp(&o.failed.is_some())
-            .then(class(self).cmp(&class(o)))
-            .then(rise(self).total_cmp(&rise(o)))
-            .then(heat(self).total_cmp(&heat(o)))
-            .then_with(|| self.route_id.cmp(&o.route_id))
+        self.score().cmp(&o.score())
     }
 
     /// Fold in more steps of the same route that were rolled up apart (`later`, whose steps came

@@ -1,17 +1,18 @@
 //! The finalizer: once every chunk of a batch is committed, concatenate the part files in chunk
 //! order into `cases.parquet` and `trends.parquet`, roll the cases up into `routes.parquet`, and
 //! write `manifest.json`. Parts are streamed one at a time (a batched Parquet writer), so memory
-//! stays at one part plus one small record per route, whatever the batch size.
+//! stays at one part per table plus a small score per route, whatever the batch size. The cases
+//! and trends tables are written on two threads at once.
 
 use crate::parts::{batch_dir, part_path, read_parquet, write_atomic};
+use crate::route_table::RouteTable;
 use crate::rows::{self, STATUS_OK};
 use crate::WorkerError;
 use polars::prelude::*;
 use serde::Serialize;
-use std::collections::HashMap;
 use std::fs::File;
 use std::path::Path;
-use thermosieve_engine::routes::{rank, summarise, RouteStep, RouteSummary, RANK_NOTE};
+use thermosieve_engine::routes::RANK_NOTE;
 use thermosieve_engine::{elements, species, CAUTION, VERSION};
 use thermosieve_queue::{now_unix_ms, BatchSpec, Progress};
 
@@ -89,50 +90,6 @@ pub struct Timings {
     pub finalize_seconds: f64,
 }
 
-/// Route summaries built while cases stream past. The front keeps every step of a route in one
-/// chunk, so each part is rolled up on its own; a later row of an already closed route (an
-/// input error the front flagged) is merged into that route's summary.
-#[derive(Default)]
-struct Routes {
-    summaries: Vec<RouteSummary>,
-    index: HashMap<String, usize>,
-}
-
-impl Routes {
-    fn add(&mut self, df: &DataFrame) -> Result<(), WorkerError> {
-        let steps = rows::route_steps(df)?;
-        let mut order: Vec<&str> = Vec::new();
-        let mut by_route: HashMap<&str, Vec<&RouteStep>> = HashMap::new();
-        for s in &steps {
-            by_route
-                .entry(s.route_id)
-                .or_insert_with(|| {
-                    order.push(s.route_id);
-                    Vec::new()
-                })
-                .push(s);
-        }
-        for id in order {
-            let summary = summarise(id, by_route.remove(id).unwrap_or_default());
-            match self.index.get(id) {
-                Some(&i) => self.summaries[i].merge(summary),
-                None => {
-                    self.index.insert(id.to_string(), self.summaries.len());
-                    self.summaries.push(summary);
-                }
-            }
-        }
-        Ok(())
-    }
-
-    /// All routes in rank order.
-    fn ranked(mut self) -> Vec<RouteSummary> {
-        drop(self.index);
-        rank(&mut self.summaries);
-        self.summaries
-    }
-}
-
 /// Concatenate the parts of `table` (`cases` or `trends`) for chunks `0..chunks` into `file`.
 fn concat_parts(
     results_dir: &Path,
@@ -141,7 +98,7 @@ fn concat_parts(
     file: &str,
     chunks: u64,
     empty: &DataFrame,
-    mut each: impl FnMut(&DataFrame) -> Result<(), WorkerError>,
+    mut each: impl FnMut(u64, &DataFrame) -> Result<(), WorkerError>,
 ) -> Result<(u64, u64), WorkerError> {
     let dir = batch_dir(results_dir, &spec.batch_id)?;
     let path = dir.join(file);
@@ -160,7 +117,7 @@ fn concat_parts(
                 });
             }
             let df = read_parquet(&p)?;
-            each(&df)?;
+            each(seq, &df)?;
             if df.height() > 0 {
                 rows += df.height() as u64;
                 w.write_batch(&df)?;
@@ -188,7 +145,7 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
     std::fs::create_dir_all(&dir).map_err(|source| WorkerError::Io { path: dir.clone(), source })?;
     let chunks = progress.chunks_total;
 
-    let mut routes = Routes::default();
+    let mut routes = RouteTable::new(results_dir, &spec.batch_id);
     let mut counts = Counts {
         chunks,
         chunks_dead_lettered: progress.chunks_dead,
@@ -196,24 +153,44 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
     };
     let mut ok = 0u64;
     let empty_cases = rows::cases_frame(&[])?;
-    let (cases, cases_bytes) = concat_parts(results_dir, spec, "cases", CASES_FILE, chunks, &empty_cases, |df| {
-        let status = df.column("status")?.str()?;
-        ok += (0..df.height()).filter(|&i| status.get(i) == Some(STATUS_OK)).count() as u64;
-        routes.add(df)
-    })?;
     let empty_trends = rows::trends_frame(&[])?;
-    let (trend_rows, trends_bytes) = concat_parts(results_dir, spec, "trends", TRENDS_FILE, chunks, &empty_trends, |_| Ok(()))?;
-    let route_rows = routes.ranked();
-    let mut routes_df = rows::routes_frame(&route_rows)?;
+    // The trends table is written on a second thread while the cases stream past the route
+    // roll-up on this one: the two tables share nothing.
+    let (cases_written, trends_written) = std::thread::scope(|scope| {
+        let trends = scope.spawn(|| concat_parts(results_dir, spec, "trends", TRENDS_FILE, chunks, &empty_trends, |_, _| Ok(())));
+        let cases = concat_parts(results_dir, spec, "cases", CASES_FILE, chunks, &empty_cases, |seq, df| {
+            let status = df.column("status")?.str()?;
+            ok += (0..df.height()).filter(|&i| status.get(i) == Some(STATUS_OK)).count() as u64;
+            routes.add(seq, df)
+        });
+        (cases, trends.join().unwrap_or(Err(WorkerError::EngineGone)))
+    });
+    let (cases, cases_bytes) = cases_written?;
+    let (trend_rows, trends_bytes) = trends_written?;
+    let route_count = routes.routes() as u64;
     let routes_path = dir.join(ROUTES_FILE);
-    crate::parts::write_parquet(&routes_path, &mut routes_df, Some(table_metadata(spec, ROUTES_FILE)))?;
+    write_atomic(&routes_path, |f| {
+        let kv = KeyValueMetadata::from_static(table_metadata(spec, ROUTES_FILE));
+        let empty = rows::routes_frame(&[])?;
+        let mut w = ParquetWriter::new(f).with_key_value_metadata(Some(kv)).batched(empty.schema())?;
+        let mut wrote_any = false;
+        routes.finish(|df| {
+            wrote_any = true;
+            Ok(w.write_batch(df)?)
+        })?;
+        if !wrote_any {
+            w.write_batch(&empty)?;
+        }
+        w.finish()?;
+        Ok(())
+    })?;
     let routes_bytes = std::fs::metadata(&routes_path).map_or(0, |m| m.len());
 
     counts.cases = cases;
     counts.cases_ok = ok;
     counts.cases_error = cases - ok;
     counts.trend_rows = trend_rows;
-    counts.routes = route_rows.len() as u64;
+    counts.routes = route_count;
     let finished = now_unix_ms();
     let manifest = Manifest {
         batch_id: spec.batch_id.clone(),
@@ -236,7 +213,7 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
             },
             FileEntry {
                 name: ROUTES_FILE.into(),
-                rows: route_rows.len() as u64,
+                rows: route_count,
                 bytes: routes_bytes,
             },
         ],

@@ -12,11 +12,13 @@
 //! - [`process`]: the engine over a chunk's cases, with a screener cache per grid.
 //! - [`parts`]: batch folders, part paths, atomic writes, Parquet I/O.
 //! - [`finalize`]: part files → batch tables + manifest.
+//! - [`route_table`]: cases parts → routes rolled up and ranked, in bounded memory.
 //! - [`run`]: the worker loop (poll, compute, write, acknowledge, reclaim, dead-letter, stop).
 
 pub mod finalize;
 pub mod parts;
 pub mod process;
+pub mod route_table;
 pub mod rows;
 pub mod run;
 

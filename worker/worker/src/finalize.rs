@@ -4,7 +4,8 @@
 //! stays at one part per table plus a small score per route, whatever the batch size. The cases
 //! and trends tables are written on two threads at once.
 
-use crate::parts::{batch_dir, part_path, read_parquet, write_atomic};
+use crate::concat::Concat;
+use crate::parts::{batch_dir, part_path, read_parquet_columns, write_atomic};
 use crate::route_table::RouteTable;
 use crate::rows::{self, STATUS_OK};
 use crate::WorkerError;
@@ -90,7 +91,8 @@ pub struct Timings {
     pub finalize_seconds: f64,
 }
 
-/// Concatenate the parts of `table` (`cases` or `trends`) for chunks `0..chunks` into `file`.
+/// Concatenate the parts of `table` (`cases` or `trends`) for chunks `0..chunks` into `file`,
+/// copying their pages; `each` sees every part's path first. Returns (rows, bytes).
 fn concat_parts(
     results_dir: &Path,
     spec: &BatchSpec,
@@ -98,15 +100,13 @@ fn concat_parts(
     file: &str,
     chunks: u64,
     empty: &DataFrame,
-    mut each: impl FnMut(u64, &DataFrame) -> Result<(), WorkerError>,
+    mut each: impl FnMut(u64, &Path) -> Result<(), WorkerError>,
 ) -> Result<(u64, u64), WorkerError> {
     let dir = batch_dir(results_dir, &spec.batch_id)?;
     let path = dir.join(file);
     let mut rows = 0u64;
     write_atomic(&path, |f| {
-        let kv = KeyValueMetadata::from_static(table_metadata(spec, file));
-        let mut w = ParquetWriter::new(f).with_key_value_metadata(Some(kv)).batched(empty.schema())?;
-        let mut wrote_any = false;
+        let mut out = Concat::new(&mut *f);
         for seq in 0..chunks {
             let p = part_path(results_dir, &spec.batch_id, table, seq)?;
             if !p.exists() {
@@ -116,18 +116,14 @@ fn concat_parts(
                     table: table.to_string(),
                 });
             }
-            let df = read_parquet(&p)?;
-            each(seq, &df)?;
-            if df.height() > 0 {
-                rows += df.height() as u64;
-                w.write_batch(&df)?;
-                wrote_any = true;
-            }
+            each(seq, &p)?;
+            out.append(&p)?;
         }
-        if !wrote_any {
-            w.write_batch(empty)?;
+        rows = out.rows;
+        if out.finish(table_metadata(spec, file), &path)?.is_none() {
+            let kv = KeyValueMetadata::from_static(table_metadata(spec, file));
+            ParquetWriter::new(f).with_key_value_metadata(Some(kv)).finish(&mut empty.clone())?;
         }
-        w.finish()?;
         Ok(())
     })?;
     let bytes = std::fs::metadata(&path).map_or(0, |m| m.len());
@@ -158,10 +154,11 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
     // roll-up on this one: the two tables share nothing.
     let (cases_written, trends_written) = std::thread::scope(|scope| {
         let trends = scope.spawn(|| concat_parts(results_dir, spec, "trends", TRENDS_FILE, chunks, &empty_trends, |_, _| Ok(())));
-        let cases = concat_parts(results_dir, spec, "cases", CASES_FILE, chunks, &empty_cases, |seq, df| {
+        let cases = concat_parts(results_dir, spec, "cases", CASES_FILE, chunks, &empty_cases, |seq, part| {
+            let df = read_parquet_columns(part, &rows::ROUTE_STEP_COLUMNS)?;
             let status = df.column("status")?.str()?;
             ok += (0..df.height()).filter(|&i| status.get(i) == Some(STATUS_OK)).count() as u64;
-            routes.add(seq, df)
+            routes.add(seq, &df)
         });
         (cases, trends.join().unwrap_or(Err(WorkerError::EngineGone)))
     });

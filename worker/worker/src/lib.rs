@@ -12,9 +12,11 @@
 //! - [`process`]: the engine over a chunk's cases, with a screener cache per grid.
 //! - [`parts`]: batch folders, part paths, atomic writes, Parquet I/O.
 //! - [`finalize`]: part files → batch tables + manifest.
+//! - [`concat`]: part files → one Parquet file by copying compressed pages.
 //! - [`route_table`]: cases parts → routes rolled up and ranked, in bounded memory.
 //! - [`run`]: the worker loop (poll, compute, write, acknowledge, reclaim, dead-letter, stop).
 
+pub mod concat;
 pub mod finalize;
 pub mod parts;
 pub mod process;
@@ -42,6 +44,8 @@ pub enum WorkerError {
     MissingPart { batch_id: String, seq: u64, table: String },
     #[error("manifest: {0}")]
     Json(#[from] serde_json::Error),
+    #[error("{path}: cannot copy into the table: {reason}")]
+    Concat { path: PathBuf, reason: String },
     #[error("engine thread could not start: {0}")]
     Spawn(std::io::Error),
     #[error("engine thread stopped")]

@@ -90,19 +90,28 @@ pub fn write_parquet(path: &Path, df: &mut DataFrame, metadata: Option<Vec<(Stri
     })
 }
 
-/// Write a part file: short-lived, so LZ4 (fast) rather than zstd, and single-threaded, since
-/// each engine thread writes its own parts and a thread pool per write only contends.
+/// Write a part file, single-threaded (each engine thread writes its own parts; a thread pool
+/// per write only contends). Parts are compressed as the batch tables are (zstd, the default):
+/// the finalizer copies their pages into the tables as they are.
 ///
 /// # Errors
 /// I/O and Polars errors.
 pub fn write_part(path: &Path, df: &mut DataFrame) -> Result<(), WorkerError> {
     write_atomic(path, |f| {
-        ParquetWriter::new(f)
-            .with_compression(ParquetCompression::Lz4Raw)
-            .set_parallel(false)
-            .finish(df)?;
+        ParquetWriter::new(f).set_parallel(false).finish(df)?;
         Ok(())
     })
+}
+
+/// Read some columns of a Parquet file.
+///
+/// # Errors
+/// I/O and Polars errors.
+pub fn read_parquet_columns(path: &Path, columns: &[&str]) -> Result<DataFrame, WorkerError> {
+    let f = File::open(path).map_err(io(path))?;
+    Ok(ParquetReader::new(f)
+        .with_columns(Some(columns.iter().map(|c| c.to_string()).collect()))
+        .finish()?)
 }
 
 /// Read a whole Parquet file.

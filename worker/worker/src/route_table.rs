@@ -9,7 +9,7 @@
 //! that route: the route's first fragment is rolled up again from its cases part, merged with the
 //! later ones, and its row replaced. That only happens for such input errors.
 
-use crate::parts::{part_path, read_parquet, write_part};
+use crate::parts::{part_path, read_parquet, read_parquet_columns, write_part};
 use crate::rows;
 use crate::WorkerError;
 use polars::prelude::*;
@@ -101,7 +101,8 @@ impl<'a> RouteTable<'a> {
         // Routes that came in fragments: the whole route, rolled up again.
         let mut merged: HashMap<usize, RouteSummary> = HashMap::new();
         for (i, later) in std::mem::take(&mut self.late) {
-            let cases = read_parquet(&part_path(self.results_dir, self.batch_id, "cases", self.first_chunk[i])?)?;
+            let part = part_path(self.results_dir, self.batch_id, "cases", self.first_chunk[i])?;
+            let cases = read_parquet_columns(&part, &rows::ROUTE_STEP_COLUMNS)?;
             let steps = rows::route_steps(&cases)?;
             let id = self.scores[i].route_id.clone();
             let mut whole = summarise(&id, steps.iter().filter(|s| s.route_id == id).collect());

@@ -358,6 +358,24 @@ pub fn trends_frame(rows: &[TrendRow]) -> PolarsResult<DataFrame> {
     )
 }
 
+/// The cases columns [`route_steps`] reads (the finalizer reads only these back from parts).
+pub const ROUTE_STEP_COLUMNS: [&str; 14] = [
+    "case_id",
+    "route_id",
+    "step",
+    "status",
+    "error_message",
+    "process_error",
+    "estimated_species_labels",
+    "criticality_class",
+    "in_valid_range_at_process",
+    "heat_kj_per_batch",
+    "adiabatic_rise_k",
+    "gas_mol_per_batch",
+    "gas_m3_at_0c_1atm",
+    "reaction_mol_per_batch",
+];
+
 /// The roll-up inputs of the route steps in a cases frame: `(case_id, route_id, step, result)`
 /// per row that has a route. A step whose process view is missing (an input the engine could not
 /// use) counts as failed for the route, with that message: its heat is unknown.

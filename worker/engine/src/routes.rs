@@ -214,45 +214,6 @@ impl RouteSummary {
     pub fn score_cmp(&self, o: &RouteSummary) -> Ordering {
         self.score().cmp(&o.score())
     }
-
-    /// Fold in more steps of the same route that were rolled up apart (`later`, whose steps came
-    /// after this summary's in the input). Worst values and counts combine as over the whole
-    /// route; totals stay only when neither part failed. Heat per final product is dropped, with
-    /// a note: which part holds the final step is not known here.
-    pub fn merge(&mut self, later: RouteSummary) {
-        let keep_own_failure = match (&self.failed, &later.failed) {
-            (Some(a), Some(b)) => a.step <= b.step,
-            (Some(_), None) => true,
-            (None, _) => false,
-        };
-        if !keep_own_failure {
-            self.failed = later.failed;
-        }
-        self.failed_steps += later.failed_steps;
-        let complete = self.failed.is_none();
-        let sum = |a: Option<f64>, b: Option<f64>| complete.then(|| a.unwrap_or(0.0) + b.unwrap_or(0.0));
-        self.total_heat_kj = sum(self.total_heat_kj, later.total_heat_kj);
-        self.total_gas_mol = sum(self.total_gas_mol, later.total_gas_mol);
-        self.total_gas_m3_at_stp = sum(self.total_gas_m3_at_stp, later.total_gas_m3_at_stp);
-        if self.heat_per_final_product.take().is_some() || later.heat_per_final_product.is_some() {
-            self.notes
-                .push("heat per final product not computed: the route's steps were rolled up in parts".to_string());
-        }
-        if let Some(w) = later.worst_adiabatic_rise_k {
-            if self.worst_adiabatic_rise_k.as_ref().is_none_or(|v| w.value > v.value) {
-                self.worst_adiabatic_rise_k = Some(w);
-            }
-        }
-        if let Some(w) = later.worst_class {
-            if self.worst_class.as_ref().is_none_or(|v| w.value > v.value) {
-                self.worst_class = Some(w);
-            }
-        }
-        self.case_ids.extend(later.case_ids);
-        self.class_not_assessed.extend(later.class_not_assessed);
-        self.flagged_steps.extend(later.flagged_steps);
-        self.notes.extend(later.notes);
-    }
 }
 
 fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> RouteSummary {

@@ -4,7 +4,7 @@
 
 use thermosieve_engine::process::{evaluate, CriticalityClass, ProcessConditions, Scale};
 use thermosieve_engine::routes::HeatPerProduct;
-use thermosieve_engine::{roll_up, species, summarise, CaseProcess, RouteStep, Screener, TemperatureGrid, CAUTION};
+use thermosieve_engine::{roll_up, species, CaseProcess, RouteStep, Screener, TemperatureGrid, CAUTION};
 
 fn case(equation: &str, c: ProcessConditions) -> CaseProcess {
     let mut s = Screener::new(species::bundled(), TemperatureGrid::default_process());
@@ -187,50 +187,4 @@ fn ties_rank_by_rise_then_heat_then_id_and_duplicate_steps_are_noted() {
     // Y and Z share the worst rise; Y releases less heat in total (one step, Z has two).
     assert_eq!(ids, ["Y", "Z", "X"]);
     assert!(routes[1].notes.iter().any(|n| n.contains("both step 1")), "{:?}", routes[1].notes);
-}
-
-#[test]
-fn a_route_rolled_up_in_parts_merges_to_the_whole_route() {
-    let mild = case("C2H4(g) + H2(g) -> C2H6(g)", conditions(20_000.0, 400.0, 450.0));
-    let hot = case("2 H2(g) + O2(g) -> 2 H2O(l)", conditions(100.0, 373.0, 420.0));
-    let steps = [
-        RouteStep {
-            case_id: "r1",
-            route_id: "R",
-            step: 1,
-            result: Ok((&mild).into()),
-        },
-        RouteStep {
-            case_id: "r2",
-            route_id: "R",
-            step: 2,
-            result: Ok((&hot).into()),
-        },
-        RouteStep {
-            case_id: "r3",
-            route_id: "R",
-            step: 3,
-            result: Err("row 9, column route_id: route \"R\" already ended earlier in the input"),
-        },
-    ];
-    let whole = &roll_up(&steps)[0];
-    let mut merged = summarise("R", steps[..2].iter().collect());
-    merged.merge(summarise("R", steps[2..].iter().collect()));
-    assert_eq!(merged.case_ids, whole.case_ids);
-    assert_eq!((merged.failed_steps, whole.failed_steps), (1, 1));
-    assert_eq!(merged.failed, whole.failed);
-    assert_eq!(merged.worst_class, whole.worst_class);
-    assert_eq!(merged.worst_adiabatic_rise_k, whole.worst_adiabatic_rise_k);
-    assert_eq!((merged.total_heat_kj, whole.total_heat_kj), (None, None));
-    assert_eq!(merged.flagged_steps, whole.flagged_steps);
-    assert_eq!(merged.score_cmp(whole), std::cmp::Ordering::Equal);
-
-    // Two complete parts: the totals add up; heat per final product is dropped with a note.
-    let mut parts = summarise("R", steps[..1].iter().collect());
-    parts.merge(summarise("R", steps[1..2].iter().collect()));
-    let both = &roll_up(&steps[..2])[0];
-    assert!((parts.total_heat_kj.unwrap() - both.total_heat_kj.unwrap()).abs() < 1e-9);
-    assert!((parts.total_gas_mol.unwrap() - both.total_gas_mol.unwrap()).abs() < 1e-9);
-    assert!(parts.heat_per_final_product.is_none());
-    assert!(parts.notes.iter().any(|n| n.contains("in parts")), "{:?}", parts.notes);
 }

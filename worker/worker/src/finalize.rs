@@ -150,15 +150,15 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
     let mut ok = 0u64;
     let empty_cases = rows::cases_frame(&[])?;
     let empty_trends = rows::trends_frame(&[])?;
-    // The trends table is written on a second thread while the cases stream past the route
-    // roll-up on this one: the two tables share nothing.
+    // The trends table is copied on a second thread while this one copies the cases and reads
+    // the route scores: they share nothing.
     let (cases_written, trends_written) = std::thread::scope(|scope| {
         let trends = scope.spawn(|| concat_parts(results_dir, spec, "trends", TRENDS_FILE, chunks, &empty_trends, |_, _| Ok(())));
         let cases = concat_parts(results_dir, spec, "cases", CASES_FILE, chunks, &empty_cases, |seq, part| {
-            let df = read_parquet_columns(part, &rows::ROUTE_STEP_COLUMNS)?;
+            let df = read_parquet_columns(part, &["status"])?;
             let status = df.column("status")?.str()?;
             ok += (0..df.height()).filter(|&i| status.get(i) == Some(STATUS_OK)).count() as u64;
-            routes.add(seq, &df)
+            routes.add(seq)
         });
         (cases, trends.join().unwrap_or(Err(WorkerError::EngineGone)))
     });

@@ -1,21 +1,25 @@
-//! `routes.parquet` from the cases parts, in memory bounded by a small score per route.
+//! `routes.parquet` from the routes parts, in memory bounded by a small score per route.
 //!
-//! The front keeps every step of a route in one chunk, so each cases part is rolled up on its
-//! own (pass 1): its route rows go to a `routes` part, and only the route's score stays in
-//! memory. Then the scores are ranked, and pass 2 copies the route parts into the table with
-//! their ranks. Rows are in input order (a route's first appearance); `rank` orders them.
+//! The front keeps every step of a route in one chunk, so workers roll up each chunk's routes
+//! and write them as a `routes` part beside its cases. The finalizer reads only the score
+//! columns of the parts (pass 1), ranks the batch, then copies the parts into the table with
+//! their ranks (pass 2). Rows are grouped by chunk; `rank` orders them.
 //!
-//! A later row of a route that already ended (the front makes it an error row) is folded into
-//! that route: the route's first fragment is rolled up again from its cases part, merged with the
-//! later ones, and its row replaced. That only happens for such input errors.
+//! A later step of a route that already ended (the front makes it an error row, in a later
+//! chunk) shows up as a second row for that route. Such a route is rolled up again from the
+//! cases parts of every chunk it appears in, and its one row replaces the fragments' rows. That
+//! only happens for that input error.
 
-use crate::parts::{part_path, read_parquet, read_parquet_columns, write_part};
+use crate::parts::{part_path, read_parquet, read_parquet_columns};
 use crate::rows;
 use crate::WorkerError;
 use polars::prelude::*;
 use std::collections::HashMap;
-use std::path::Path;
+use std::path::{Path, PathBuf};
 use thermosieve_engine::routes::{ranks, summarise, RouteScore, RouteStep, RouteSummary};
+
+/// Marks a part row that is a later fragment of a route seen in an earlier chunk.
+const FRAGMENT: u32 = u32::MAX;
 
 /// Pass 1 state.
 pub struct RouteTable<'a> {
@@ -23,27 +27,12 @@ pub struct RouteTable<'a> {
     batch_id: &'a str,
     /// Score of each route, in first-appearance order.
     scores: Vec<RouteScore>,
-    /// The chunk each route first appeared in.
-    first_chunk: Vec<u64>,
-    /// Rows written per chunk's routes part, in chunk order.
-    part_rows: Vec<(u64, usize)>,
-    index: HashMap<Box<str>, usize>,
-    /// Later fragments of routes that had already ended, by route index.
-    late: HashMap<usize, Vec<RouteSummary>>,
-}
-
-/// Group a part's steps by route, in first-appearance order.
-fn by_route<'s, 'a>(steps: &'s [RouteStep<'a>]) -> Vec<(&'a str, Vec<&'s RouteStep<'a>>)> {
-    let mut at: HashMap<&str, usize> = HashMap::new();
-    let mut out: Vec<(&str, Vec<&RouteStep>)> = Vec::new();
-    for s in steps {
-        let i = *at.entry(s.route_id).or_insert_with(|| {
-            out.push((s.route_id, Vec::new()));
-            out.len() - 1
-        });
-        out[i].1.push(s);
-    }
-    out
+    /// Per chunk: the route index of each row of its routes part ([`FRAGMENT`] for later
+    /// fragments).
+    parts: Vec<(u64, Vec<u32>)>,
+    index: HashMap<Box<str>, u32>,
+    /// Routes seen in more than one chunk: route index → the chunks.
+    split: HashMap<u32, Vec<u64>>,
 }
 
 impl<'a> RouteTable<'a> {
@@ -52,45 +41,64 @@ impl<'a> RouteTable<'a> {
             results_dir,
             batch_id,
             scores: Vec::new(),
-            first_chunk: Vec::new(),
-            part_rows: Vec::new(),
+            parts: Vec::new(),
             index: HashMap::new(),
-            late: HashMap::new(),
+            split: HashMap::new(),
         }
     }
 
-    /// Roll up the routes of chunk `seq` (its cases frame) and write its routes part.
+    fn part(&self, table: &str, seq: u64) -> Result<PathBuf, WorkerError> {
+        part_path(self.results_dir, self.batch_id, table, seq)
+    }
+
+    /// Read the scores of chunk `seq`'s routes part.
     ///
     /// # Errors
-    /// Polars and I/O errors.
-    pub fn add(&mut self, seq: u64, cases: &DataFrame) -> Result<(), WorkerError> {
-        let steps = rows::route_steps(cases)?;
-        let mut fresh = Vec::new();
-        for (id, route) in by_route(&steps) {
-            let summary = summarise(id, route);
-            match self.index.get(id) {
-                Some(&i) => self.late.entry(i).or_default().push(summary),
+    /// `MissingPart`, Polars and I/O errors.
+    pub fn add(&mut self, seq: u64) -> Result<(), WorkerError> {
+        let path = self.part("routes", seq)?;
+        if !path.exists() {
+            return Err(WorkerError::MissingPart {
+                batch_id: self.batch_id.to_string(),
+                seq,
+                table: "routes".into(),
+            });
+        }
+        let scores = rows::route_scores(&read_parquet_columns(&path, &rows::ROUTE_SCORE_COLUMNS)?)?;
+        let mut at = Vec::with_capacity(scores.len());
+        for score in scores {
+            match self.index.get(score.route_id.as_str()) {
+                Some(&i) => {
+                    self.split.entry(i).or_default().push(seq);
+                    at.push(FRAGMENT);
+                }
                 None => {
-                    self.index.insert(id.into(), self.scores.len());
-                    self.scores.push(summary.score());
-                    self.first_chunk.push(seq);
-                    fresh.push(summary);
+                    let i = self.scores.len() as u32;
+                    self.index.insert(score.route_id.as_str().into(), i);
+                    self.scores.push(score);
+                    at.push(i);
                 }
             }
         }
-        if !fresh.is_empty() {
-            write_part(&self.part(seq)?, &mut rows::routes_frame(&fresh)?)?;
-            self.part_rows.push((seq, fresh.len()));
-        }
+        self.parts.push((seq, at));
         Ok(())
-    }
-
-    fn part(&self, seq: u64) -> Result<std::path::PathBuf, WorkerError> {
-        part_path(self.results_dir, self.batch_id, "routes", seq)
     }
 
     pub fn routes(&self) -> usize {
         self.scores.len()
+    }
+
+    /// The whole of a route that came in several chunks, from the cases parts of those chunks.
+    fn whole(&self, route_id: &str, chunks: &[u64]) -> Result<RouteSummary, WorkerError> {
+        let frames = chunks
+            .iter()
+            .map(|&seq| read_parquet_columns(&self.part("cases", seq)?, &rows::ROUTE_STEP_COLUMNS))
+            .collect::<Result<Vec<DataFrame>, WorkerError>>()?;
+        let mut steps: Vec<RouteStep> = Vec::new();
+        for df in &frames {
+            steps.extend(rows::route_steps(df)?.into_iter().filter(|s| s.route_id == route_id));
+        }
+        Ok(summarise(route_id, steps.iter().collect()))
     }
 
     /// Rank the routes and write every route row, with its rank, through `write`.
@@ -98,39 +106,42 @@ impl<'a> RouteTable<'a> {
     /// # Errors
     /// Polars and I/O errors, and those of `write`.
     pub fn finish(mut self, mut write: impl FnMut(&mut DataFrame) -> Result<(), WorkerError>) -> Result<(), WorkerError> {
-        // Routes that came in fragments: the whole route, rolled up again.
-        let mut merged: HashMap<usize, RouteSummary> = HashMap::new();
-        for (i, later) in std::mem::take(&mut self.late) {
-            let part = part_path(self.results_dir, self.batch_id, "cases", self.first_chunk[i])?;
-            let cases = read_parquet_columns(&part, &rows::ROUTE_STEP_COLUMNS)?;
-            let steps = rows::route_steps(&cases)?;
-            let id = self.scores[i].route_id.clone();
-            let mut whole = summarise(&id, steps.iter().filter(|s| s.route_id == id).collect());
-            for l in later {
-                whole.merge(l);
-            }
-            self.scores[i] = whole.score();
-            merged.insert(i, whole);
+        let first_chunk: HashMap<u32, u64> = self
+            .parts
+            .iter()
+            .flat_map(|(seq, at)| at.iter().filter(|&&i| self.split.contains_key(&i)).map(move |&i| (i, *seq)))
+            .collect();
+        let mut merged: Vec<(u32, RouteSummary)> = Vec::new();
+        for (&i, later) in &self.split {
+            let mut chunks = vec![first_chunk[&i]];
+            chunks.extend(later.iter().copied());
+            chunks.dedup();
+            let whole = self.whole(&self.scores[i as usize].route_id, &chunks)?;
+            merged.push((i, whole));
+        }
+        for (i, whole) in &merged {
+            self.scores[*i as usize] = whole.score();
         }
         self.index = HashMap::new();
         let ranks = ranks(&self.scores);
-        let mut first = 0usize;
-        for &(seq, n) in &self.part_rows {
-            let mut df = read_parquet(&self.part(seq)?)?;
-            let rank: Vec<u32> = ranks[first..first + n].iter().map(|&r| r as u32).collect();
+        for (seq, at) in &self.parts {
+            let mut df = read_parquet(&self.part("routes", *seq)?)?;
+            let keep = |i: &u32| *i != FRAGMENT && !self.split.contains_key(i);
+            let rank: Vec<u32> = at.iter().map(|&i| if keep(&i) { ranks[i as usize] as u32 } else { 0 }).collect();
             df.with_column(Column::new("rank".into(), rank))?;
-            if (first..first + n).any(|i| merged.contains_key(&i)) {
-                let keep: BooleanChunked = (first..first + n).map(|i| !merged.contains_key(&i)).collect();
-                df = df.filter(&keep)?;
+            if !at.iter().all(keep) {
+                let mask: BooleanChunked = at.iter().map(keep).collect();
+                df = df.filter(&mask)?;
             }
-            write(&mut df)?;
-            first += n;
+            if df.height() > 0 {
+                write(&mut df)?;
+            }
         }
         if !merged.is_empty() {
             let mut whole: Vec<RouteSummary> = merged
                 .into_iter()
                 .map(|(i, mut s)| {
-                    s.rank = ranks[i];
+                    s.rank = ranks[i as usize];
                     s
                 })
                 .collect();

@@ -8,7 +8,7 @@
 
 use polars::prelude::{Column, DataFrame, PolarsResult};
 use thermosieve_engine::process::{self, Assessment, CaseProcess, CriticalityClass, ProcessConditions, Scale};
-use thermosieve_engine::routes::{HeatPerProduct, RouteStep, RouteSummary, StepFacts};
+use thermosieve_engine::routes::{roll_up, HeatPerProduct, RouteScore, RouteStep, RouteSummary, StepFacts};
 use thermosieve_engine::{species::Table, ScreenError, Screened};
 use thermosieve_queue::{CaseInput, CONDITION_FIELDS};
 
@@ -48,6 +48,8 @@ pub struct CaseRow {
     pub input_row: u64,
     /// The process view (heat budget, equilibrium, criticality) at the case's conditions.
     pub process: ProcessColumns,
+    /// What the route roll-up needs of the process view; `None` when there is none.
+    pub step_facts: Option<StepFacts>,
 }
 
 /// Process-view columns of a case row; all empty when the reaction failed.
@@ -193,6 +195,7 @@ pub fn build_rows(
         conditions_extra_json: (!conditions.extra.is_empty()).then(|| serde_json::to_string(&conditions.extra).unwrap_or_default()),
         input_row: case.row,
         process: ProcessColumns::default(),
+        step_facts: None,
     };
     let s = match result {
         Ok(s) => s,
@@ -211,7 +214,10 @@ pub fn build_rows(
     row.delta_h_uncertainty_kj_per_mol = s.delta_h_uncertainty_kj_per_mol;
     row.estimated_species = s.estimated_species as u32;
     row.process = match process::evaluate(s, &process_conditions(conditions)) {
-        Ok(p) => process_columns(&p),
+        Ok(p) => {
+            row.step_facts = Some(StepFacts::from(&p));
+            process_columns(&p)
+        }
         Err(e) => ProcessColumns {
             process_error: Some(format!("{}{e}", row_prefix(case.row))),
             ..ProcessColumns::default()
@@ -434,6 +440,65 @@ pub fn route_steps(df: &DataFrame) -> PolarsResult<Vec<RouteStep<'_>>> {
         });
     }
     Ok(out)
+}
+
+/// The routes of one chunk's case rows, rolled up. The front keeps every step of a route in one
+/// chunk, so these are whole routes (a later step of an ended route is an error row, folded in
+/// by the finalizer). Ranks are the chunk's own; the finalizer ranks the batch.
+pub fn chunk_routes(cases: &[CaseRow]) -> Vec<RouteSummary> {
+    let steps: Vec<RouteStep> = cases
+        .iter()
+        .filter_map(|c| {
+            let route_id = c.route_id.as_deref().filter(|r| !r.is_empty())?;
+            let result = match (&c.step_facts, &c.error_message, &c.process.process_error) {
+                (Some(f), _, _) => Ok(f.clone()),
+                (None, Some(m), _) | (None, None, Some(m)) => Err(m.as_str()),
+                (None, None, None) => Err("no process view"),
+            };
+            Some(RouteStep {
+                case_id: &c.case_id,
+                route_id,
+                step: i64::from(c.step.unwrap_or(0)),
+                result,
+            })
+        })
+        .collect();
+    roll_up(&steps)
+}
+
+/// The routes columns [`route_scores`] reads.
+pub const ROUTE_SCORE_COLUMNS: [&str; 6] = [
+    "route_id",
+    "failed_steps",
+    "worst_criticality_class",
+    "class_not_assessed_case_ids",
+    "worst_adiabatic_rise_k",
+    "total_heat_kj_per_batch",
+];
+
+/// The score of each route row of a routes frame, as [`RouteSummary::score`] gives it.
+///
+/// # Errors
+/// Polars errors when a column is missing or of another type.
+pub fn route_scores(df: &DataFrame) -> PolarsResult<Vec<RouteScore>> {
+    let id = df.column("route_id")?.str()?;
+    let failed = df.column("failed_steps")?.u32()?;
+    let class = df.column("worst_criticality_class")?.u32()?;
+    let not_assessed = df.column("class_not_assessed_case_ids")?.str()?;
+    let rise = df.column("worst_adiabatic_rise_k")?.f64()?;
+    let heat = df.column("total_heat_kj_per_batch")?.f64()?;
+    Ok((0..df.height())
+        .map(|i| RouteScore {
+            failed: failed.get(i).unwrap_or(0) > 0,
+            class: match (not_assessed.get(i), class.get(i)) {
+                (None, Some(c)) => c as u8,
+                _ => 6,
+            },
+            worst_rise_k: rise.get(i).unwrap_or(f64::INFINITY),
+            total_heat_kj: heat.get(i).unwrap_or(f64::INFINITY),
+            route_id: id.get(i).unwrap_or("").to_string(),
+        })
+        .collect())
 }
 
 /// `routes.parquet` columns, in order; `summaries` in rank order.

@@ -123,10 +123,14 @@ fn write_parts(
     dead: bool,
 ) -> Result<ChunkReport, WorkerError> {
     let errors = cases.iter().filter(|r| !r.ok).count() as u64;
-    // Trends first: the cases part is what the finalizer checks for, so it lands last.
+    // Trends and routes first: the cases part is what the finalizer checks for, so it lands last.
     write_part(
         &part_path(results_dir, &spec.batch_id, "trends", seq)?,
         &mut rows::trends_frame(trends)?,
+    )?;
+    write_part(
+        &part_path(results_dir, &spec.batch_id, "routes", seq)?,
+        &mut rows::routes_frame(&rows::chunk_routes(cases))?,
     )?;
     write_part(
         &part_path(results_dir, &spec.batch_id, "cases", seq)?,

@@ -152,7 +152,7 @@ pub fn rank(summaries: &mut [RouteSummary]) {
 /// The rank (from 1) of each score, in the order given.
 pub fn ranks(scores: &[RouteScore]) -> Vec<usize> {
     let mut order: Vec<usize> = (0..scores.len()).collect();
-    order.sort_by(|&a, &b| scores[a].cmp(&scores[b]));
+    order.sort_by(|&a, &b| scores[a].rank_order(&scores[b]));
     let mut ranks = vec![0; scores.len()];
     for (position, &i) in order.iter().enumerate() {
         ranks[i] = position + 1;
@@ -183,7 +183,7 @@ pub struct RouteScore {
 
 impl RouteScore {
     /// The order of the score (less is better).
-    pub fn cmp(&self, o: &RouteScore) -> Ordering {
+    pub fn rank_order(&self, o: &RouteScore) -> Ordering {
         self.failed
             .cmp(&o.failed)
             .then(self.class.cmp(&o.class))
@@ -212,7 +212,7 @@ impl RouteSummary {
 
     /// The module's score, as an order (less is better).
     pub fn score_cmp(&self, o: &RouteSummary) -> Ordering {
-        self.score().cmp(&o.score())
+        self.score().rank_order(&o.score())
     }
 }
 

@@ -11,7 +11,6 @@ use crate::rows::{self, STATUS_OK};
 use crate::WorkerError;
 use polars::prelude::*;
 use serde::Serialize;
-use std::fs::File;
 use std::path::Path;
 use thermosieve_engine::routes::RANK_NOTE;
 use thermosieve_engine::{elements, species, CAUTION, VERSION};
@@ -224,7 +223,7 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
         },
     };
     let json = serde_json::to_vec_pretty(&manifest)?;
-    write_atomic(&dir.join(MANIFEST_FILE), |f: &mut File| {
+    write_atomic(&dir.join(MANIFEST_FILE), |f| {
         std::io::Write::write_all(f, &json).map_err(|source| WorkerError::Io {
             path: dir.join(MANIFEST_FILE),
             source,

@@ -7,7 +7,7 @@
 use crate::WorkerError;
 use polars::prelude::*;
 use std::fs::File;
-use std::io::Write;
+use std::io::BufWriter;
 use std::path::{Path, PathBuf};
 use std::sync::atomic::{AtomicU64, Ordering};
 
@@ -41,12 +41,12 @@ fn io(path: &Path) -> impl FnOnce(std::io::Error) -> WorkerError + '_ {
     }
 }
 
-/// Write a file atomically: `write` fills a temporary file beside `path`, which is synced and
+/// Write a file atomically: `write` fills a (buffered) temporary file beside `path`, which is synced and
 /// renamed over `path`; readers see the old file or the whole new one, never a part.
 ///
 /// # Errors
 /// I/O errors naming the path, or the error of `write`.
-pub fn write_atomic(path: &Path, write: impl FnOnce(&mut File) -> Result<(), WorkerError>) -> Result<(), WorkerError> {
+pub fn write_atomic(path: &Path, write: impl FnOnce(&mut BufWriter<File>) -> Result<(), WorkerError>) -> Result<(), WorkerError> {
     let dir = path.parent().unwrap_or(Path::new("."));
     std::fs::create_dir_all(dir).map_err(io(dir))?;
     let name = path.file_name().and_then(|n| n.to_str()).unwrap_or("file");
@@ -59,9 +59,11 @@ pub fn write_atomic(path: &Path, write: impl FnOnce(&mut File) -> Result<(), Wor
         NEXT.fetch_add(1, Ordering::Relaxed)
     ));
     let result = (|| {
-        let mut f = File::create(&tmp).map_err(io(&tmp))?;
-        write(&mut f)?;
-        f.flush().map_err(io(&tmp))?;
+        // Buffered: Parquet writers write page by page, and unbuffered every page header would
+        // be a system call.
+        let mut w = BufWriter::with_capacity(1 << 20, File::create(&tmp).map_err(io(&tmp))?);
+        write(&mut w)?;
+        let f = w.into_inner().map_err(|e| io(&tmp)(e.into_error()))?;
         f.sync_all().map_err(io(&tmp))?;
         std::fs::rename(&tmp, path).map_err(io(path))?;
         // The rename is durable once the folder is synced.

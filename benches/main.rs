@@ -72,15 +72,24 @@ fn cases(demo: &[CaseInput], n: usize) -> impl Iterator<Item = CaseInput> + '_ {
     })
 }
 
-fn engine_only(demo: &[CaseInput], n: usize, threads: usize) -> f64 {
+/// The engine alone on the same cases, on `threads` threads: cases/s. With `process`, each case
+/// also gets its process view at its conditions (what a worker asks of the engine per case).
+fn engine_only(demo: &[CaseInput], n: usize, threads: usize, process: bool) -> f64 {
     let t0 = Instant::now();
+    let defaults = thermosieve_queue::Conditions::default();
     std::thread::scope(|s| {
         for t in 0..threads {
+            let defaults = &defaults;
             s.spawn(move || {
                 let mut screener = Screener::new(species::bundled(), TemperatureGrid::default_process());
                 let mut ok = 0usize;
                 for c in cases(demo, n).skip(t).step_by(threads) {
-                    ok += usize::from(screener.screen(&c.reaction).is_ok());
+                    let Ok(screened) = screener.screen(&c.reaction) else { continue };
+                    ok += 1;
+                    if process {
+                        let conditions = thermosieve_worker::rows::process_conditions(&c.conditions.or_defaults(defaults));
+                        ok += usize::from(thermosieve_engine::process::evaluate(&screened, &conditions).is_ok());
+                    }
                 }
                 std::hint::black_box(ok);
             });
@@ -206,13 +215,22 @@ async fn main() -> anyhow::Result<()> {
     drop(workers);
     drop(front);
     drop(redis);
-    let engine_rate = engine_only(&demo, n, a.workers);
+    let engine_rate = engine_only(&demo, n, a.workers, false);
+    let engine_process_rate = engine_only(&demo, n, a.workers, true);
     println!("cases: {n} ({} errors), workers: {} x 1 thread", last.cases_error, a.workers);
     println!("submit stream finished after {submitted:.1} s");
     println!("end to end: {e2e_s:.1} s, {e2e_rate:.0} cases/s (front + redis + workers + parquet, finalize included)");
     println!("  of which the finalizer (one worker, after the last chunk): {finalize_s:.1} s");
     println!("engine only ({} threads): {engine_rate:.0} cases/s", a.workers);
-    println!("ratio e2e / engine: {:.2}", e2e_rate / engine_rate);
+    println!(
+        "engine with the process view ({} threads): {engine_process_rate:.0} cases/s",
+        a.workers
+    );
+    println!(
+        "ratio e2e / engine: {:.2} (screening only), {:.2} (with the process view)",
+        e2e_rate / engine_rate,
+        e2e_rate / engine_process_rate
+    );
     println!(
         "peak RSS (VmHWM): front {} MB, workers {:?} MB",
         front_kb / 1024,

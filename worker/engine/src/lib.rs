@@ -37,7 +37,7 @@ pub mod thermo;
 mod tsv;
 
 pub use process::{evaluate as evaluate_process, CaseProcess, ProcessConditions, ProcessError};
-pub use routes::{rank, ranks, roll_up, summarise, RouteScore, RouteStep, RouteSummary, StepFacts};
+pub use routes::{ranks, roll_up, summarise, RouteScore, RouteStep, RouteSummary, StepFacts};
 pub use screen::{ScreenError, Screened, Screener};
 pub use thermo::TemperatureGrid;
 

@@ -135,21 +135,16 @@ pub fn roll_up(steps: &[RouteStep]) -> Vec<RouteSummary> {
         by_route.entry(s.route_id).or_default().push(s);
     }
     let mut summaries: Vec<RouteSummary> = by_route.into_iter().map(|(id, route)| summarise(id, route)).collect();
-    rank(&mut summaries);
-    summaries
-}
-
-/// Sort `summaries` by the module's score and number them from 1. For a caller that rolls up
-/// routes a few at a time (with [`summarise`]) and ranks them all at the end.
-pub fn rank(summaries: &mut [RouteSummary]) {
     let ranks = ranks(&summaries.iter().map(RouteSummary::score).collect::<Vec<_>>());
     for (s, r) in summaries.iter_mut().zip(ranks) {
         s.rank = r;
     }
     summaries.sort_by_key(|s| s.rank);
+    summaries
 }
 
-/// The rank (from 1) of each score, in the order given.
+/// The rank (from 1) of each score, in the order given. For a caller that rolls up routes a few
+/// at a time (with [`summarise`]) and keeps only their scores.
 pub fn ranks(scores: &[RouteScore]) -> Vec<usize> {
     let mut order: Vec<usize> = (0..scores.len()).collect();
     order.sort_by(|&a, &b| scores[a].rank_order(&scores[b]));
@@ -208,11 +203,6 @@ impl RouteSummary {
             total_heat_kj: self.total_heat_kj.unwrap_or(f64::INFINITY),
             route_id: self.route_id.clone(),
         }
-    }
-
-    /// The module's score, as an order (less is better).
-    pub fn score_cmp(&self, o: &RouteSummary) -> Ordering {
-        self.score().rank_order(&o.score())
     }
 }
 

@@ -13,7 +13,7 @@
 //! - [`parts`]: batch folders, part paths, atomic writes, Parquet I/O.
 //! - [`finalize`]: part files → batch tables + manifest.
 //! - [`concat`]: part files → one Parquet file by copying compressed pages.
-//! - [`route_table`]: cases parts → routes rolled up and ranked, in bounded memory.
+//! - [`route_table`]: the chunks' routes parts → `routes.parquet`, ranked, in bounded memory.
 //! - [`run`]: the worker loop (poll, compute, write, acknowledge, reclaim, dead-letter, stop).
 
 pub mod concat;

@@ -7,6 +7,10 @@
 //! then `target/release/thermosieve-bench --cases 1000000`.
 
 use anyhow::{bail, Context};
+
+/// Many small strings per case: mimalloc instead of the system allocator.
+#[global_allocator]
+static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
 use clap::Parser;
 use std::path::PathBuf;
 use std::process::{Child, Command, Stdio};
@@ -31,6 +35,10 @@ struct Args {
     /// The thermosieve binary (default: next to this one).
     #[arg(long)]
     thermosieve: Option<PathBuf>,
+    /// Instead of the end-to-end run: time a worker's steps per chunk on one thread, in
+    /// process (screening with rows, frames, Parquet encoding of each part).
+    #[arg(long)]
+    stages: bool,
     /// Demo input to repeat.
     #[arg(long, default_value = "examples/nightly_screen.csv")]
     input: PathBuf,
@@ -55,6 +63,29 @@ fn vm_hwm_kb(pid: u32) -> u64 {
                 .and_then(|v| v.parse().ok())
         })
         .unwrap_or(0)
+}
+
+/// CPU seconds (user + system, all threads) a process has used so far.
+fn cpu_seconds(pid: &str, ticks_per_s: f64) -> f64 {
+    std::fs::read_to_string(format!("/proc/{pid}/stat"))
+        .ok()
+        .and_then(|s| {
+            // Fields after the parenthesised command name; utime and stime are fields 14 and 15.
+            let rest = s.rsplit_once(')')?.1;
+            let f: Vec<&str> = rest.split_whitespace().collect();
+            Some((f.get(11)?.parse::<f64>().ok()? + f.get(12)?.parse::<f64>().ok()?) / ticks_per_s)
+        })
+        .unwrap_or(f64::NAN)
+}
+
+fn clock_ticks_per_second() -> f64 {
+    Command::new("getconf")
+        .arg("CLK_TCK")
+        .output()
+        .ok()
+        .and_then(|o| String::from_utf8(o.stdout).ok())
+        .and_then(|s| s.trim().parse().ok())
+        .unwrap_or(100.0)
 }
 
 fn free_port() -> anyhow::Result<u16> {
@@ -98,9 +129,79 @@ fn engine_only(demo: &[CaseInput], n: usize, threads: usize, process: bool) -> f
     n as f64 / t0.elapsed().as_secs_f64()
 }
 
+/// One worker thread's steps per chunk, timed: what a chunk costs besides the engine.
+fn stages(demo: &[CaseInput], n: usize, chunk_size: usize) -> anyhow::Result<()> {
+    use thermosieve_worker::{parts, process::ChunkProcessor, rows};
+    let dir = std::env::temp_dir().join(format!("thermosieve-stages-{}", std::process::id()));
+    std::fs::create_dir_all(&dir)?;
+    let spec = thermosieve_queue::BatchSpec {
+        batch_id: "0".repeat(32),
+        temperatures_k: TemperatureGrid::default_process().temperatures_k().to_vec(),
+        default_conditions: thermosieve_queue::Conditions::default(),
+        chunk_size,
+        label: "stages".into(),
+        created_unix_ms: 0,
+    };
+    let all: Vec<CaseInput> = cases(demo, n).collect();
+    let mut processor = ChunkProcessor::new();
+    let mut t = [0f64; 7];
+    let names = [
+        "screen + process view + rows",
+        "cases frame",
+        "trends frame",
+        "routes roll-up + frame",
+        "write cases part",
+        "write trends part",
+        "write routes part",
+    ];
+    let mut chunks = 0;
+    for (seq, chunk) in all.chunks(chunk_size).enumerate() {
+        let mut lap = Instant::now();
+        let mut mark = |i: usize| {
+            t[i] += lap.elapsed().as_secs_f64();
+            lap = Instant::now();
+        };
+        let case_rows = processor.screen_cases(&spec, chunk);
+        mark(0);
+        let mut cases_df = rows::cases_frame(&case_rows)?;
+        mark(1);
+        let mut trends_df = rows::trends_frame(&case_rows)?;
+        mark(2);
+        let mut routes_df = rows::routes_frame(&rows::chunk_routes(&case_rows))?;
+        mark(3);
+        let seq = seq as u64;
+        parts::write_part(&parts::part_path(&dir, &spec.batch_id, "cases", seq)?, &mut cases_df)?;
+        mark(4);
+        parts::write_part(&parts::part_path(&dir, &spec.batch_id, "trends", seq)?, &mut trends_df)?;
+        mark(5);
+        parts::write_part(&parts::part_path(&dir, &spec.batch_id, "routes", seq)?, &mut routes_df)?;
+        mark(6);
+        chunks += 1;
+    }
+    let total: f64 = t.iter().sum();
+    println!(
+        "{n} cases in {chunks} chunks of {chunk_size}, one thread: {:.0} cases/s",
+        n as f64 / total
+    );
+    for (name, s) in names.iter().zip(t) {
+        println!(
+            "  {name:<30} {:>7.2} ms per chunk ({:>4.1} %)",
+            s * 1e3 / chunks as f64,
+            100.0 * s / total
+        );
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+    Ok(())
+}
+
 #[tokio::main]
 async fn main() -> anyhow::Result<()> {
     let a = Args::parse();
+    if a.stages {
+        let demo: Vec<CaseInput> = input::open(&a.input, None)?.collect();
+        let size = if a.chunk_size == 0 { 2000 } else { a.chunk_size as usize };
+        return stages(&demo, a.cases, size);
+    }
     let bin = match a.thermosieve {
         Some(b) => b,
         None => std::env::current_exe()?.parent().context("exe dir")?.join("thermosieve"),
@@ -176,13 +277,8 @@ async fn main() -> anyhow::Result<()> {
                 ..Default::default()
             })),
         });
-        for c in cases(&demo2, n) {
-            if tx
-                .blocking_send(pb::SubmitBatchRequest {
-                    item: Some(pb::submit_batch_request::Item::Case(convert::case_to_pb(&c))),
-                })
-                .is_err()
-            {
+        for message in convert::case_messages(cases(&demo2, n)) {
+            if tx.blocking_send(message).is_err() {
                 break;
             }
         }
@@ -209,6 +305,10 @@ async fn main() -> anyhow::Result<()> {
     }
     let manifest: serde_json::Value = serde_json::from_slice(&std::fs::read(dir.join("results").join(&id).join("manifest.json"))?)?;
     let finalize_s = manifest["timings"]["finalize_seconds"].as_f64().unwrap_or(f64::NAN);
+    let ticks = clock_ticks_per_second();
+    let cpu = |pid: u32| cpu_seconds(&pid.to_string(), ticks);
+    let (cpu_front, cpu_redis, cpu_client) = (cpu(front.0.id()), cpu(redis.0.id()), cpu_seconds("self", ticks));
+    let cpu_workers: Vec<f64> = workers.iter().map(|w| cpu(w.0.id())).collect();
     let front_kb = vm_hwm_kb(front.0.id());
     let worker_kb: Vec<u64> = workers.iter().map(|w| vm_hwm_kb(w.0.id())).collect();
     let e2e_rate = n as f64 / e2e_s;
@@ -230,6 +330,15 @@ async fn main() -> anyhow::Result<()> {
         "ratio e2e / engine: {:.2} (screening only), {:.2} (with the process view)",
         e2e_rate / engine_rate,
         e2e_rate / engine_process_rate
+    );
+    println!(
+        "CPU seconds: client (this bench: makes and sends the cases) {cpu_client:.1}, front {cpu_front:.1}, redis {cpu_redis:.1}, workers {:?} (of {:.1} wall s x cores)",
+        cpu_workers.iter().map(|c| (c * 10.0).round() / 10.0).collect::<Vec<_>>(),
+        e2e_s
+    );
+    println!(
+        "engine CPU seconds for these cases (from the rate with the process view): {:.1}",
+        n as f64 / engine_process_rate * a.workers as f64
     );
     println!(
         "peak RSS (VmHWM): front {} MB, workers {:?} MB",

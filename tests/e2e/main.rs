@@ -330,9 +330,12 @@ async fn submit(
             ..Default::default()
         })),
     }];
-    msgs.extend(cases.iter().map(|c| pb::SubmitBatchRequest {
+    // The first cases one to a message, the rest in lists: both forms of the stream.
+    let (single, listed) = cases.split_at(cases.len().min(100));
+    msgs.extend(single.iter().map(|c| pb::SubmitBatchRequest {
         item: Some(pb::submit_batch_request::Item::Case(convert::case_to_pb(c))),
     }));
+    msgs.extend(convert::case_messages(listed.iter().cloned()));
     let r = client.submit_batch(tokio_stream::iter(msgs)).await.expect("submit").into_inner();
     assert_eq!(r.cases_received, cases.len() as u64);
     r.batch_id

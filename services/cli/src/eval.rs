@@ -97,7 +97,7 @@ pub fn run(args: &EvalArgs) -> ExitCode {
     let mut screener = Screener::new(species::bundled(), grid);
     match screener.screen(&args.reaction) {
         Ok(s) => {
-            let mut out = render(&s, screener.table());
+            let mut out = render(&s);
             if let Some(pc) = args.conditions() {
                 match process::evaluate(&s, &pc) {
                     Ok(p) => out.push_str(&render_process(&p)),
@@ -142,7 +142,7 @@ fn fmt_opt(v: Option<f64>, digits: usize) -> String {
 
 /// The human report: equation, a table over temperature, species sources and notes (the caller
 /// appends the caution last).
-pub fn render(s: &Screened, table: &species::Table) -> String {
+pub fn render(s: &Screened) -> String {
     let mut o = String::new();
     let how = match s.outcome {
         Outcome::AlreadyBalanced => "balanced as written",
@@ -205,7 +205,7 @@ pub fn render(s: &Screened, table: &species::Table) -> String {
             "  {:<16} ν = {:>6}  valid {lo:.2}–{hi:.0} K  {}",
             r.label,
             t.nu.to_string(),
-            r.source_line(table)
+            r.source_line()
         );
     }
     if !s.notes.is_empty() {

@@ -9,6 +9,10 @@
 //! 3 the engine rejected the reaction (`eval`); 4 the batch ended failed or cancelled.
 
 use clap::{Parser, Subcommand};
+
+/// Many small strings per case: mimalloc instead of the system allocator.
+#[global_allocator]
+static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
 use std::process::ExitCode;
 
 mod eval;

@@ -388,13 +388,8 @@ async fn submit(a: SubmitArgs) -> anyhow::Result<()> {
         {
             return;
         }
-        for case in cases {
-            if tx
-                .blocking_send(pb::SubmitBatchRequest {
-                    item: Some(pb::submit_batch_request::Item::Case(convert::case_to_pb(&case))),
-                })
-                .is_err()
-            {
+        for message in convert::case_messages(cases) {
+            if tx.blocking_send(message).is_err() {
                 return;
             }
         }

@@ -1,9 +1,10 @@
 //! Wire types ↔ the queue's model and the worker's rows. Kept in one module so a new field is
 //! mapped in one place.
 
+use thermosieve_engine::ThermoPoint;
 use thermosieve_proto::v1 as pb;
 use thermosieve_queue::{BatchState, CaseInput, Conditions, Progress};
-use thermosieve_worker::rows::{CaseRow, TrendRow, STATUS_ERROR, STATUS_OK};
+use thermosieve_worker::rows::{CaseRow, STATUS_ERROR, STATUS_OK};
 
 pub fn conditions_from_pb(c: Option<pb::ProcessConditions>) -> Conditions {
     let Some(c) = c else { return Conditions::default() };
@@ -82,6 +83,23 @@ pub fn case_from_pb(c: pb::Case) -> CaseInput {
     }
 }
 
+/// Cases per `SubmitBatchRequest` a client sends (well under the 4 MiB message limit).
+pub const CASES_PER_MESSAGE: usize = 256;
+
+/// The case messages of a submission: cases in order, [`CASES_PER_MESSAGE`] to a message.
+pub fn case_messages<I: IntoIterator<Item = CaseInput>>(cases: I) -> impl Iterator<Item = pb::SubmitBatchRequest> {
+    let mut cases = cases.into_iter();
+    std::iter::from_fn(move || {
+        let list: Vec<pb::Case> = cases.by_ref().take(CASES_PER_MESSAGE).map(|c| case_to_pb(&c)).collect();
+        if list.is_empty() {
+            return None;
+        }
+        Some(pb::SubmitBatchRequest {
+            item: Some(pb::submit_batch_request::Item::Cases(pb::CaseList { cases: list })),
+        })
+    })
+}
+
 /// A model case on the wire (the CLI's `submit`).
 pub fn case_to_pb(c: &CaseInput) -> pb::Case {
     pb::Case {
@@ -117,9 +135,14 @@ pub fn case_row_to_pb(r: &CaseRow) -> pb::CaseRow {
     }
 }
 
-pub fn trend_row_to_pb(r: &TrendRow) -> pb::TrendRow {
+/// The trend rows of one case row.
+pub fn trend_rows_to_pb(r: &CaseRow) -> impl Iterator<Item = pb::TrendRow> + '_ {
+    r.trends.iter().map(|p| trend_point_to_pb(&r.case_id, p))
+}
+
+fn trend_point_to_pb(case_id: &str, r: &ThermoPoint) -> pb::TrendRow {
     pb::TrendRow {
-        case_id: r.case_id.clone(),
+        case_id: case_id.to_string(),
         temperature_k: r.temperature_k,
         delta_h_kj_per_mol: r.delta_h_kj_per_mol,
         delta_s_j_per_mol_k: r.delta_s_j_per_mol_k,

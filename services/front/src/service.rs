@@ -1,6 +1,6 @@
 //! The `thermosieve.v1.Screening` service and the server around it (health and reflection on).
 
-use crate::convert::{case_from_pb, case_row_to_pb, conditions_from_pb, status_to_pb, trend_row_to_pb};
+use crate::convert::{case_from_pb, case_row_to_pb, conditions_from_pb, status_to_pb, trend_rows_to_pb};
 use crate::error::FrontError;
 use crate::ingest::{batch_spec, is_batch_id, BatchOptions, Ingest, IngestLimits};
 use std::collections::HashMap;
@@ -130,10 +130,20 @@ impl Front {
             };
             let r = match msg.item {
                 Some(pb::submit_batch_request::Item::Case(c)) => ingest.push(case_from_pb(c)).await,
+                Some(pb::submit_batch_request::Item::Cases(list)) => {
+                    let mut r = Ok(());
+                    for c in list.cases {
+                        r = ingest.push(case_from_pb(c)).await;
+                        if r.is_err() {
+                            break;
+                        }
+                    }
+                    r
+                }
                 Some(pb::submit_batch_request::Item::Header(_)) => {
                     Err(FrontError::invalid("item.header", "only the first message may be a header"))
                 }
-                None => Err(FrontError::invalid("item", "empty message: set header or case")),
+                None => Err(FrontError::invalid("item", "empty message: set header, case or cases")),
             };
             if let Err(e) = r {
                 ingest.abort(&e.to_string()).await;
@@ -304,13 +314,13 @@ impl Screening for ScreeningService {
             })
             .collect();
         let processor = self.0.inline.clone();
-        let (case_rows, trend_rows) =
+        let case_rows =
             tokio::task::spawn_blocking(move || processor.lock().unwrap_or_else(|e| e.into_inner()).screen_cases(&spec, &cases))
                 .await
                 .map_err(|e| FrontError::Internal(format!("engine task: {e}")))?;
         Ok(Response::new(pb::ScreenInlineResponse {
             cases: case_rows.iter().map(case_row_to_pb).collect(),
-            trends: trend_rows.iter().map(trend_row_to_pb).collect(),
+            trends: case_rows.iter().flat_map(trend_rows_to_pb).collect(),
             engine_version: thermosieve_engine::VERSION.to_string(),
             caution: thermosieve_engine::CAUTION.to_string(),
         }))
@@ -345,7 +355,7 @@ pub fn resolve_one(query: &str) -> pb::SpeciesInfo {
             info.label = r.label.clone();
             info.formula = r.formula.hill();
             info.phase = r.phase.tag().to_string();
-            info.source_line = r.source_line(table);
+            info.source_line = r.source_line();
             info.valid_min_k = lo;
             info.valid_max_k = hi;
             info.delta_fh_298_kj_per_mol = st.h_j_per_mol / 1000.0;

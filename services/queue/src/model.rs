@@ -156,9 +156,12 @@ pub struct Chunk {
     pub cases: Vec<CaseInput>,
 }
 
-/// What a queue entry asks a worker to do.
+/// What a queue entry asks a worker to do: `{"chunk": {...}}` or `{"finalize": {...}}`.
+/// Externally tagged: an internal tag would make serde buffer a whole chunk in an
+/// intermediate tree before decoding it (that was a worker's largest cost outside the engine
+/// and Parquet).
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-#[serde(tag = "kind", rename_all = "snake_case")]
+#[serde(rename_all = "snake_case")]
 pub enum Task {
     /// Compute one chunk and write its part files.
     Chunk(Chunk),

@@ -25,6 +25,16 @@ use std::collections::HashMap;
 use std::sync::Mutex;
 use std::time::Duration;
 
+/// The JSON of `Task::Chunk(chunk)`, made from a borrowed chunk (no copy of its cases).
+fn chunk_payload(chunk: &Chunk) -> serde_json::Result<String> {
+    #[derive(serde::Serialize)]
+    #[serde(rename_all = "snake_case")]
+    enum TaskRef<'a> {
+        Chunk(&'a Chunk),
+    }
+    serde_json::to_string(&TaskRef::Chunk(chunk))
+}
+
 /// Consumer group of the workers.
 pub const GROUP: &str = "workers";
 
@@ -331,7 +341,7 @@ impl Queue for RedisQueue {
     }
 
     async fn enqueue(&self, chunk: &Chunk) -> Result<(), QueueError> {
-        let payload = serde_json::to_string(&Task::Chunk(chunk.clone()))?;
+        let payload = chunk_payload(chunk)?;
         let mut c = self.conn.clone();
         let r: i64 = self
             .scripts
@@ -573,5 +583,28 @@ impl Queue for RedisQueue {
 
     async fn recover(&self) -> Result<(), QueueError> {
         self.ensure_group().await
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_chunk_payload_decodes_as_its_task() {
+        let chunk = Chunk {
+            batch_id: "ab".into(),
+            seq: 7,
+            cases: vec![CaseInput {
+                case_id: "c1".into(),
+                reaction: "CO + O2 -> CO2".into(),
+                route_id: Some("r".into()),
+                step: Some(2),
+                row: 3,
+                ..Default::default()
+            }],
+        };
+        let task: Task = serde_json::from_str(&chunk_payload(&chunk).unwrap()).unwrap();
+        assert_eq!(task, Task::Chunk(chunk));
     }
 }

@@ -39,7 +39,7 @@ mod tsv;
 pub use process::{evaluate as evaluate_process, CaseProcess, ProcessConditions, ProcessError};
 pub use routes::{ranks, roll_up, summarise, RouteScore, RouteStep, RouteSummary, StepFacts};
 pub use screen::{ScreenError, Screened, Screener};
-pub use thermo::TemperatureGrid;
+pub use thermo::{TemperatureGrid, ThermoPoint};
 
 /// Engine version, written into every result.
 pub const VERSION: &str = env!("CARGO_PKG_VERSION");

@@ -67,6 +67,8 @@ pub struct Prepared {
     pub transition_k: Option<f64>,
     /// A note for results when the grid reaches past `transition_k`.
     grid_note: Option<String>,
+    /// `label: sources`, the data behind this species in one line (made once, shown per case).
+    pub citation: String,
 }
 
 /// One species of a screened reaction with its stoichiometric number (negative for reactants).
@@ -208,6 +210,7 @@ impl<'t> Screener<'t> {
             )
         });
         Prepared {
+            citation: format!("{}: {}", resolved.label, resolved.source_line()),
             transition_k,
             grid_note,
             at_ref: eval(T_REF_K),

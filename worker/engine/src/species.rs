@@ -246,7 +246,7 @@ impl Resolved {
     }
 
     /// One line naming the data behind this species: each source, then the records used from it.
-    pub fn source_line(&self, _table: &Table) -> String {
+    pub fn source_line(&self) -> String {
         let mut parts: Vec<(String, Vec<String>)> = Vec::new();
         for o in &self.origin {
             let (source, item) = match o {

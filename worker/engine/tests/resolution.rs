@@ -112,7 +112,7 @@ fn open_liquids_and_atct_uncertainties() {
         "{}",
         r.standard.delta_h_kj_per_mol
     );
-    assert!(r.species[0].species.resolved.source_line(s.table()).contains("ATcT"));
+    assert!(r.species[0].species.resolved.source_line().contains("ATcT"));
     // Water formation: H2 and O2 are reference elements (σ = 0), H2O(l) carries ATcT 1.112's
     // ±0.027 kJ/mol (data/nasa_uncertainty.tsv), so the reaction's uncertainty is that one.
     let w = s.screen("H2(g) + 1/2 O2(g) -> H2O(l)").unwrap();

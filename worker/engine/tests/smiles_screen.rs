@@ -45,7 +45,7 @@ fn estimated_species_are_counted_and_named() {
         .find(|t| t.species.resolved.label.starts_with("CCOC(C)=O"))
         .unwrap();
     assert!(matches!(ester.species.resolved.origin[0], Origin::Estimated { .. }));
-    assert!(ester.species.resolved.source_line(species::bundled()).contains("Joback"));
+    assert!(ester.species.resolved.source_line().contains("Joback"));
     assert!(ester.species.resolved.dhf_uncertainty_kj_per_mol.unwrap() > 10.0);
     // Every species now carries an uncertainty (ATcT for the tabulated ones), so the reaction's
     // root-sum-square is given and is at least the ester's own.

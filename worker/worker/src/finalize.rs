@@ -5,7 +5,7 @@
 //! and trends tables are written on two threads at once.
 
 use crate::concat::Concat;
-use crate::parts::{batch_dir, part_path, read_parquet_columns, write_atomic};
+use crate::parts::{batch_dir, part_path, read_parquet_columns, write_atomic, FrameWriter};
 use crate::route_table::RouteTable;
 use crate::rows::{self, STATUS_OK};
 use crate::WorkerError;
@@ -120,8 +120,7 @@ fn concat_parts(
         }
         rows = out.rows;
         if out.finish(table_metadata(spec, file), &path)?.is_none() {
-            let kv = KeyValueMetadata::from_static(table_metadata(spec, file));
-            ParquetWriter::new(f).with_key_value_metadata(Some(kv)).finish(&mut empty.clone())?;
+            FrameWriter::new(f, empty.schema())?.finish(table_metadata(spec, file))?;
         }
         Ok(())
     })?;
@@ -166,19 +165,9 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
     let route_count = routes.routes() as u64;
     let routes_path = dir.join(ROUTES_FILE);
     write_atomic(&routes_path, |f| {
-        let kv = KeyValueMetadata::from_static(table_metadata(spec, ROUTES_FILE));
-        let empty = rows::routes_frame(&[])?;
-        let mut w = ParquetWriter::new(f).with_key_value_metadata(Some(kv)).batched(empty.schema())?;
-        let mut wrote_any = false;
-        routes.finish(|df| {
-            wrote_any = true;
-            Ok(w.write_batch(df)?)
-        })?;
-        if !wrote_any {
-            w.write_batch(&empty)?;
-        }
-        w.finish()?;
-        Ok(())
+        let mut w = FrameWriter::new(f, rows::routes_frame(&[])?.schema())?;
+        routes.finish(|df| w.write(df))?;
+        w.finish(table_metadata(spec, ROUTES_FILE))
     })?;
     let routes_bytes = std::fs::metadata(&routes_path).map_or(0, |m| m.len());
 

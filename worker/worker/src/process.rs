@@ -1,7 +1,7 @@
 //! The engine applied to cases: one [`ChunkProcessor`] per engine thread, holding a
 //! [`Screener`] per temperature grid so the species cache carries over from chunk to chunk.
 
-use crate::rows::{self, build_rows, CaseRow, TrendRow};
+use crate::rows::{self, build_row, CaseRow};
 use std::panic::{catch_unwind, AssertUnwindSafe};
 use thermosieve_engine::{species, Screener, TemperatureGrid};
 use thermosieve_queue::{BatchSpec, CaseInput};
@@ -41,10 +41,8 @@ impl ChunkProcessor {
     }
 
     /// Rows for every case, in order: exactly one case row per case, whatever happens.
-    pub fn screen_cases(&mut self, spec: &BatchSpec, cases: &[CaseInput]) -> (Vec<CaseRow>, Vec<TrendRow>) {
-        let table = species::bundled();
+    pub fn screen_cases(&mut self, spec: &BatchSpec, cases: &[CaseInput]) -> Vec<CaseRow> {
         let mut case_rows = Vec::with_capacity(cases.len());
-        let mut trend_rows = Vec::with_capacity(cases.len() * spec.temperatures_k.len());
         let mut screener = self.screener(&spec.temperatures_k);
         for case in cases {
             let conditions = case.conditions.or_defaults(&spec.default_conditions);
@@ -55,12 +53,7 @@ impl ChunkProcessor {
                 (Ok(s), None) => {
                     // A panic in the engine must cost one case, not the chunk or the worker.
                     match catch_unwind(AssertUnwindSafe(|| s.screen(&case.reaction))) {
-                        Ok(Ok(screened)) => {
-                            let (c, t) = build_rows(case, &conditions, Ok(&screened), table);
-                            case_rows.push(c);
-                            trend_rows.extend(t);
-                            continue;
-                        }
+                        Ok(Ok(screened)) => Ok(screened),
                         Ok(Err(e)) => Err(rows::engine_error_message(case, &e)),
                         Err(_) => Err(format!(
                             "internal error: the engine panicked on this reaction ({:?}); please report it",
@@ -69,9 +62,8 @@ impl ChunkProcessor {
                     }
                 }
             };
-            let (c, _) = build_rows(case, &conditions, result, table);
-            case_rows.push(c);
+            case_rows.push(build_row(case, &conditions, result));
         }
-        (case_rows, trend_rows)
+        case_rows
     }
 }

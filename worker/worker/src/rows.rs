@@ -1,15 +1,16 @@
 //! The one place where engine results become table rows.
 //!
-//! [`build_rows`] turns one case and its engine result into a [`CaseRow`] and its
-//! [`TrendRow`]s; [`cases_frame`], [`trends_frame`] and [`routes_frame`] turn rows into polars
-//! frames with the published column names. A new engine output (heat budget, estimated species)
-//! becomes a column by adding a field to the row, one line in `build_rows` and one in the frame
+//! [`build_row`] turns one case and its engine result into a [`CaseRow`] (which keeps the
+//! engine's grid points for the trends table); [`cases_frame`], [`trends_frame`] and
+//! [`routes_frame`] turn rows into polars frames with the published column names. Frames borrow
+//! the rows' text: nothing is copied twice on the way to Parquet. A new engine output (heat budget, estimated species)
+//! becomes a column by adding a field to the row, one line in `build_row` and one in the frame
 //! function: nothing else in the service changes.
 
 use polars::prelude::{Column, DataFrame, PolarsResult};
 use thermosieve_engine::process::{self, Assessment, CaseProcess, CriticalityClass, ProcessConditions, Scale};
 use thermosieve_engine::routes::{roll_up, HeatPerProduct, RouteScore, RouteStep, RouteSummary, StepFacts};
-use thermosieve_engine::{species::Table, ScreenError, Screened};
+use thermosieve_engine::{ScreenError, Screened, ThermoPoint};
 use thermosieve_queue::{CaseInput, CONDITION_FIELDS};
 
 /// `status` of a case row.
@@ -50,6 +51,8 @@ pub struct CaseRow {
     pub process: ProcessColumns,
     /// What the route roll-up needs of the process view; `None` when there is none.
     pub step_facts: Option<StepFacts>,
+    /// The reaction at each grid temperature (rows of `trends.parquet`); empty on error.
+    pub trends: Vec<ThermoPoint>,
 }
 
 /// Process-view columns of a case row; all empty when the reaction failed.
@@ -64,7 +67,7 @@ pub struct ProcessColumns {
     pub heat_kj_per_batch: Option<f64>,
     pub adiabatic_rise_k: Option<f64>,
     pub mtsr_k: Option<f64>,
-    pub severity: Option<String>,
+    pub severity: Option<&'static str>,
     pub criticality_class: Option<u32>,
     /// Why the class is not assessed (the missing inputs), when it is not.
     pub criticality_not_assessed: Option<String>,
@@ -119,7 +122,7 @@ fn process_columns(p: &CaseProcess) -> ProcessColumns {
         heat_kj_per_batch: Some(p.heat.heat_kj_per_batch),
         adiabatic_rise_k: Some(p.heat.adiabatic_rise_k),
         mtsr_k: Some(p.heat.mtsr_k),
-        severity: Some(p.severity.as_str().to_string()),
+        severity: Some(p.severity.as_str()),
         criticality_class: class,
         criticality_not_assessed: not_assessed,
         gas_mol_per_batch: Some(p.gas.gas_mol_per_batch),
@@ -130,18 +133,6 @@ fn process_columns(p: &CaseProcess) -> ProcessColumns {
         estimated_species_labels: (!p.estimated_species.is_empty()).then(|| p.estimated_species.join(JOIN)),
         process_error: None,
     }
-}
-
-/// One row of `trends.parquet`: one case at one grid temperature.
-#[derive(Clone, Debug, PartialEq)]
-pub struct TrendRow {
-    pub case_id: String,
-    pub temperature_k: f64,
-    pub delta_h_kj_per_mol: f64,
-    pub delta_s_j_per_mol_k: f64,
-    pub delta_g_kj_per_mol: f64,
-    pub log10_k: f64,
-    pub in_valid_range: bool,
 }
 
 /// The message of an engine error for one case, naming the input row and column.
@@ -165,13 +156,8 @@ pub fn missing_reaction_message(case: &CaseInput) -> String {
     )
 }
 
-/// The rows of one case. `conditions` are the case's conditions merged with the batch defaults.
-pub fn build_rows(
-    case: &CaseInput,
-    conditions: &thermosieve_queue::Conditions,
-    result: Result<&Screened, String>,
-    table: &Table,
-) -> (CaseRow, Vec<TrendRow>) {
+/// The row of one case. `conditions` are the case's conditions merged with the batch defaults.
+pub fn build_row(case: &CaseInput, conditions: &thermosieve_queue::Conditions, result: Result<Screened, String>) -> CaseRow {
     let mut row = CaseRow {
         case_id: case.case_id.clone(),
         route_id: case.route_id.clone(),
@@ -196,16 +182,16 @@ pub fn build_rows(
         input_row: case.row,
         process: ProcessColumns::default(),
         step_facts: None,
+        trends: Vec::new(),
     };
     let s = match result {
         Ok(s) => s,
         Err(message) => {
             row.error_message = Some(message);
-            return (row, Vec::new());
+            return row;
         }
     };
     row.ok = true;
-    row.balanced_equation = Some(s.balanced_equation.clone());
     row.delta_h_298_kj_per_mol = Some(s.standard.delta_h_kj_per_mol);
     row.delta_s_298_j_per_mol_k = Some(s.standard.delta_s_j_per_mol_k);
     row.delta_g_298_kj_per_mol = Some(s.standard.delta_g_kj_per_mol);
@@ -213,7 +199,7 @@ pub fn build_rows(
     row.delta_g_zero_k = s.delta_g_zero_k;
     row.delta_h_uncertainty_kj_per_mol = s.delta_h_uncertainty_kj_per_mol;
     row.estimated_species = s.estimated_species as u32;
-    row.process = match process::evaluate(s, &process_conditions(conditions)) {
+    row.process = match process::evaluate(&s, &process_conditions(conditions)) {
         Ok(p) => {
             row.step_facts = Some(StepFacts::from(&p));
             process_columns(&p)
@@ -224,27 +210,12 @@ pub fn build_rows(
         },
     };
     row.all_points_in_valid_range = Some(s.points.iter().all(|p| p.in_valid_range));
-    let sources: Vec<String> = s
-        .species
-        .iter()
-        .map(|t| format!("{}: {}", t.species.resolved.label, t.species.resolved.source_line(table)))
-        .collect();
+    let sources: Vec<&str> = s.species.iter().map(|t| t.species.citation.as_str()).collect();
     row.species_sources = Some(sources.join(JOIN));
     row.notes = (!s.notes.is_empty()).then(|| s.notes.join(JOIN));
-    let trends = s
-        .points
-        .iter()
-        .map(|p| TrendRow {
-            case_id: case.case_id.clone(),
-            temperature_k: p.temperature_k,
-            delta_h_kj_per_mol: p.delta_h_kj_per_mol,
-            delta_s_j_per_mol_k: p.delta_s_j_per_mol_k,
-            delta_g_kj_per_mol: p.delta_g_kj_per_mol,
-            log10_k: p.log10_k,
-            in_valid_range: p.in_valid_range,
-        })
-        .collect();
-    (row, trends)
+    row.balanced_equation = Some(s.balanced_equation);
+    row.trends = s.points;
+    row
 }
 
 fn col<T>(name: &str, values: T) -> Column
@@ -268,27 +239,39 @@ macro_rules! column_from {
         }
     )*};
 }
-column_from!(String, Option<String>, f64, Option<f64>, u32, Option<u32>, bool, Option<bool>, u64);
+column_from!(
+    String,
+    Option<String>,
+    &str,
+    Option<&str>,
+    f64,
+    Option<f64>,
+    u32,
+    Option<u32>,
+    bool,
+    Option<bool>,
+    u64
+);
 
 /// `cases.parquet` columns, in order.
 ///
 /// # Errors
 /// Polars errors (not expected: all columns have the same length).
 pub fn cases_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
-    let s = |f: fn(&CaseRow) -> Option<String>| rows.iter().map(f).collect::<Vec<Option<String>>>();
+    let s = |f: for<'a> fn(&'a CaseRow) -> Option<&'a str>| rows.iter().map(f).collect::<Vec<Option<&str>>>();
     let n = |f: fn(&CaseRow) -> Option<f64>| rows.iter().map(f).collect::<Vec<Option<f64>>>();
     let mut columns = vec![
-        col("case_id", rows.iter().map(|r| r.case_id.clone()).collect::<Vec<String>>()),
-        col("route_id", s(|r| r.route_id.clone())),
+        col("case_id", rows.iter().map(|r| r.case_id.as_str()).collect::<Vec<&str>>()),
+        col("route_id", s(|r| r.route_id.as_deref())),
         col("step", rows.iter().map(|r| r.step).collect::<Vec<Option<u32>>>()),
         col(
             "status",
             rows.iter()
-                .map(|r| (if r.ok { STATUS_OK } else { STATUS_ERROR }).to_string())
-                .collect::<Vec<String>>(),
+                .map(|r| if r.ok { STATUS_OK } else { STATUS_ERROR })
+                .collect::<Vec<&str>>(),
         ),
-        col("error_message", s(|r| r.error_message.clone())),
-        col("balanced_equation", s(|r| r.balanced_equation.clone())),
+        col("error_message", s(|r| r.error_message.as_deref())),
+        col("balanced_equation", s(|r| r.balanced_equation.as_deref())),
         col("delta_h_298_kj_per_mol", n(|r| r.delta_h_298_kj_per_mol)),
         col("delta_s_298_j_per_mol_k", n(|r| r.delta_s_298_j_per_mol_k)),
         col("delta_g_298_kj_per_mol", n(|r| r.delta_g_298_kj_per_mol)),
@@ -300,17 +283,17 @@ pub fn cases_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
             "all_points_in_valid_range",
             rows.iter().map(|r| r.all_points_in_valid_range).collect::<Vec<Option<bool>>>(),
         ),
-        col("species_sources", s(|r| r.species_sources.clone())),
-        col("notes", s(|r| r.notes.clone())),
-        col("reaction", rows.iter().map(|r| r.reaction.clone()).collect::<Vec<String>>()),
-        col("phase", s(|r| r.phase.clone())),
+        col("species_sources", s(|r| r.species_sources.as_deref())),
+        col("notes", s(|r| r.notes.as_deref())),
+        col("reaction", rows.iter().map(|r| r.reaction.as_str()).collect::<Vec<&str>>()),
+        col("phase", s(|r| r.phase.as_deref())),
     ];
     for (i, name) in CONDITION_FIELDS.iter().enumerate() {
         columns.push(col(name, rows.iter().map(|r| r.conditions[i]).collect::<Vec<Option<f64>>>()));
     }
-    columns.push(col("conditions_extra_json", s(|r| r.conditions_extra_json.clone())));
+    columns.push(col("conditions_extra_json", s(|r| r.conditions_extra_json.as_deref())));
     let pn = |f: fn(&ProcessColumns) -> Option<f64>| rows.iter().map(|r| f(&r.process)).collect::<Vec<Option<f64>>>();
-    let ps = |f: fn(&ProcessColumns) -> Option<String>| rows.iter().map(|r| f(&r.process)).collect::<Vec<Option<String>>>();
+    let ps = |f: for<'a> fn(&'a ProcessColumns) -> Option<&'a str>| rows.iter().map(|r| f(&r.process)).collect::<Vec<Option<&str>>>();
     columns.extend([
         col("process_temperature_used_k", pn(|p| p.process_temperature_k)),
         col("reaction_mol_per_batch", pn(|p| p.reaction_mol_per_batch)),
@@ -321,45 +304,50 @@ pub fn cases_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
         col("heat_kj_per_batch", pn(|p| p.heat_kj_per_batch)),
         col("adiabatic_rise_k", pn(|p| p.adiabatic_rise_k)),
         col("mtsr_k", pn(|p| p.mtsr_k)),
-        col("severity", ps(|p| p.severity.clone())),
+        col("severity", ps(|p| p.severity)),
         col(
             "criticality_class",
             rows.iter().map(|r| r.process.criticality_class).collect::<Vec<Option<u32>>>(),
         ),
-        col("criticality_not_assessed", ps(|p| p.criticality_not_assessed.clone())),
+        col("criticality_not_assessed", ps(|p| p.criticality_not_assessed.as_deref())),
         col("gas_mol_per_batch", pn(|p| p.gas_mol_per_batch)),
         col("gas_m3_at_0c_1atm", pn(|p| p.gas_m3_at_0c_1atm)),
         col("cooling_margin_kw", pn(|p| p.cooling_margin_kw)),
-        col("assumed_inputs", ps(|p| p.assumed_inputs.clone())),
+        col("assumed_inputs", ps(|p| p.assumed_inputs.as_deref())),
         col(
             "in_valid_range_at_process",
             rows.iter()
                 .map(|r| r.process.in_valid_range_at_process)
                 .collect::<Vec<Option<bool>>>(),
         ),
-        col("estimated_species_labels", ps(|p| p.estimated_species_labels.clone())),
-        col("process_error", ps(|p| p.process_error.clone())),
+        col("estimated_species_labels", ps(|p| p.estimated_species_labels.as_deref())),
+        col("process_error", ps(|p| p.process_error.as_deref())),
     ]);
     columns.push(col("input_row", rows.iter().map(|r| r.input_row).collect::<Vec<u64>>()));
     DataFrame::new(rows.len(), columns)
 }
 
-/// `trends.parquet` columns, in order.
+/// `trends.parquet` columns, in order: one row per case and grid temperature.
 ///
 /// # Errors
 /// Polars errors (not expected).
-pub fn trends_frame(rows: &[TrendRow]) -> PolarsResult<DataFrame> {
-    let n = |f: fn(&TrendRow) -> f64| rows.iter().map(f).collect::<Vec<f64>>();
+pub fn trends_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
+    let points = || rows.iter().flat_map(|r| r.trends.iter());
+    let n = |f: fn(&ThermoPoint) -> f64| points().map(f).collect::<Vec<f64>>();
+    let case_ids: Vec<&str> = rows
+        .iter()
+        .flat_map(|r| std::iter::repeat_n(r.case_id.as_str(), r.trends.len()))
+        .collect();
     DataFrame::new(
-        rows.len(),
+        case_ids.len(),
         vec![
-            col("case_id", rows.iter().map(|r| r.case_id.clone()).collect::<Vec<String>>()),
-            col("temperature_k", n(|r| r.temperature_k)),
-            col("delta_h_kj_per_mol", n(|r| r.delta_h_kj_per_mol)),
-            col("delta_s_j_per_mol_k", n(|r| r.delta_s_j_per_mol_k)),
-            col("delta_g_kj_per_mol", n(|r| r.delta_g_kj_per_mol)),
-            col("log10_k", n(|r| r.log10_k)),
-            col("in_valid_range", rows.iter().map(|r| r.in_valid_range).collect::<Vec<bool>>()),
+            col("case_id", case_ids),
+            col("temperature_k", n(|p| p.temperature_k)),
+            col("delta_h_kj_per_mol", n(|p| p.delta_h_kj_per_mol)),
+            col("delta_s_j_per_mol_k", n(|p| p.delta_s_j_per_mol_k)),
+            col("delta_g_kj_per_mol", n(|p| p.delta_g_kj_per_mol)),
+            col("log10_k", n(|p| p.log10_k)),
+            col("in_valid_range", points().map(|p| p.in_valid_range).collect::<Vec<bool>>()),
         ],
     )
 }

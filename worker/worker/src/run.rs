@@ -11,14 +11,13 @@
 use crate::finalize::{finalize, Manifest};
 use crate::parts::{part_path, write_part};
 use crate::process::ChunkProcessor;
-use crate::rows::{self, build_rows};
+use crate::rows::{self, build_row};
 use crate::WorkerError;
 use std::collections::HashMap;
 use std::future::Future;
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::time::{Duration, Instant};
-use thermosieve_engine::species;
 use thermosieve_queue::{BatchSpec, BatchState, Chunk, ChunkReport, Delivery, Progress, Queue, QueueError, Task};
 use tokio::sync::{oneshot, watch};
 
@@ -88,8 +87,8 @@ pub fn commit_chunk(
     spec: &BatchSpec,
     chunk: &Chunk,
 ) -> Result<ChunkReport, WorkerError> {
-    let (cases, trends) = processor.screen_cases(spec, &chunk.cases);
-    write_parts(results_dir, spec, chunk.seq, &cases, &trends, false)
+    let cases = processor.screen_cases(spec, &chunk.cases);
+    write_parts(results_dir, spec, chunk.seq, &cases, false)
 }
 
 /// Write a dead-lettered chunk: every case an error row with `reason`.
@@ -97,36 +96,20 @@ pub fn commit_chunk(
 /// # Errors
 /// I/O and Polars errors.
 pub fn commit_dead_chunk(results_dir: &Path, spec: &BatchSpec, chunk: &Chunk, reason: &str) -> Result<ChunkReport, WorkerError> {
-    let table = species::bundled();
     let cases: Vec<rows::CaseRow> = chunk
         .cases
         .iter()
-        .map(|c| {
-            build_rows(
-                c,
-                &c.conditions.or_defaults(&spec.default_conditions),
-                Err(reason.to_string()),
-                table,
-            )
-            .0
-        })
+        .map(|c| build_row(c, &c.conditions.or_defaults(&spec.default_conditions), Err(reason.to_string())))
         .collect();
-    write_parts(results_dir, spec, chunk.seq, &cases, &[], true)
+    write_parts(results_dir, spec, chunk.seq, &cases, true)
 }
 
-fn write_parts(
-    results_dir: &Path,
-    spec: &BatchSpec,
-    seq: u64,
-    cases: &[rows::CaseRow],
-    trends: &[rows::TrendRow],
-    dead: bool,
-) -> Result<ChunkReport, WorkerError> {
+fn write_parts(results_dir: &Path, spec: &BatchSpec, seq: u64, cases: &[rows::CaseRow], dead: bool) -> Result<ChunkReport, WorkerError> {
     let errors = cases.iter().filter(|r| !r.ok).count() as u64;
     // Trends and routes first: the cases part is what the finalizer checks for, so it lands last.
     write_part(
         &part_path(results_dir, &spec.batch_id, "trends", seq)?,
-        &mut rows::trends_frame(trends)?,
+        &mut rows::trends_frame(cases)?,
     )?;
     write_part(
         &part_path(results_dir, &spec.batch_id, "routes", seq)?,

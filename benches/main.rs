@@ -163,18 +163,18 @@ fn stages(demo: &[CaseInput], n: usize, chunk_size: usize) -> anyhow::Result<()>
         };
         let case_rows = processor.screen_cases(&spec, chunk);
         mark(0);
-        let mut cases_df = rows::cases_frame(&case_rows)?;
+        let cases_df = rows::cases_frame(&case_rows)?;
         mark(1);
-        let mut trends_df = rows::trends_frame(&case_rows)?;
+        let trends_df = rows::trends_frame(&case_rows)?;
         mark(2);
-        let mut routes_df = rows::routes_frame(&rows::chunk_routes(&case_rows))?;
+        let routes_df = rows::routes_frame(&rows::chunk_routes(&case_rows))?;
         mark(3);
         let seq = seq as u64;
-        parts::write_part(&parts::part_path(&dir, &spec.batch_id, "cases", seq)?, &mut cases_df)?;
+        parts::write_part(&parts::part_path(&dir, &spec.batch_id, "cases", seq)?, &cases_df)?;
         mark(4);
-        parts::write_part(&parts::part_path(&dir, &spec.batch_id, "trends", seq)?, &mut trends_df)?;
+        parts::write_part(&parts::part_path(&dir, &spec.batch_id, "trends", seq)?, &trends_df)?;
         mark(5);
-        parts::write_part(&parts::part_path(&dir, &spec.batch_id, "routes", seq)?, &mut routes_df)?;
+        parts::write_part(&parts::part_path(&dir, &spec.batch_id, "routes", seq)?, &routes_df)?;
         mark(6);
         chunks += 1;
     }

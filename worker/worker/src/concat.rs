@@ -6,18 +6,20 @@
 use crate::WorkerError;
 use polars_buffer::Buffer;
 use polars_parquet::parquet::error::ParquetError;
-use polars_parquet::parquet::metadata::{KeyValue, SchemaDescriptor};
+use polars_parquet::parquet::metadata::{FileMetadata, KeyValue, SchemaDescriptor};
 use polars_parquet::parquet::page::CompressedPage;
 use polars_parquet::parquet::read::PageReader;
 use polars_parquet::parquet::read::{get_page_iterator, read_metadata};
 use polars_parquet::parquet::write::{DynIter, DynStreamingIterator, FileWriter, Version, WriteOptions};
 use polars_parquet::parquet::FallibleStreamingIterator;
 use std::io::{Cursor, Write};
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
-/// A column chunk's compressed pages, as the writer takes them.
+/// One column's compressed pages across the column chunks of several parts, in order: the
+/// pages of one column chunk of the output.
 struct Pages {
-    pages: PageReader,
+    readers: std::vec::IntoIter<PageReader>,
+    pages: Option<PageReader>,
     current: Option<CompressedPage>,
 }
 
@@ -26,7 +28,14 @@ impl FallibleStreamingIterator for Pages {
     type Error = ParquetError;
 
     fn advance(&mut self) -> Result<(), ParquetError> {
-        self.current = self.pages.next().transpose()?;
+        self.current = None;
+        while self.current.is_none() {
+            let Some(pages) = self.pages.as_mut() else { break };
+            match pages.next().transpose()? {
+                Some(page) => self.current = Some(page),
+                None => self.pages = self.readers.next(),
+            }
+        }
         // A page read back does not know its row count; the writer needs it. Every column here
         // is flat (checked in `append`), so a data page holds one row per value.
         if let Some(CompressedPage::Data(page)) = &mut self.current {
@@ -49,13 +58,31 @@ fn parquet_err(path: &Path) -> impl FnOnce(ParquetError) -> WorkerError + '_ {
     }
 }
 
-/// Appends parts to one Parquet file.
+/// Rows a row group of the output gathers (from as many parts as it takes). Parts are small
+/// (one chunk each); a row group per part would make the footer, which the writer holds in
+/// memory and every reader parses, grow with the batch.
+pub const ROW_GROUP_ROWS: u64 = 65_536;
+
+/// A part read into memory, waiting to join a row group.
+struct Part {
+    path: PathBuf,
+    buffer: Buffer<u8>,
+    meta: FileMetadata,
+}
+
+/// Appends parts to one Parquet file. Their column chunks are joined into row groups of about
+/// [`ROW_GROUP_ROWS`] rows: a column chunk of the output is the pages of that column in each
+/// part, one after the other. That needs parts without dictionary pages (a column chunk holds
+/// one dictionary at most): the part writer writes plain pages only.
 pub struct Concat<W: Write> {
     writer: Option<FileWriter<W>>,
     out: Option<W>,
     /// The first part's key-value metadata (polars keeps its Arrow schema there).
     kv: Vec<KeyValue>,
     schema: Option<SchemaDescriptor>,
+    pending: Vec<Part>,
+    pending_rows: u64,
+    /// Rows appended so far.
     pub rows: u64,
 }
 
@@ -66,14 +93,17 @@ impl<W: Write> Concat<W> {
             out: Some(out),
             kv: Vec::new(),
             schema: None,
+            pending: Vec::new(),
+            pending_rows: 0,
             rows: 0,
         }
     }
 
-    /// Append every row group of the part at `path`.
+    /// Append every row of the part at `path`.
     ///
     /// # Errors
-    /// I/O errors, an unreadable part, or a part whose schema differs from the first one's.
+    /// I/O errors, an unreadable part, a part whose schema differs from the first one's, or
+    /// one with a nested column or a dictionary page.
     pub fn append(&mut self, path: &Path) -> Result<(), WorkerError> {
         let bytes = std::fs::read(path).map_err(|source| WorkerError::Io {
             path: path.to_path_buf(),
@@ -81,11 +111,26 @@ impl<W: Write> Concat<W> {
         })?;
         let buffer = Buffer::from(bytes);
         let meta = read_metadata(&mut Cursor::new(buffer.clone())).map_err(parquet_err(path))?;
+        let refuse = |reason: String| WorkerError::Concat {
+            path: path.to_path_buf(),
+            reason,
+        };
         if let Some(c) = meta.schema().columns().iter().find(|c| c.descriptor.max_rep_level > 0) {
-            return Err(WorkerError::Concat {
-                path: path.to_path_buf(),
-                reason: format!("column {:?} is nested; only flat columns are copied", c.path_in_schema),
-            });
+            return Err(refuse(format!(
+                "column {:?} is nested; only flat columns are copied",
+                c.path_in_schema
+            )));
+        }
+        let dictionary = meta
+            .row_groups
+            .iter()
+            .flat_map(|g| g.parquet_columns())
+            .find(|c| c.dictionary_page_offset().is_some());
+        if let Some(c) = dictionary {
+            return Err(refuse(format!(
+                "column {:?} has a dictionary page; only plain parts can share a row group",
+                c.descriptor().path_in_schema
+            )));
         }
         if self.writer.is_none() {
             self.kv = meta.key_value_metadata().clone().unwrap_or_default();
@@ -102,22 +147,46 @@ impl<W: Write> Concat<W> {
                 Some(meta.created_by.clone().unwrap_or_default()),
             ));
         } else if self.schema.as_ref().map(|s| s.columns()) != Some(meta.schema().columns()) {
-            return Err(WorkerError::Concat {
-                path: path.to_path_buf(),
-                reason: "its schema differs from the first part's".into(),
-            });
+            return Err(refuse("its schema differs from the first part's".into()));
         }
-        let writer = self.writer.as_mut().expect("writer set above");
-        for group in &meta.row_groups {
-            let n = group.num_rows() as u64;
-            let buffer = buffer.clone();
-            let columns = group.parquet_columns().iter().map(move |c| {
-                get_page_iterator(c, Cursor::new(buffer.clone()), Vec::new(), usize::MAX)
-                    .map(|pages| DynStreamingIterator::new(Pages { pages, current: None }))
-            });
-            writer.write(n, DynIter::new(columns)).map_err(parquet_err(path))?;
-            self.rows += n;
+        self.pending_rows += meta.num_rows as u64;
+        self.rows += meta.num_rows as u64;
+        self.pending.push(Part {
+            path: path.to_path_buf(),
+            buffer,
+            meta,
+        });
+        if self.pending_rows >= ROW_GROUP_ROWS {
+            self.flush()?;
         }
+        Ok(())
+    }
+
+    /// Write the pending parts as one row group.
+    fn flush(&mut self) -> Result<(), WorkerError> {
+        let (Some(writer), Some(last)) = (self.writer.as_mut(), self.pending.last()) else {
+            return Ok(());
+        };
+        let path = last.path.clone();
+        let n = self.pending_rows;
+        let parts = std::mem::take(&mut self.pending);
+        let width = self.schema.as_ref().map_or(0, |s| s.columns().len());
+        let columns = (0..width).map(|j| {
+            let readers = parts
+                .iter()
+                .flat_map(|p| p.meta.row_groups.iter().map(move |g| (p, g)))
+                .map(|(p, g)| get_page_iterator(&g.parquet_columns()[j], Cursor::new(p.buffer.clone()), Vec::new(), usize::MAX))
+                .collect::<Result<Vec<PageReader>, ParquetError>>()?;
+            let mut readers = readers.into_iter();
+            let pages = readers.next();
+            Ok(DynStreamingIterator::new(Pages {
+                readers,
+                pages,
+                current: None,
+            }))
+        });
+        writer.write(n, DynIter::new(columns)).map_err(parquet_err(&path))?;
+        self.pending_rows = 0;
         Ok(())
     }
 
@@ -126,7 +195,8 @@ impl<W: Write> Concat<W> {
     ///
     /// # Errors
     /// I/O errors.
-    pub fn finish(self, extra: Vec<(String, String)>, path: &Path) -> Result<Option<u64>, WorkerError> {
+    pub fn finish(mut self, extra: Vec<(String, String)>, path: &Path) -> Result<Option<u64>, WorkerError> {
+        self.flush()?;
         let Some(mut writer) = self.writer else { return Ok(None) };
         let mut kv: Vec<KeyValue> = self.kv.into_iter().filter(|k| !extra.iter().any(|(e, _)| *e == k.key)).collect();
         kv.extend(extra.into_iter().map(|(key, value)| KeyValue { key, value: Some(value) }));

@@ -4,6 +4,7 @@
 //! Part names are deterministic (`parts/cases-00000042.parquet`), so a chunk computed twice
 //! replaces its own parts and never adds rows.
 
+use crate::concat::ROW_GROUP_ROWS;
 use crate::WorkerError;
 use polars::prelude::*;
 use polars_parquet::write::{
@@ -96,37 +97,16 @@ pub fn write_parquet(path: &Path, df: &mut DataFrame, metadata: Option<Vec<(Stri
     })
 }
 
-/// Text columns whose values repeat across cases (a chunk holds a few hundred distinct
-/// reactions): written with a dictionary, so each distinct value is compressed once.
-const DICTIONARY_COLUMNS: [&str; 11] = [
-    "status",
-    "balanced_equation",
-    "species_sources",
-    "notes",
-    "reaction",
-    "phase",
-    "conditions_extra_json",
-    "severity",
-    "criticality_not_assessed",
-    "assumed_inputs",
-    "estimated_species_labels",
-];
+/// How a part writes a column: plain. The finalizer joins the column chunks of many parts
+/// into one row group, which a dictionary page per part would forbid. (Polars' own writer
+/// also tries a dictionary for every number and string column and estimates each column's
+/// cardinality first: a fixed cost per column that was most of a 2,000-case part's encoding
+/// time.) zstd takes the repeats out of plain pages.
+const PART_ENCODING: Encoding = Encoding::Plain;
 
-/// How a part writes a column: a dictionary for [`DICTIONARY_COLUMNS`], plain for the rest.
-/// Polars' own writer tries a dictionary for every number and string column and estimates
-/// each column's cardinality first: a fixed cost per column that was most of a 2,000-case
-/// part's encoding time. Numbers rarely repeat here, and zstd takes the repeats out of plain
-/// pages too.
-fn part_encoding(name: &str) -> Encoding {
-    if DICTIONARY_COLUMNS.contains(&name) {
-        Encoding::RleDictionary
-    } else {
-        Encoding::Plain
-    }
-}
-
-/// A Parquet file written frame by frame (each frame one row group), single-threaded, with
-/// the encodings of [`part_encoding`] and zstd level 1. Part files and the tables made from
+/// A Parquet file written frame by frame (frames gathered into row groups of about
+/// [`ROW_GROUP_ROWS`] rows), single-threaded, with
+/// [`PART_ENCODING`] and zstd level 1. Part files and the tables made from
 /// them share these settings, so the finalizer can copy pages from one into the other.
 pub struct FrameWriter<W: std::io::Write> {
     writer: FileWriter<W>,
@@ -134,6 +114,7 @@ pub struct FrameWriter<W: std::io::Write> {
     fields: Vec<ParquetType>,
     encodings: polars_buffer::Buffer<Vec<Encoding>>,
     options: WriteOptions,
+    pending: Option<DataFrame>,
 }
 
 impl<W: std::io::Write> FrameWriter<W> {
@@ -143,7 +124,7 @@ impl<W: std::io::Write> FrameWriter<W> {
     /// Polars errors (a type Parquet cannot hold).
     pub fn new(out: W, schema: &Schema) -> Result<FrameWriter<W>, WorkerError> {
         let schema = schema.to_arrow(CompatLevel::newest());
-        let encodings: Vec<Vec<Encoding>> = schema.iter_values().map(|f| vec![part_encoding(&f.name)]).collect();
+        let encodings: Vec<Vec<Encoding>> = schema.iter_values().map(|_| vec![PART_ENCODING]).collect();
         let options = WriteOptions {
             statistics: StatisticsOptions::default(),
             compression: CompressionOptions::Zstd(Some(ZstdLevel::try_new(1)?)),
@@ -156,18 +137,33 @@ impl<W: std::io::Write> FrameWriter<W> {
             schema,
             encodings: polars_buffer::Buffer::from(encodings),
             options,
+            pending: None,
         })
     }
 
-    /// Append a frame with the writer's schema (an empty frame writes nothing).
+    /// Append a frame with the writer's schema.
     ///
     /// # Errors
     /// Polars errors, also when the frame's schema differs.
-    pub fn write(&mut self, df: &mut DataFrame) -> Result<(), WorkerError> {
-        let schema = df.schema().to_arrow(CompatLevel::newest());
-        if schema != self.schema {
+    pub fn write(&mut self, df: &DataFrame) -> Result<(), WorkerError> {
+        if df.schema().to_arrow(CompatLevel::newest()) != self.schema {
             return Err(polars_err!(SchemaMismatch: "a frame's columns differ from the file's").into());
         }
+        match &mut self.pending {
+            Some(p) => {
+                p.vstack_mut(df)?;
+            }
+            None => self.pending = Some(df.clone()),
+        }
+        if self.pending.as_ref().is_some_and(|p| p.height() as u64 >= ROW_GROUP_ROWS) {
+            self.flush()?;
+        }
+        Ok(())
+    }
+
+    /// Write the gathered frames as one row group.
+    fn flush(&mut self) -> Result<(), WorkerError> {
+        let Some(mut df) = self.pending.take() else { return Ok(()) };
         df.rechunk_mut();
         for batch in df.iter_chunks(CompatLevel::newest(), false) {
             let rows = batch.len() as u64;
@@ -184,6 +180,7 @@ impl<W: std::io::Write> FrameWriter<W> {
     /// # Errors
     /// I/O errors.
     pub fn finish(mut self, metadata: Vec<(String, String)>) -> Result<(), WorkerError> {
+        self.flush()?;
         let mut kv = vec![schema_to_metadata_key(&self.schema)];
         kv.extend(metadata.into_iter().map(|(key, value)| KeyValue { key, value: Some(value) }));
         self.writer.end(Some(kv))?;
@@ -196,7 +193,7 @@ impl<W: std::io::Write> FrameWriter<W> {
 ///
 /// # Errors
 /// I/O and Polars errors.
-pub fn write_part(path: &Path, df: &mut DataFrame) -> Result<(), WorkerError> {
+pub fn write_part(path: &Path, df: &DataFrame) -> Result<(), WorkerError> {
     write_atomic(path, |f| {
         let mut w = FrameWriter::new(f, df.schema())?;
         w.write(df)?;

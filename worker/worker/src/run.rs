@@ -107,18 +107,12 @@ pub fn commit_dead_chunk(results_dir: &Path, spec: &BatchSpec, chunk: &Chunk, re
 fn write_parts(results_dir: &Path, spec: &BatchSpec, seq: u64, cases: &[rows::CaseRow], dead: bool) -> Result<ChunkReport, WorkerError> {
     let errors = cases.iter().filter(|r| !r.ok).count() as u64;
     // Trends and routes first: the cases part is what the finalizer checks for, so it lands last.
-    write_part(
-        &part_path(results_dir, &spec.batch_id, "trends", seq)?,
-        &mut rows::trends_frame(cases)?,
-    )?;
+    write_part(&part_path(results_dir, &spec.batch_id, "trends", seq)?, &rows::trends_frame(cases)?)?;
     write_part(
         &part_path(results_dir, &spec.batch_id, "routes", seq)?,
-        &mut rows::routes_frame(&rows::chunk_routes(cases))?,
+        &rows::routes_frame(&rows::chunk_routes(cases))?,
     )?;
-    write_part(
-        &part_path(results_dir, &spec.batch_id, "cases", seq)?,
-        &mut rows::cases_frame(cases)?,
-    )?;
+    write_part(&part_path(results_dir, &spec.batch_id, "cases", seq)?, &rows::cases_frame(cases)?)?;
     Ok(ChunkReport {
         cases: cases.len() as u64,
         errors,

@@ -18,7 +18,7 @@ fn copied_pages_read_back_as_the_parts_stacked_with_the_tables_metadata() {
     let mut paths = Vec::new();
     for (i, df) in [a.clone(), empty, b.clone()].into_iter().enumerate() {
         let p = dir.path().join(format!("part-{i}.parquet"));
-        write_part(&p, &mut df.clone()).unwrap();
+        write_part(&p, &df).unwrap();
         paths.push(p);
     }
     let out = dir.path().join("table.parquet");
@@ -34,6 +34,8 @@ fn copied_pages_read_back_as_the_parts_stacked_with_the_tables_metadata() {
     let back = read_parquet(&out).unwrap();
     assert!(back.equals_missing(&a.vstack(&b).unwrap()), "{back}");
     let mut reader = ParquetReader::new(std::fs::File::open(&out).unwrap());
+    // Small parts join into one row group.
+    assert_eq!(reader.get_metadata().unwrap().row_groups.len(), 1);
     let md = reader.get_metadata().unwrap().key_value_metadata().clone().unwrap();
     assert!(md
         .iter()
@@ -45,12 +47,30 @@ fn a_part_with_another_schema_is_an_error() {
     let dir = tempfile::tempdir().unwrap();
     let p1 = dir.path().join("one.parquet");
     let p2 = dir.path().join("two.parquet");
-    write_part(&p1, &mut frame(&["a"], &[Some(1.0)])).unwrap();
-    write_part(&p2, &mut df!("case_id" => ["b"], "other" => [1u32]).unwrap()).unwrap();
+    write_part(&p1, &frame(&["a"], &[Some(1.0)])).unwrap();
+    write_part(&p2, &df!("case_id" => ["b"], "other" => [1u32]).unwrap()).unwrap();
     let mut sink = Vec::new();
     let mut c = Concat::new(&mut sink);
     c.append(&p1).unwrap();
     let e = c.append(&p2).unwrap_err();
     assert!(matches!(e, WorkerError::Concat { .. }), "{e}");
     assert!(e.to_string().contains("schema differs"), "{e}");
+}
+
+#[test]
+fn a_part_with_dictionary_pages_is_an_error() {
+    let dir = tempfile::tempdir().unwrap();
+    let plain = dir.path().join("plain.parquet");
+    let dictionary = dir.path().join("dictionary.parquet");
+    let repeated = || vec!["same text"; 500];
+    write_part(&plain, &df!("case_id" => repeated()).unwrap()).unwrap();
+    // Polars' own writer uses a dictionary for a column of one repeated string.
+    ParquetWriter::new(std::fs::File::create(&dictionary).unwrap())
+        .finish(&mut df!("case_id" => repeated()).unwrap())
+        .unwrap();
+    let mut sink = Vec::new();
+    let mut c = Concat::new(&mut sink);
+    c.append(&plain).unwrap();
+    let e = c.append(&dictionary).unwrap_err();
+    assert!(e.to_string().contains("dictionary page"), "{e}");
 }

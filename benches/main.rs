@@ -146,7 +146,7 @@ fn stages(demo: &[CaseInput], n: usize, chunk_size: usize) -> anyhow::Result<()>
     };
     let all: Vec<CaseInput> = cases(demo, n).collect();
     let mut processor = ChunkProcessor::new();
-    let mut t = [0f64; 7];
+    let mut t = [0f64; 8];
     let names = [
         "screen + process view + rows",
         "cases frame",
@@ -155,6 +155,7 @@ fn stages(demo: &[CaseInput], n: usize, chunk_size: usize) -> anyhow::Result<()>
         "write cases part",
         "write trends part",
         "write routes part",
+        "species frame + part",
     ];
     let mut chunks = 0;
     for (seq, chunk) in all.chunks(chunk_size).enumerate() {
@@ -178,6 +179,11 @@ fn stages(demo: &[CaseInput], n: usize, chunk_size: usize) -> anyhow::Result<()>
         mark(5);
         parts::write_part(&parts::part_path(&dir, &spec.batch_id, "routes", seq)?, &routes_df)?;
         mark(6);
+        parts::write_part(
+            &parts::part_path(&dir, &spec.batch_id, "species", seq)?,
+            &rows::species_frame(&case_rows)?,
+        )?;
+        mark(7);
         chunks += 1;
     }
     let total: f64 = t.iter().sum();

@@ -20,7 +20,7 @@ fn demo_cases() -> Vec<thermosieve_queue::CaseInput> {
     input::open(&demo_csv(), None).expect("demo input").collect()
 }
 
-async fn embedded(dir: &Path) -> (DataFrame, DataFrame, DataFrame) {
+async fn embedded(dir: &Path) -> (DataFrame, DataFrame, DataFrame, DataFrame) {
     let out = thermosieve_front::embedded::run_cases(demo_cases().into_iter(), BatchOptions::default(), dir, 2)
         .await
         .expect("embedded run");
@@ -28,6 +28,7 @@ async fn embedded(dir: &Path) -> (DataFrame, DataFrame, DataFrame) {
         read_table(&out.batch_dir.join("cases.parquet")),
         read_table(&out.batch_dir.join("trends.parquet")),
         read_table(&out.batch_dir.join("routes.parquet")),
+        read_table(&out.batch_dir.join("species.parquet")),
     )
 }
 
@@ -47,7 +48,7 @@ fn each_case_once(cases: &DataFrame, expected: &[thermosieve_queue::CaseInput]) 
 async fn embedded_run_on_demo_data_gives_every_case_once_with_the_engines_values() {
     let dir = tempfile::tempdir().unwrap();
     let input = demo_cases();
-    let (cases, trends, routes) = embedded(dir.path()).await;
+    let (cases, trends, routes, species_table) = embedded(dir.path()).await;
     each_case_once(&cases, &input);
 
     let status = strings(&cases, "status");
@@ -84,6 +85,23 @@ async fn embedded_run_on_demo_data_gives_every_case_once_with_the_engines_values
     let classes = cases.column("criticality_class").expect("criticality_class column");
     assert!(classes.null_count() < cases.height() / 2, "most demo cases give MTT and T_D24");
     let by_id: HashMap<&str, &thermosieve_queue::CaseInput> = input.iter().map(|c| (c.case_id.as_str(), c)).collect();
+    let labels = strings(&cases, "species_labels");
+    let mut engine_species: HashMap<String, std::sync::Arc<thermosieve_engine::screen::Prepared>> = HashMap::new();
+    for (i, id) in ids.iter().enumerate() {
+        if status[i].as_deref() == Some("ok") {
+            let s = screener
+                .screen(&by_id[id.as_deref().unwrap()].reaction)
+                .expect("engine screens an ok case");
+            let names: Vec<&str> = s.species.iter().map(|t| t.species.resolved.label.as_str()).collect();
+            assert_eq!(labels[i].as_deref(), Some(names.join(" | ").as_str()), "species_labels of {id:?}");
+            for t in &s.species {
+                engine_species
+                    .entry(t.species.resolved.label.clone())
+                    .or_insert_with(|| t.species.clone());
+            }
+        }
+    }
+    species_are_the_engines(&species_table, &engine_species);
     let mut checked = 0;
     for i in (0..ids.len()).step_by(37) {
         let id = ids[i].as_deref().unwrap();
@@ -126,6 +144,27 @@ async fn embedded_run_on_demo_data_gives_every_case_once_with_the_engines_values
     let manifest: serde_json::Value = serde_json::from_slice(&std::fs::read(batch.join("manifest.json")).unwrap()).unwrap();
     assert_eq!(manifest["counts"]["cases"], 2017);
     assert!(!batch.join("parts").exists(), "part files are removed after finalizing");
+}
+
+/// The species table, read back: one row per species the cases name, each with the data the
+/// engine used for it (its own resolution, not the worker's rows).
+fn species_are_the_engines(table: &DataFrame, engine: &HashMap<String, std::sync::Arc<thermosieve_engine::screen::Prepared>>) {
+    let labels = strings(table, "species_label");
+    let sources = strings(table, "sources");
+    let dh = floats(table, "delta_fh_298_kj_per_mol");
+    let s298 = floats(table, "s_298_j_per_mol_k");
+    let estimated = table.column("estimated").unwrap().bool().unwrap().clone();
+    assert_eq!(labels.len(), engine.len(), "one row per species named by the cases");
+    for (i, label) in labels.iter().enumerate() {
+        let label = label.as_deref().unwrap();
+        let p = engine.get(label).unwrap_or_else(|| panic!("{label} is not a species of the cases"));
+        let st = p.resolved.state(species::T_REF_K, species::T_REF_K.ln());
+        assert_eq!(sources[i].as_deref(), Some(p.resolved.source_line().as_str()), "{label}");
+        assert_eq!(dh[i], Some(st.h_j_per_mol / 1000.0), "{label}");
+        assert_eq!(s298[i], Some(st.s_j_per_mol_k), "{label}");
+        let is_estimated = p.resolved.origin.iter().any(|o| matches!(o, species::Origin::Estimated { .. }));
+        assert_eq!(estimated.get(i), Some(is_estimated), "{label}");
+    }
 }
 
 /// The routes table, read back, against the engine's own roll-up of the same cases (screened and
@@ -381,7 +420,7 @@ async fn fetch(client: &mut ScreeningClient<tonic::transport::Channel>, id: &str
 #[tokio::test(flavor = "multi_thread", worker_threads = 2)]
 async fn redis_grpc_two_workers_give_the_same_tables_as_embedded() {
     let embedded_dir = tempfile::tempdir().unwrap();
-    let (e_cases, e_trends, e_routes) = embedded(embedded_dir.path()).await;
+    let (e_cases, e_trends, e_routes, e_species) = embedded(embedded_dir.path()).await;
     let svc = Service::start(2, |_| {}).await;
     let mut client = svc.client().await;
     let cases = demo_cases();
@@ -392,6 +431,7 @@ async fn redis_grpc_two_workers_give_the_same_tables_as_embedded() {
     let r_cases = read_table_bytes(fetch(&mut client, &id, pb::Table::Cases).await);
     let r_trends = read_table_bytes(fetch(&mut client, &id, pb::Table::Trends).await);
     let r_routes = read_table_bytes(fetch(&mut client, &id, pb::Table::Routes).await);
+    let r_species = read_table_bytes(fetch(&mut client, &id, pb::Table::Species).await);
     each_case_once(&r_cases, &cases);
     for c in e_cases.columns() {
         let name = c.name().as_str();
@@ -408,6 +448,7 @@ async fn redis_grpc_two_workers_give_the_same_tables_as_embedded() {
     assert!(r_cases.equals_missing(&e_cases), "cases.parquet differs between Redis and embedded");
     assert!(r_trends.equals_missing(&e_trends), "trends.parquet differs");
     assert!(r_routes.equals_missing(&e_routes), "routes.parquet differs");
+    assert!(r_species.equals_missing(&e_species), "species.parquet differs");
     let manifest: serde_json::Value = serde_json::from_slice(&fetch(&mut client, &id, pb::Table::Manifest).await).unwrap();
     assert_eq!(manifest["batch_id"], id.as_str());
 

@@ -138,7 +138,7 @@ pub struct WatchArgs {
 pub struct FetchArgs {
     /// The batch id printed by submit.
     pub batch_id: String,
-    /// Folder to write cases.parquet, trends.parquet, routes.parquet and manifest.json into.
+    /// Folder to write cases.parquet, trends.parquet, routes.parquet, species.parquet and manifest.json into.
     #[arg(long, env = "THERMOSIEVE_OUT")]
     pub out: PathBuf,
     #[arg(long, default_value = "http://127.0.0.1:50051", env = "THERMOSIEVE_FRONT")]
@@ -291,6 +291,7 @@ async fn run(a: RunArgs) -> anyhow::Result<()> {
         thermosieve_worker::CASES_FILE,
         thermosieve_worker::TRENDS_FILE,
         thermosieve_worker::ROUTES_FILE,
+        thermosieve_worker::SPECIES_FILE,
         thermosieve_worker::MANIFEST_FILE,
     ] {
         println!("  {}", outcome.batch_dir.join(f).display());
@@ -469,7 +470,13 @@ async fn watch(a: WatchArgs) -> anyhow::Result<()> {
 async fn fetch(a: FetchArgs) -> anyhow::Result<()> {
     let mut c = client(&a.front).await?;
     std::fs::create_dir_all(&a.out).with_context(|| format!("creating {}", a.out.display()))?;
-    for table in [pb::Table::Cases, pb::Table::Trends, pb::Table::Routes, pb::Table::Manifest] {
+    for table in [
+        pb::Table::Cases,
+        pb::Table::Trends,
+        pb::Table::Routes,
+        pb::Table::Species,
+        pb::Table::Manifest,
+    ] {
         let mut stream = c
             .fetch_table(pb::FetchTableRequest {
                 batch_id: a.batch_id.clone(),

@@ -31,7 +31,13 @@ fn run_writes_the_tables_and_prints_where_they_are() {
     assert!(text.contains("2 cases (1 ok, 1 error)"), "{text}");
     assert!(text.contains("cases.parquet") && text.contains("caution:"), "{text}");
     let batch = std::fs::read_dir(&out).unwrap().next().unwrap().unwrap().path();
-    for f in ["cases.parquet", "trends.parquet", "routes.parquet", "manifest.json"] {
+    for f in [
+        "cases.parquet",
+        "trends.parquet",
+        "routes.parquet",
+        "species.parquet",
+        "manifest.json",
+    ] {
         assert!(batch.join(f).exists(), "{f}");
     }
 }

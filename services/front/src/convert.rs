@@ -170,6 +170,7 @@ pub fn status_to_pb(batch_id: &str, p: &Progress) -> pb::BatchStatus {
             pb::Table::Cases as i32,
             pb::Table::Trends as i32,
             pb::Table::Routes as i32,
+            pb::Table::Species as i32,
             pb::Table::Manifest as i32,
         ]
     } else {

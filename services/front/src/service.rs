@@ -235,8 +235,15 @@ impl Screening for ScreeningService {
             Ok(pb::Table::Cases) => thermosieve_worker::CASES_FILE,
             Ok(pb::Table::Trends) => thermosieve_worker::TRENDS_FILE,
             Ok(pb::Table::Routes) => thermosieve_worker::ROUTES_FILE,
+            Ok(pb::Table::Species) => thermosieve_worker::SPECIES_FILE,
             Ok(pb::Table::Manifest) => thermosieve_worker::MANIFEST_FILE,
-            _ => return Err(FrontError::invalid("table", "expected TABLE_CASES, TABLE_TRENDS, TABLE_ROUTES or TABLE_MANIFEST").into()),
+            _ => {
+                return Err(FrontError::invalid(
+                    "table",
+                    "expected TABLE_CASES, TABLE_TRENDS, TABLE_ROUTES, TABLE_SPECIES or TABLE_MANIFEST",
+                )
+                .into())
+            }
         };
         let path = batch_dir(&self.0.cfg.results_dir, &r.batch_id)
             .map_err(|e| FrontError::Internal(e.to_string()))?

@@ -1,11 +1,11 @@
 //! The finalizer: once every chunk of a batch is committed, concatenate the part files in chunk
-//! order into `cases.parquet` and `trends.parquet`, roll the cases up into `routes.parquet`, and
-//! write `manifest.json`. Parts are streamed one at a time (a batched Parquet writer), so memory
+//! order into `cases.parquet` and `trends.parquet`, roll the cases up into `routes.parquet`,
+//! gather each species once into `species.parquet`, and write `manifest.json`. Parts are streamed one at a time (a batched Parquet writer), so memory
 //! stays at one part per table plus a small score per route, whatever the batch size. The cases
 //! and trends tables are written on two threads at once.
 
 use crate::concat::Concat;
-use crate::parts::{batch_dir, part_path, read_parquet_columns, write_atomic, FrameWriter};
+use crate::parts::{batch_dir, part_path, read_parquet, read_parquet_columns, write_atomic, FrameWriter};
 use crate::route_table::RouteTable;
 use crate::rows::{self, STATUS_OK};
 use crate::WorkerError;
@@ -20,6 +20,7 @@ use thermosieve_queue::{now_unix_ms, BatchSpec, Progress};
 pub const CASES_FILE: &str = "cases.parquet";
 pub const TRENDS_FILE: &str = "trends.parquet";
 pub const ROUTES_FILE: &str = "routes.parquet";
+pub const SPECIES_FILE: &str = "species.parquet";
 pub const MANIFEST_FILE: &str = "manifest.json";
 
 /// Key-value metadata written into every table of a batch.
@@ -76,6 +77,7 @@ pub struct Counts {
     pub cases_error: u64,
     pub trend_rows: u64,
     pub routes: u64,
+    pub species: u64,
     pub chunks: u64,
     pub chunks_dead_lettered: u64,
 }
@@ -128,6 +130,37 @@ fn concat_parts(
     Ok((rows, bytes))
 }
 
+/// `species.parquet`: the species parts' rows, each label once (the first seen). A batch holds
+/// as many species as its reactions name, so this is small. Returns (rows, bytes).
+fn species_table(results_dir: &Path, spec: &BatchSpec, chunks: u64) -> Result<(u64, u64), WorkerError> {
+    let path = batch_dir(results_dir, &spec.batch_id)?.join(SPECIES_FILE);
+    let mut seen = std::collections::HashSet::new();
+    let mut rows = 0u64;
+    write_atomic(&path, |f| {
+        let mut w = FrameWriter::new(f, rows::species_frame(&[])?.schema())?;
+        for seq in 0..chunks {
+            let part = part_path(results_dir, &spec.batch_id, "species", seq)?;
+            if !part.exists() {
+                return Err(WorkerError::MissingPart {
+                    batch_id: spec.batch_id.clone(),
+                    seq,
+                    table: "species".into(),
+                });
+            }
+            let df = read_parquet(&part)?;
+            let labels = df.column("species_label")?.str()?;
+            let new: BooleanChunked = (0..df.height())
+                .map(|i| labels.get(i).is_some_and(|l| seen.insert(l.to_string())))
+                .collect();
+            let df = df.filter(&new)?;
+            rows += df.height() as u64;
+            w.write(&df)?;
+        }
+        w.finish(table_metadata(spec, SPECIES_FILE))
+    })?;
+    Ok((rows, std::fs::metadata(&path).map_or(0, |m| m.len())))
+}
+
 /// Write the batch tables and the manifest from the committed parts.
 ///
 /// # Errors
@@ -170,12 +203,14 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
         w.finish(table_metadata(spec, ROUTES_FILE))
     })?;
     let routes_bytes = std::fs::metadata(&routes_path).map_or(0, |m| m.len());
+    let (species_rows, species_bytes) = species_table(results_dir, spec, chunks)?;
 
     counts.cases = cases;
     counts.cases_ok = ok;
     counts.cases_error = cases - ok;
     counts.trend_rows = trend_rows;
     counts.routes = route_count;
+    counts.species = species_rows;
     let finished = now_unix_ms();
     let manifest = Manifest {
         batch_id: spec.batch_id.clone(),
@@ -200,6 +235,11 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
                 name: ROUTES_FILE.into(),
                 rows: route_count,
                 bytes: routes_bytes,
+            },
+            FileEntry {
+                name: SPECIES_FILE.into(),
+                rows: species_rows,
+                bytes: species_bytes,
             },
         ],
         cautions: vec![CAUTION.to_string(), RANK_NOTE.to_string()],

@@ -3,12 +3,12 @@
 //! It owns running the engine on cases (one engine thread per core, each with its own species
 //! cache), the mapping from engine results to table rows (in one module, [`rows`]), atomic part
 //! files with deterministic names, and the finalizer that concatenates parts into
-//! `cases.parquet`, `trends.parquet`, `routes.parquet` and `manifest.json`. It must not parse
+//! `cases.parquet`, `trends.parquet`, `routes.parquet`, `species.parquet` and `manifest.json`. It must not parse
 //! input tables, speak gRPC or decide chunking: the front does that. It imports the queue and
 //! the engine, never the front.
 //!
 //! # Layout
-//! - [`rows`]: `Screened` → case, trend and route rows → polars frames (column names, units).
+//! - [`rows`]: `Screened` → case, trend, species and route rows → polars frames (column names, units).
 //! - [`process`]: the engine over a chunk's cases, with a screener cache per grid.
 //! - [`parts`]: batch folders, part paths, atomic writes, Parquet I/O.
 //! - [`finalize`]: part files → batch tables + manifest.
@@ -24,7 +24,7 @@ pub mod route_table;
 pub mod rows;
 pub mod run;
 
-pub use finalize::{finalize, Manifest, CASES_FILE, MANIFEST_FILE, ROUTES_FILE, TRENDS_FILE};
+pub use finalize::{finalize, Manifest, CASES_FILE, MANIFEST_FILE, ROUTES_FILE, SPECIES_FILE, TRENDS_FILE};
 pub use run::{run, WorkerConfig, WorkerStats};
 
 use std::path::PathBuf;

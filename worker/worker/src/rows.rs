@@ -8,8 +8,12 @@
 //! function: nothing else in the service changes.
 
 use polars::prelude::{Column, DataFrame, PolarsResult};
+use std::collections::HashSet;
+use std::sync::Arc;
 use thermosieve_engine::process::{self, Assessment, CaseProcess, CriticalityClass, ProcessConditions, Scale};
 use thermosieve_engine::routes::{roll_up, HeatPerProduct, RouteScore, RouteStep, RouteSummary, StepFacts};
+use thermosieve_engine::screen::Prepared;
+use thermosieve_engine::species::{Origin, T_REF_K};
 use thermosieve_engine::{ScreenError, Screened, ThermoPoint};
 use thermosieve_queue::{CaseInput, CONDITION_FIELDS};
 
@@ -21,7 +25,7 @@ pub const STATUS_ERROR: &str = "error";
 pub const JOIN: &str = " | ";
 
 /// One row of `cases.parquet`.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug)]
 pub struct CaseRow {
     pub case_id: String,
     pub route_id: Option<String>,
@@ -37,7 +41,11 @@ pub struct CaseRow {
     pub delta_h_uncertainty_kj_per_mol: Option<f64>,
     pub estimated_species: u32,
     pub all_points_in_valid_range: Option<bool>,
+    /// `label: sources` per species, joined with [`JOIN`] (the inline API shows it; the batch
+    /// tables keep the labels in cases and the sources once per species in `species.parquet`).
     pub species_sources: Option<String>,
+    /// The species of the balanced equation, as resolved (rows of `species.parquet`).
+    pub species: Vec<Arc<Prepared>>,
     pub notes: Option<String>,
     pub reaction: String,
     pub phase: Option<String>,
@@ -174,6 +182,7 @@ pub fn build_row(case: &CaseInput, conditions: &thermosieve_queue::Conditions, r
         estimated_species: 0,
         all_points_in_valid_range: None,
         species_sources: None,
+        species: Vec::new(),
         notes: None,
         reaction: case.reaction.clone(),
         phase: case.phase.clone(),
@@ -212,6 +221,7 @@ pub fn build_row(case: &CaseInput, conditions: &thermosieve_queue::Conditions, r
     row.all_points_in_valid_range = Some(s.points.iter().all(|p| p.in_valid_range));
     let sources: Vec<&str> = s.species.iter().map(|t| t.species.citation.as_str()).collect();
     row.species_sources = Some(sources.join(JOIN));
+    row.species = s.species.iter().map(|t| t.species.clone()).collect();
     row.notes = (!s.notes.is_empty()).then(|| s.notes.join(JOIN));
     row.balanced_equation = Some(s.balanced_equation);
     row.trends = s.points;
@@ -283,7 +293,12 @@ pub fn cases_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
             "all_points_in_valid_range",
             rows.iter().map(|r| r.all_points_in_valid_range).collect::<Vec<Option<bool>>>(),
         ),
-        col("species_sources", s(|r| r.species_sources.as_deref())),
+        col(
+            "species_labels",
+            rows.iter()
+                .map(|r| (!r.species.is_empty()).then(|| labels(&r.species)))
+                .collect::<Vec<Option<String>>>(),
+        ),
         col("notes", s(|r| r.notes.as_deref())),
         col("reaction", rows.iter().map(|r| r.reaction.as_str()).collect::<Vec<&str>>()),
         col("phase", s(|r| r.phase.as_deref())),
@@ -348,6 +363,66 @@ pub fn trends_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
             col("delta_g_kj_per_mol", n(|p| p.delta_g_kj_per_mol)),
             col("log10_k", n(|p| p.log10_k)),
             col("in_valid_range", points().map(|p| p.in_valid_range).collect::<Vec<bool>>()),
+        ],
+    )
+}
+
+fn labels(species: &[Arc<Prepared>]) -> String {
+    let labels: Vec<&str> = species.iter().map(|p| p.resolved.label.as_str()).collect();
+    labels.join(JOIN)
+}
+
+/// `species.parquet` columns, in order: one row per species label in `rows` (the first one
+/// seen; a label means one record within a batch), in order of first appearance.
+///
+/// # Errors
+/// Polars errors (not expected).
+pub fn species_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
+    let mut seen = HashSet::new();
+    let species: Vec<&Prepared> = rows
+        .iter()
+        .flat_map(|r| r.species.iter())
+        .filter(|p| seen.insert(p.resolved.label.as_str()))
+        .map(|p| p.as_ref())
+        .collect();
+    let at_298 = |p: &Prepared| p.resolved.state(T_REF_K, T_REF_K.ln());
+    let n = |f: &dyn Fn(&Prepared) -> f64| species.iter().map(|p| f(p)).collect::<Vec<f64>>();
+    let joined = |v: &[String]| (!v.is_empty()).then(|| v.join(JOIN));
+    DataFrame::new(
+        species.len(),
+        vec![
+            col(
+                "species_label",
+                species.iter().map(|p| p.resolved.label.as_str()).collect::<Vec<&str>>(),
+            ),
+            col(
+                "formula",
+                species.iter().map(|p| p.resolved.formula.hill()).collect::<Vec<String>>(),
+            ),
+            col("phase", species.iter().map(|p| p.resolved.phase.tag()).collect::<Vec<&str>>()),
+            col("sources", species.iter().map(|p| p.resolved.source_line()).collect::<Vec<String>>()),
+            col(
+                "estimated",
+                species
+                    .iter()
+                    .map(|p| p.resolved.origin.iter().any(|o| matches!(o, Origin::Estimated { .. })))
+                    .collect::<Vec<bool>>(),
+            ),
+            col("valid_min_k", n(&|p| p.resolved.range_k().0)),
+            col("valid_max_k", n(&|p| p.resolved.range_k().1)),
+            col("delta_fh_298_kj_per_mol", n(&|p| at_298(p).h_j_per_mol / 1000.0)),
+            col("s_298_j_per_mol_k", n(&|p| at_298(p).s_j_per_mol_k)),
+            col(
+                "delta_fh_uncertainty_kj_per_mol",
+                species
+                    .iter()
+                    .map(|p| p.resolved.dhf_uncertainty_kj_per_mol)
+                    .collect::<Vec<Option<f64>>>(),
+            ),
+            col(
+                "notes",
+                species.iter().map(|p| joined(&p.resolved.notes)).collect::<Vec<Option<String>>>(),
+            ),
         ],
     )
 }

@@ -106,8 +106,13 @@ pub fn commit_dead_chunk(results_dir: &Path, spec: &BatchSpec, chunk: &Chunk, re
 
 fn write_parts(results_dir: &Path, spec: &BatchSpec, seq: u64, cases: &[rows::CaseRow], dead: bool) -> Result<ChunkReport, WorkerError> {
     let errors = cases.iter().filter(|r| !r.ok).count() as u64;
-    // Trends and routes first: the cases part is what the finalizer checks for, so it lands last.
+    // Trends, species and routes first: the cases part is what the finalizer checks for, so it
+    // lands last.
     write_part(&part_path(results_dir, &spec.batch_id, "trends", seq)?, &rows::trends_frame(cases)?)?;
+    write_part(
+        &part_path(results_dir, &spec.batch_id, "species", seq)?,
+        &rows::species_frame(cases)?,
+    )?;
     write_part(
         &part_path(results_dir, &spec.batch_id, "routes", seq)?,
         &rows::routes_frame(&rows::chunk_routes(cases))?,

@@ -4,7 +4,7 @@
 use thermosieve_engine::ThermoPoint;
 use thermosieve_proto::v1 as pb;
 use thermosieve_queue::{BatchState, CaseInput, Conditions, Progress};
-use thermosieve_worker::rows::{CaseRow, STATUS_ERROR, STATUS_OK};
+use thermosieve_worker::rows::{species_sources, CaseRow, STATUS_ERROR, STATUS_OK};
 
 pub fn conditions_from_pb(c: Option<pb::ProcessConditions>) -> Conditions {
     let Some(c) = c else { return Conditions::default() };
@@ -130,7 +130,7 @@ pub fn case_row_to_pb(r: &CaseRow) -> pb::CaseRow {
         delta_h_uncertainty_kj_per_mol: r.delta_h_uncertainty_kj_per_mol,
         estimated_species: r.estimated_species,
         all_points_in_valid_range: r.all_points_in_valid_range,
-        species_sources: r.species_sources.clone().unwrap_or_default(),
+        species_sources: species_sources(&r.species),
         notes: r.notes.clone().unwrap_or_default(),
     }
 }

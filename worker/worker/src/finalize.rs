@@ -1,8 +1,9 @@
 //! The finalizer: once every chunk of a batch is committed, concatenate the part files in chunk
-//! order into `cases.parquet` and `trends.parquet`, roll the cases up into `routes.parquet`,
-//! gather each species once into `species.parquet`, and write `manifest.json`. Parts are streamed one at a time (a batched Parquet writer), so memory
-//! stays at one part per table plus a small score per route, whatever the batch size. The cases
-//! and trends tables are written on two threads at once.
+//! order into `cases.parquet` and `trends.parquet` (pages copied, parts joined into row groups),
+//! rank the chunks' routes into `routes.parquet`, gather each species once into
+//! `species.parquet`, and write `manifest.json`. Memory stays at one row group per table plus a
+//! small score per route and one row per species. The cases and trends tables are written on two
+//! threads at once.
 
 use crate::concat::Concat;
 use crate::parts::{batch_dir, part_path, read_parquet, read_parquet_columns, write_atomic, FrameWriter};

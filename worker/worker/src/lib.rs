@@ -3,9 +3,9 @@
 //! It owns running the engine on cases (one engine thread per core, each with its own species
 //! cache), the mapping from engine results to table rows (in one module, [`rows`]), atomic part
 //! files with deterministic names, and the finalizer that concatenates parts into
-//! `cases.parquet`, `trends.parquet`, `routes.parquet`, `species.parquet` and `manifest.json`. It must not parse
-//! input tables, speak gRPC or decide chunking: the front does that. It imports the queue and
-//! the engine, never the front.
+//! `cases.parquet`, `trends.parquet`, `routes.parquet`, `species.parquet` and `manifest.json`.
+//! It must not parse input tables, speak gRPC or decide chunking: the front does that. It
+//! imports the queue and the engine, never the front.
 //!
 //! # Layout
 //! - [`rows`]: `Screened` → case, trend, species and route rows → polars frames (column names, units).

@@ -83,20 +83,6 @@ pub fn write_atomic(path: &Path, write: impl FnOnce(&mut BufWriter<File>) -> Res
     result
 }
 
-/// Write one frame as a Parquet file, atomically, with file key-value metadata (zstd, the
-/// default, for tables people keep).
-///
-/// # Errors
-/// I/O and Polars errors.
-pub fn write_parquet(path: &Path, df: &mut DataFrame, metadata: Option<Vec<(String, String)>>) -> Result<(), WorkerError> {
-    write_atomic(path, |f| {
-        ParquetWriter::new(f)
-            .with_key_value_metadata(metadata.map(KeyValueMetadata::from_static))
-            .finish(df)?;
-        Ok(())
-    })
-}
-
 /// How a part writes a column: plain. The finalizer joins the column chunks of many parts
 /// into one row group, which a dictionary page per part would forbid. (Polars' own writer
 /// also tries a dictionary for every number and string column and estimates each column's

@@ -41,10 +41,8 @@ pub struct CaseRow {
     pub delta_h_uncertainty_kj_per_mol: Option<f64>,
     pub estimated_species: u32,
     pub all_points_in_valid_range: Option<bool>,
-    /// `label: sources` per species, joined with [`JOIN`] (the inline API shows it; the batch
-    /// tables keep the labels in cases and the sources once per species in `species.parquet`).
-    pub species_sources: Option<String>,
-    /// The species of the balanced equation, as resolved (rows of `species.parquet`).
+    /// The species of the balanced equation, as resolved (rows of `species.parquet`; cases name
+    /// them in `species_labels`).
     pub species: Vec<Arc<Prepared>>,
     pub notes: Option<String>,
     pub reaction: String,
@@ -181,7 +179,6 @@ pub fn build_row(case: &CaseInput, conditions: &thermosieve_queue::Conditions, r
         delta_h_uncertainty_kj_per_mol: None,
         estimated_species: 0,
         all_points_in_valid_range: None,
-        species_sources: None,
         species: Vec::new(),
         notes: None,
         reaction: case.reaction.clone(),
@@ -219,8 +216,6 @@ pub fn build_row(case: &CaseInput, conditions: &thermosieve_queue::Conditions, r
         },
     };
     row.all_points_in_valid_range = Some(s.points.iter().all(|p| p.in_valid_range));
-    let sources: Vec<&str> = s.species.iter().map(|t| t.species.citation.as_str()).collect();
-    row.species_sources = Some(sources.join(JOIN));
     row.species = s.species.iter().map(|t| t.species.clone()).collect();
     row.notes = (!s.notes.is_empty()).then(|| s.notes.join(JOIN));
     row.balanced_equation = Some(s.balanced_equation);
@@ -365,6 +360,13 @@ pub fn trends_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
             col("in_valid_range", points().map(|p| p.in_valid_range).collect::<Vec<bool>>()),
         ],
     )
+}
+
+/// `label: sources` per species, joined with [`JOIN`] (the inline API shows it per case; the
+/// batch tables keep the sources once per species in `species.parquet`).
+pub fn species_sources(species: &[Arc<Prepared>]) -> String {
+    let sources: Vec<&str> = species.iter().map(|p| p.citation.as_str()).collect();
+    sources.join(JOIN)
 }
 
 fn labels(species: &[Arc<Prepared>]) -> String {

@@ -5,6 +5,7 @@ use std::fmt::Write as _;
 use std::process::ExitCode;
 use thermosieve_engine::balance::Outcome;
 use thermosieve_engine::process::{self, celsius_to_kelvin, Assessment, CaseProcess, Operation, ProcessConditions, Scale};
+use thermosieve_engine::structures::DefaultPhase;
 use thermosieve_engine::{species, Screened, Screener, TemperatureGrid, CAUTION};
 
 #[derive(clap::Args, Debug)]
@@ -12,6 +13,11 @@ pub struct EvalArgs {
     /// The reaction, e.g. "Al(cr) + Fe2O3(s) -> Al2O3(s) + Fe(cr)". Coefficients are optional;
     /// arrows ->, =>, = and <=> are accepted; phase tags (g) (l) (s) (cr) (aq) (gr).
     pub reaction: String,
+
+    /// State of species written as SMILES or names without their own state: gas, liquid, solid
+    /// or standard (the stable state at 298.15 K and 1 bar).
+    #[arg(long, default_value = "standard", value_parser = parse_phase)]
+    pub phase: DefaultPhase,
 
     /// Temperatures to evaluate, in K, comma-separated (default: 273.15 to 623.15 K in 25 K steps).
     #[arg(long, value_delimiter = ',', env = "THERMOSIEVE_TEMPERATURES_K")]
@@ -79,6 +85,10 @@ impl EvalArgs {
     }
 }
 
+fn parse_phase(s: &str) -> Result<DefaultPhase, String> {
+    DefaultPhase::parse(s).ok_or_else(|| format!("expected one of gas, liquid, solid, standard, got {s:?}"))
+}
+
 /// Exit code for a reaction the engine rejects (parse, species or balance error).
 pub const EXIT_REJECTED: u8 = 3;
 
@@ -95,7 +105,7 @@ pub fn run(args: &EvalArgs) -> ExitCode {
         }
     };
     let mut screener = Screener::new(species::bundled(), grid);
-    match screener.screen(&args.reaction) {
+    match screener.screen_with(&args.reaction, args.phase) {
         Ok(s) => {
             let mut out = render(&s);
             if let Some(pc) = args.conditions() {

@@ -243,8 +243,11 @@ fn split_reaction_smiles(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
             }
             return Ok(Vec::new());
         }
-        let mut out = Vec::new();
+        let mut out: Vec<RawTerm<'_>> = Vec::new();
         let mut start = from;
+        // Charge of the ion group being gathered: ions written next to each other whose charges
+        // cancel (`[Na+].[OH-]`, `[NH4+].[Cl-]`) are one species, the salt.
+        let mut open_charge = 0;
         for piece in text.split('.') {
             let lead = piece.len() - piece.trim_start().len();
             let t = piece.trim();
@@ -255,11 +258,22 @@ fn split_reaction_smiles(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
                     found: "an empty component between '.'".into(),
                 });
             }
-            out.push(RawTerm {
-                coefficient: None,
-                text: t,
-                position: start + lead,
-            });
+            let q = smiles_charge(t);
+            match out.last_mut() {
+                Some(last) if open_charge != 0 && q != 0 => {
+                    let begin = last.position;
+                    last.text = s[begin..start + lead + t.len()].trim();
+                    open_charge += q;
+                }
+                _ => {
+                    out.push(RawTerm {
+                        coefficient: None,
+                        text: t,
+                        position: start + lead,
+                    });
+                    open_charge = q;
+                }
+            }
             start += piece.len() + 1;
         }
         Ok(out)
@@ -283,6 +297,36 @@ fn split_reaction_smiles(s: &str) -> Result<RawEquation<'_>, SyntaxError> {
     })
 }
 
+/// Net formal charge written in a SMILES component's bracket atoms (`[NH4+]` +1, `[O-2]` −2,
+/// `[Fe+++]` +3); a state suffix such as `{s}` is outside brackets and does not count.
+pub fn smiles_charge(t: &str) -> i32 {
+    let mut q = 0i32;
+    let mut in_bracket = false;
+    let b = t.as_bytes();
+    let mut i = 0;
+    while i < b.len() {
+        match b[i] {
+            b'[' => in_bracket = true,
+            b']' => in_bracket = false,
+            c @ (b'+' | b'-') if in_bracket => {
+                let sign = if c == b'+' { 1 } else { -1 };
+                let mut j = i + 1;
+                let mut n = 0i32;
+                while j < b.len() && b[j].is_ascii_digit() {
+                    n = n.saturating_mul(10).saturating_add((b[j] - b'0') as i32);
+                    j += 1;
+                }
+                q = q.saturating_add(sign * if j > i + 1 { n } else { 1 });
+                i = j;
+                continue;
+            }
+            _ => {}
+        }
+        i += 1;
+    }
+    q
+}
+
 fn split_side<'a>(s: &'a str, base: usize, side: &'static str, out: &mut Vec<RawTerm<'a>>) -> Result<(), SyntaxError> {
     split_terms(s, base, |off, raw| {
         let lead = raw.len() - raw.trim_start().len();
@@ -295,7 +339,13 @@ fn split_side<'a>(s: &'a str, base: usize, side: &'static str, out: &mut Vec<Raw
                 found: "nothing".into(),
             });
         }
-        let (coefficient, used) = parse_coefficient(t, at)?;
+        // A CAS number (`98-95-3`, `98-95-3(l)`) starts with digits but is a species.
+        let species_text = t.split_once('(').map_or(t, |(head, _)| head);
+        let (coefficient, used) = if crate::names::looks_like_cas(species_text) {
+            (None, 0)
+        } else {
+            parse_coefficient(t, at)?
+        };
         if used == t.len() {
             return Err(SyntaxError::Unexpected {
                 position: at + used,

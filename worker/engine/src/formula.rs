@@ -36,6 +36,16 @@ pub enum Phase {
 }
 
 impl Phase {
+    /// `gas`, `liquid`, `solid`, `aqueous solution`.
+    pub fn name(self) -> &'static str {
+        match self {
+            Phase::Gas => "gas",
+            Phase::Liquid => "liquid",
+            Phase::Solid => "solid",
+            Phase::Aqueous => "aqueous solution",
+        }
+    }
+
     pub fn tag(self) -> &'static str {
         match self {
             Phase::Gas => "g",

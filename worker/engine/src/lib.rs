@@ -14,6 +14,7 @@
 //! - [`balance`]: the element/charge matrix and its exact null space.
 //! - [`species`]: the bundled data table, polynomial models and species resolution.
 //! - [`smiles`]: SMILES structures: molecular graphs, formulas and canonical identity.
+//! - [`names`]: compounds by name and CAS number, with melting and boiling points.
 //! - [`joback`]: Joback & Reid group-contribution estimates for species without data.
 //! - [`structures`]: SMILES species in equations: bundled structures and estimation.
 //! - [`thermo`]: temperature grids and reaction properties (ΔrH°, ΔrS°, ΔrG°, log10 K).
@@ -26,6 +27,7 @@ pub mod elements;
 pub mod equation;
 pub mod formula;
 pub mod joback;
+pub mod names;
 pub mod process;
 pub mod rational;
 pub mod routes;

@@ -10,8 +10,10 @@
 //! merged by canonical structure, so `OCC` and `C(O)C` are one species.
 
 use crate::balance::{self, Balance, BalanceError, Column, Outcome, Side};
+use crate::equation;
 use crate::equation::{split_equation, Arrow, Notation, RawTerm};
-use crate::formula::{parse_species, SyntaxError};
+use crate::formula::{found_at, parse_species, Phase, SpeciesSpec, SyntaxError};
+use crate::names;
 use crate::rational::Rational;
 use crate::smiles::SmilesError;
 use crate::species::Origin;
@@ -148,22 +150,59 @@ impl<'t> Screener<'t> {
         out
     }
 
-    /// A SMILES species, from the cache when seen before (by text, then by structure).
+    /// A SMILES species, from the cache when seen before (by text, then by structure). A state
+    /// may follow the SMILES in braces (`CCO{l}`, `[Na+].[Cl-]{s}`); without one the species
+    /// takes the screener's default phase.
     ///
     /// # Errors
     /// `ScreenError::Smiles` for a SMILES that does not parse (with its byte position),
-    /// `ScreenError::Species` when it has no data and cannot be estimated.
+    /// `ScreenError::Syntax` for a malformed state, `ScreenError::Species` when it has no data
+    /// and cannot be estimated.
     pub fn smiles_species(&mut self, text: &str, position: usize) -> Result<Arc<Prepared>, ScreenError> {
-        let cache_key = format!("{}\u{1}{text}", self.default_phase.name());
+        let (smiles, asked) = split_state(text, position)?;
+        let phase = asked.unwrap_or(StateAsked::Phase(self.default_phase));
+        self.structure_species(smiles, position, phase, None)
+    }
+
+    /// A species by structure in the state asked; `label` names it in results (the name a user
+    /// wrote), else the table's preferred name or the SMILES.
+    fn structure_species(
+        &mut self,
+        smiles: &str,
+        position: usize,
+        asked: StateAsked,
+        label: Option<&str>,
+    ) -> Result<Arc<Prepared>, ScreenError> {
+        let phase = match asked {
+            StateAsked::Aqueous => {
+                return Err(ScreenError::Species {
+                    position,
+                    error: ResolveError::Aqueous {
+                        species: format!("{}{{aq}}", label.unwrap_or(smiles)),
+                    },
+                })
+            }
+            StateAsked::Phase(p) => p,
+        };
+        // A charged species is a gas-phase ion only when the user says so.
+        if equation::smiles_charge(smiles) != 0 && phase != DefaultPhase::Gas {
+            return Err(ScreenError::Species {
+                position,
+                error: ResolveError::LoneIon {
+                    species: smiles.to_string(),
+                },
+            });
+        }
+        let cache_key = format!("{}\u{1}{smiles}", phase.name());
         if let Some(hit) = self.cache.get(&cache_key) {
             return hit.clone().map_err(|error| ScreenError::Species { position, error });
         }
-        let result = if let Some(v) = self.supplied.get(text) {
-            Ok(Arc::new(self.prepare(from_supplied(text, v))))
+        let result = if let Some(v) = self.supplied.get(smiles) {
+            Ok(Arc::new(self.prepare(from_supplied(smiles, v))))
         } else {
-            match structures::resolve_smiles(self.table, self.structures, text, position, self.default_phase) {
+            match structures::resolve_smiles(self.table, self.structures, smiles, position, phase, label) {
                 Ok(s) => {
-                    let k = (s.key, self.default_phase);
+                    let k = (s.key, phase);
                     match self.by_structure.get(&k) {
                         Some(p) => Ok(p.clone()),
                         None => {
@@ -180,6 +219,26 @@ impl<'t> Screener<'t> {
         };
         self.cache.insert(cache_key, result.clone());
         result.map_err(|error| ScreenError::Species { position, error })
+    }
+
+    /// A species written by name or CAS number (`nitrobenzene(l)`, `{acetic anhydride}(l)`,
+    /// `98-95-3`): the structure the name table gives, resolved like a SMILES species.
+    fn named_species(&mut self, name: &str, tag: Option<Phase>, position: usize) -> Result<Arc<Prepared>, ScreenError> {
+        let names = names::bundled();
+        let Some(c) = names.find(name) else {
+            let error = ResolveError::UnknownName {
+                species: name.to_string(),
+                suggestions: names.closest(name, 3).into_iter().map(str::to_string).collect(),
+            };
+            return Err(ScreenError::Species { position, error });
+        };
+        let asked = match tag {
+            Some(Phase::Aqueous) => StateAsked::Aqueous,
+            Some(p) => StateAsked::Phase(DefaultPhase::of(p)),
+            None => StateAsked::Phase(self.default_phase),
+        };
+        let (smiles, shown) = (c.smiles.clone(), c.name().to_string());
+        self.structure_species(&smiles, position, asked, Some(&shown))
     }
 
     pub fn grid(&self) -> &TemperatureGrid {
@@ -223,23 +282,78 @@ impl<'t> Screener<'t> {
         }
     }
 
-    /// The species a written token resolves to, from the cache when seen before.
+    /// The species a written token resolves to, from the cache when seen before: a formula
+    /// (`C2H5OH(l)`), a name (`nitrobenzene(l)`, `{acetic anhydride}(l)`) or a CAS number.
     ///
     /// # Errors
     /// `ScreenError` for a token that does not parse or resolve.
     pub fn species(&mut self, text: &str, position: usize) -> Result<Arc<Prepared>, ScreenError> {
+        // Supplied values are matched on the text as written, which need not be a formula.
+        if !self.supplied.contains_key(text) {
+            if let Some((name, tag)) = written_name(text, position)? {
+                return self.named_species(name, tag, position);
+            }
+        }
         if let Some(hit) = self.cache.get(text) {
             return hit.clone().map_err(|error| ScreenError::Species { position, error });
         }
-        // Supplied values are matched on the text as written, which need not be a formula.
         let result = match self.supplied.get(text) {
             Some(v) => Ok(from_supplied(text, v)),
-            // Parse errors depend on the position, so they are not cached.
-            None => self.table.resolve(&parse_species(text, position)?),
+            None => {
+                // Parse errors depend on the position, so they are not cached.
+                let spec = match parse_species(text, position) {
+                    Ok(spec) => spec,
+                    Err(e) => {
+                        // Not a formula: a name the table may know (`acetic anhydride(l)`).
+                        let (name, tag) = strip_tag(text);
+                        if names::bundled().find(name).is_some() || looks_like_a_name(name) {
+                            return self.named_species(name, tag, position);
+                        }
+                        return Err(e.into());
+                    }
+                };
+                if spec.formula.is_none() {
+                    return self.named_species(&spec.text, spec.phase, position);
+                }
+                self.check_isomers(&spec).and_then(|()| self.table.resolve(&spec))
+            }
         };
         let result = result.map(|r| Arc::new(self.prepare(r)));
         self.cache.insert(text.to_string(), result.clone());
         result.map_err(|error| ScreenError::Species { position, error })
+    }
+
+    /// A formula names one compound only when no other known compound shares it, or when it is
+    /// written as the structural formula of a bundled record with a known structure (`C2H5OH`,
+    /// `CH3COCH3`). `C6H5CH2OH` or `C3H6O` fit several compounds: an error naming them.
+    fn check_isomers(&self, spec: &SpeciesSpec) -> Result<(), ResolveError> {
+        let Some(formula) = &spec.formula else { return Ok(()) };
+        let hill = formula.hill();
+        let known = names::bundled().with_formula(&hill);
+        if known.len() < 2 {
+            return Ok(());
+        }
+        let written_as_hill = spec.text_with_charge() == hill;
+        let structural_record = self.structures.key_of(&spec.text).is_some()
+            || self
+                .table
+                .by_name(&spec.text, formula.charge)
+                .iter()
+                .any(|&k| self.structures.key_of(&self.table.records[k].base).is_some());
+        if structural_record && !written_as_hill {
+            return Ok(());
+        }
+        let mut candidates: Vec<String> = known.iter().map(|c| format!("{} ({})", c.name(), c.smiles)).collect();
+        candidates.sort();
+        let more = candidates.len().saturating_sub(8);
+        candidates.truncate(8);
+        if more > 0 {
+            candidates.push(format!("and {more} more"));
+        }
+        Err(ResolveError::Isomers {
+            species: spec.to_string(),
+            candidates,
+        })
     }
 
     /// Screen one reaction.
@@ -478,4 +592,97 @@ fn push_int(out: &mut String, mut n: i128) {
         }
     }
     out.push_str(std::str::from_utf8(&buf[i..]).unwrap_or("?"));
+}
+
+/// The state asked for a species written by structure or name.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum StateAsked {
+    Phase(DefaultPhase),
+    Aqueous,
+}
+
+/// A SMILES species and the state written after it in braces: `CCO{l}` → (`CCO`, liquid).
+///
+/// # Errors
+/// `SyntaxError` at the brace for an unclosed brace or an unknown state word.
+fn split_state(text: &str, position: usize) -> Result<(&str, Option<StateAsked>), SyntaxError> {
+    let Some(open) = text.find('{') else {
+        return Ok((text, None));
+    };
+    let expected = "a state in braces after the SMILES: {g}, {l}, {s}, {aq} or {std}";
+    let Some(inner) = text[open + 1..].strip_suffix('}') else {
+        return Err(SyntaxError::Unexpected {
+            position: position + open,
+            expected,
+            found: found_at(text, open),
+        });
+    };
+    let state = match inner.trim().to_ascii_lowercase().as_str() {
+        "aq" => StateAsked::Aqueous,
+        "std" | "standard" => StateAsked::Phase(DefaultPhase::Standard),
+        "cr" => StateAsked::Phase(DefaultPhase::Solid),
+        w => match DefaultPhase::parse(w) {
+            Some(p) if !w.is_empty() => StateAsked::Phase(p),
+            _ => {
+                return Err(SyntaxError::Unexpected {
+                    position: position + open + 1,
+                    expected,
+                    found: format!("{{{inner}}}"),
+                })
+            }
+        },
+    };
+    Ok((&text[..open], Some(state)))
+}
+
+/// A trailing phase tag of a name: `acetic anhydride(l)` → (`acetic anhydride`, liquid).
+fn strip_tag(text: &str) -> (&str, Option<Phase>) {
+    if let Some(head) = text.strip_suffix(')') {
+        if let Some(open) = head.rfind('(') {
+            let tag = match &head[open + 1..] {
+                "g" | "gas" => Some(Phase::Gas),
+                "l" | "liquid" => Some(Phase::Liquid),
+                "s" | "cr" | "solid" => Some(Phase::Solid),
+                "aq" => Some(Phase::Aqueous),
+                _ => None,
+            };
+            if tag.is_some() {
+                return (head[..open].trim_end(), tag);
+            }
+        }
+    }
+    (text, None)
+}
+
+/// A name in braces, `{2-nitrotoluene}(l)`, or a CAS number, `98-95-3(l)`.
+///
+/// # Errors
+/// `SyntaxError` for an unclosed brace or text after the tag.
+fn written_name(text: &str, position: usize) -> Result<Option<(&str, Option<Phase>)>, SyntaxError> {
+    if let Some(rest) = text.strip_prefix('{') {
+        let Some(close) = rest.find('}') else {
+            return Err(SyntaxError::Unexpected {
+                position,
+                expected: "a name in braces: {acetic anhydride}",
+                found: "no closing '}'".into(),
+            });
+        };
+        let after = &rest[close + 1..];
+        let (_, tag) = strip_tag(after);
+        if !after.is_empty() && tag.is_none() {
+            return Err(SyntaxError::Unexpected {
+                position: position + close + 2,
+                expected: "a phase tag such as (l) after the name, or nothing",
+                found: found_at(text, close + 2),
+            });
+        }
+        return Ok(Some((rest[..close].trim(), tag)));
+    }
+    let (head, tag) = strip_tag(text);
+    Ok(names::looks_like_cas(head).then_some((head, tag)))
+}
+
+/// Words no formula has: a run of three lower-case letters, or a space.
+fn looks_like_a_name(s: &str) -> bool {
+    s.contains(' ') || s.as_bytes().windows(3).any(|w| w.iter().all(u8::is_ascii_lowercase))
 }

@@ -123,8 +123,11 @@ pub struct Record {
     pub note: String,
     /// The data source, for humans: `NASA thermo data (...) via Cantera 3.2.0`.
     pub source: String,
-    /// Standard uncertainty of ΔfH°(298.15 K) where the source gives one.
+    /// Standard uncertainty σ of ΔfH°(298.15 K): the source's (a 95% interval halved), else the
+    /// table's source-typical σ (`data/source_sigma.tsv`), 0 for an element in its reference state.
     pub dhf_uncertainty_kj_per_mol: Option<f64>,
+    /// Where that σ comes from, for the species table.
+    pub sigma_basis: String,
 }
 
 impl Record {
@@ -165,7 +168,10 @@ pub struct Resolved {
     /// Segments of every record used (a solid's polymorph series has several records).
     pub segments: Vec<Segment>,
     pub origin: Vec<Origin>,
+    /// Standard uncertainty σ of ΔfH°(298.15 K).
     pub dhf_uncertainty_kj_per_mol: Option<f64>,
+    /// Where that σ comes from: the source's stated value, a source-typical σ, an estimation rule.
+    pub sigma_basis: String,
     /// Things the user should know about how this species was resolved.
     pub notes: Vec<String>,
     /// Segments of the compound's other phases that could be more stable (gas for a liquid;
@@ -298,6 +304,16 @@ pub enum ResolveError {
     NameWithoutData { species: String },
     #[error("no data for {species}: not in the bundled table, and it cannot be estimated: {reason}")]
     NotEstimable { species: String, reason: String },
+    #[error("{species} is written as a formula that fits several compounds: {}; write the one you mean by name or SMILES", candidates.join(", "))]
+    Isomers { species: String, candidates: Vec<String> },
+    #[error("{species} is not a known name or CAS number{}", if suggestions.is_empty() { String::new() } else { format!(" (did you mean {}?)", suggestions.join(", ")) })]
+    UnknownName { species: String, suggestions: Vec<String> },
+    #[error("{species} is a lone ion: write a salt as its ions side by side ([Na+].[Cl-]), or tag the ion {{g}} for the gas-phase ion")]
+    LoneIon { species: String },
+    #[error("no aqueous data for {species}: aqueous species are not bundled; supply ΔfH° and S° for it")]
+    Aqueous { species: String },
+    #[error("no data for the salt {species}: no bundled record has its formula {formula}, and salts are not estimated; supply ΔfH° and S° for it")]
+    UnknownSalt { species: String, formula: String },
 }
 
 /// The bundled data, indexed.
@@ -322,6 +338,78 @@ const OPEN_TSV: &str = include_str!("../data/open_species.tsv");
 pub const OPEN_SOURCE_NAME: &str = "ATcT 1.112 (Argonne) + ChemSep 8.3 (Artistic License 2.0) via chemicals 1.5.2";
 /// ATcT 1.112 uncertainties of ΔfH° for NASA records (`scripts/gen_nasa_uncertainty.py`).
 const NASA_UNCERTAINTY_TSV: &str = include_str!("../data/nasa_uncertainty.tsv");
+
+/// How the species table names σ taken from ATcT.
+const ATCT_BASIS: &str = "ATcT 1.112 stated uncertainty, a 95% interval: σ = ±/2";
+
+/// Source-typical σ of tables that state none (`scripts/gen_source_sigma.py`).
+const SOURCE_SIGMA_TSV: &str = include_str!("../data/source_sigma.tsv");
+
+/// Source-typical σ of ΔfH° per table, from comparisons with an independent source.
+struct SourceSigma {
+    /// (key, σ kJ/mol, how it was found)
+    rows: Vec<(String, f64, String)>,
+}
+
+impl SourceSigma {
+    fn bundled() -> SourceSigma {
+        let t = crate::tsv::read(SOURCE_SIGMA_TSV, "source_sigma.tsv");
+        let rows = t
+            .rows()
+            .map(|r| {
+                let get = |c: &str| r.get(c).unwrap_or_else(|e| panic!("{e}"));
+                let sigma: f64 = get("sigma_kj_per_mol")
+                    .parse()
+                    .unwrap_or_else(|_| panic!("{}", r.error("bad sigma")));
+                (
+                    get("source").to_string(),
+                    sigma,
+                    format!("{} ({} compounds)", get("comparison"), get("compared")),
+                )
+            })
+            .collect();
+        SourceSigma { rows }
+    }
+
+    fn get(&self, key: &str) -> (f64, &str) {
+        self.rows
+            .iter()
+            .find(|r| r.0 == key)
+            .map(|r| (r.1, r.2.as_str()))
+            .unwrap_or_else(|| panic!("source_sigma.tsv has no row {key}"))
+    }
+
+    /// σ and its basis for a record without a stated σ. The open table's notes say which source
+    /// each ΔfH° comes from: ChemSep's ideal gas, ChemSep's ideal gas less its ΔvapH, or an ATcT
+    /// gas (± in the note) less ChemSep's ΔvapH.
+    fn for_record(&self, r: &Record) -> (f64, String) {
+        let typical = |key: &str| {
+            let (s, how) = self.get(key);
+            (s, format!("source-typical σ of {key}: {how}"))
+        };
+        if r.note.starts_with("dHf(g) ChemSep") {
+            return typical("chemsep_gas");
+        }
+        if r.note.starts_with("dHf(l) = ChemSep") {
+            return typical("chemsep_liquid");
+        }
+        if r.note.starts_with("dHf(l) = ATcT") {
+            let atct = r
+                .note
+                .split_once("(+/- ")
+                .and_then(|(_, rest)| rest.split_once(')'))
+                .and_then(|(v, _)| v.trim().parse::<f64>().ok())
+                .unwrap_or(0.0)
+                / 2.0;
+            let (vap, how) = self.get("chemsep_vaporization");
+            return (
+                (atct * atct + vap * vap).sqrt(),
+                format!("ATcT 1.112 gas (±/2) combined with the source-typical σ of chemsep_vaporization: {how}"),
+            );
+        }
+        typical("nasa")
+    }
+}
 
 /// The bundled table, parsed on first use (a few milliseconds) and shared for the process.
 pub fn bundled() -> &'static Table {
@@ -395,10 +483,12 @@ fn parse_records(tsv: &str, source_name: &str, records: &mut Vec<Record>, proven
             segments,
             note: col("note").unwrap_or("").to_string(),
             source: col("source").ok().filter(|s| !s.is_empty()).unwrap_or(source_name).to_string(),
+            // The open table's column is ATcT's stated ±, a 95% interval: σ is half of it.
             dhf_uncertainty_kj_per_mol: match col("dhf_uncertainty_kj_per_mol") {
                 Ok("") | Err(_) => None,
-                Ok(v) => Some(v.parse().map_err(|_| err("dhf_uncertainty_kj_per_mol"))?),
+                Ok(v) => Some(v.parse::<f64>().map_err(|_| err("dhf_uncertainty_kj_per_mol"))? / 2.0),
             },
+            sigma_basis: String::from(ATCT_BASIS),
         });
     }
     Ok(())
@@ -413,7 +503,8 @@ fn apply_uncertainties(tsv: &str, records: &mut [Record], provenance: &mut Strin
         let (name, u) = (row.get("name")?, row.get("atct_uncertainty_kj_per_mol")?);
         let u: f64 = u.parse().map_err(|_| row.error("bad number"))?;
         if let Some(&k) = by_name.get(name) {
-            records[k].dhf_uncertainty_kj_per_mol = Some(u);
+            records[k].dhf_uncertainty_kj_per_mol = Some(u / 2.0);
+            records[k].sigma_basis = ATCT_BASIS.to_string();
         }
     }
     Ok(())
@@ -492,8 +583,15 @@ impl Table {
             if let Some(seg) = r.segments.iter().find(|s| s.covers(T_REF_K)) {
                 if (seg.h_rt_s_r(T_REF_K, ln_t).0 * R * T_REF_K).abs() < 1.0 {
                     r.dhf_uncertainty_kj_per_mol = Some(0.0);
+                    r.sigma_basis = "0: an element in its reference state (ΔfH° = 0 by definition)".into();
                 }
             }
+        }
+        let typical = SourceSigma::bundled();
+        for r in records.iter_mut().filter(|r| r.dhf_uncertainty_kj_per_mol.is_none()) {
+            let (sigma, basis) = typical.for_record(r);
+            r.dhf_uncertainty_kj_per_mol = Some(sigma);
+            r.sigma_basis = basis;
         }
         Ok(Table::index(records, provenance, sources))
     }
@@ -662,6 +760,7 @@ impl Table {
                 })
                 .collect(),
             dhf_uncertainty_kj_per_mol: recs[0].dhf_uncertainty_kj_per_mol,
+            sigma_basis: recs[0].sigma_basis.clone(),
             notes,
             rivals,
         })
@@ -701,7 +800,13 @@ pub fn from_supplied(label: &str, v: &SuppliedSpecies) -> Resolved {
         phase: v.phase,
         segments: vec![Segment::constant_cp(lo, hi, v.dhf_kj_per_mol, v.s_j_per_mol_k, cp)],
         origin: vec![Origin::Supplied],
-        dhf_uncertainty_kj_per_mol: v.dhf_uncertainty_kj_per_mol,
+        // Values supplied without an uncertainty are taken as exact, and the table says so.
+        dhf_uncertainty_kj_per_mol: Some(v.dhf_uncertainty_kj_per_mol.unwrap_or(0.0)),
+        sigma_basis: if v.dhf_uncertainty_kj_per_mol.is_some() {
+            "supplied with the request".into()
+        } else {
+            "0: supplied with the request without an uncertainty (taken as exact)".into()
+        },
         notes,
         rivals: Vec::new(),
     }

@@ -2,8 +2,7 @@
 //!
 //! Order, after values supplied with the request (the screener checks those first):
 //! 1. a bundled NASA record with the same structure (canonical key), in the phase asked for;
-//! 2. a bundled record with the same formula, only when no record of that formula has a known
-//!    structure and the formula names one compound (noted: it could be an isomer);
+//! 2. an ion pair (`[Na+].[OH-]`): the salt's record by formula (a salt's formula is its identity);
 //! 3. a Joback & Reid estimate from the structure (see [`crate::joback`]); a liquid asked for
 //!    where the table holds only the gas is the tabulated gas with an estimated vaporization.
 //!
@@ -14,6 +13,7 @@
 use crate::elements::Z;
 use crate::formula::{Phase, SpeciesSpec};
 use crate::joback::{self, Estimate};
+use crate::names;
 use crate::smiles::Molecule;
 use crate::species::{Origin, ResolveError, Resolved, Table, T_REF_K};
 use std::collections::HashMap;
@@ -48,6 +48,15 @@ impl DefaultPhase {
             DefaultPhase::Liquid => Some(Phase::Liquid),
             DefaultPhase::Solid => Some(Phase::Solid),
             DefaultPhase::Standard => None,
+        }
+    }
+
+    /// The phase tag of a species written by name, as a default phase.
+    pub fn of(phase: Phase) -> DefaultPhase {
+        match phase {
+            Phase::Gas => DefaultPhase::Gas,
+            Phase::Liquid => DefaultPhase::Liquid,
+            Phase::Solid | Phase::Aqueous => DefaultPhase::Solid,
         }
     }
 
@@ -157,7 +166,9 @@ pub enum SmilesSpeciesError {
     Resolve(#[from] ResolveError),
 }
 
-/// Resolve one SMILES species (bundled record by structure, by formula, or estimate).
+/// Resolve one SMILES species (bundled record by structure, a salt by its formula, or an
+/// estimate). `label` is how results name it (a name the user wrote); without one, the name
+/// table's preferred name for the structure, else the SMILES as written.
 ///
 /// # Errors
 /// [`SmilesSpeciesError`] when the SMILES does not parse (with its byte position) or the species
@@ -168,9 +179,113 @@ pub fn resolve_smiles(
     smiles: &str,
     position: usize,
     phase: DefaultPhase,
+    label: Option<&str>,
 ) -> Result<SmilesSpecies, SmilesSpeciesError> {
     let m = Molecule::parse(smiles, position)?;
     let key = m.canonical_key();
+    let formula = m.formula();
+    let hill = formula.hill();
+    let known = names::bundled();
+    let named = || known.by_structure(&key, &hill).map(|c| c.name().to_string());
+    let mut r = if smiles.contains('.') && smiles.split('.').any(|c| crate::equation::smiles_charge(c) != 0) {
+        let (mut r, base) = salt(table, &formula, label.unwrap_or(smiles), phase)?;
+        // A salt is shown by its formula as the table writes it (NASA spells Cl and Al in capitals).
+        r.label = format!(
+            "{}({})",
+            label.map_or_else(|| base.replace("CL", "Cl").replace("AL", "Al"), str::to_string),
+            r.phase.tag()
+        );
+        return Ok(SmilesSpecies { resolved: r, key });
+    } else {
+        by_structure(table, structures, &m, &key, smiles, phase)?
+    };
+    // Results name a species as the user wrote it by name; else by its formula where that names
+    // one compound (H2, CO2, HCl), else by the name table's name, else by the SMILES as written.
+    // Formulas read well for inorganic molecules and the smallest carbon ones (CO2, CH4, COCl2).
+    let count = |z: u8| formula.atoms.iter().find(|a| a.0 == z).map_or(0, |a| a.1);
+    let small = count(6) == 0 || (count(6) == 1 && (count(1) == 0 || m.heavy_atom_count() == 1));
+    let formula_label = (small && known.with_formula(&hill).len() < 2).then(|| formula_text(&formula));
+    let shown = label
+        .map(str::to_string)
+        .or(if formula.charge == 0 { formula_label } else { None })
+        .or_else(named)
+        .unwrap_or_else(|| smiles.to_string());
+    r.label = format!("{shown}({})", r.phase.tag());
+    Ok(SmilesSpecies { resolved: r, key })
+}
+
+/// A formula as chemists write small molecules: `H2O`, `CO2`, `HCl`, `NaOH` (Hill order, but
+/// hydrogen first for binary hydrides of the halogens and chalcogens, and metals first in salts).
+fn formula_text(f: &crate::formula::Formula) -> String {
+    use crate::elements;
+    let mut parts: Vec<(&str, u32)> = f.atoms.iter().map(|&(z, n)| (elements::symbol(z), n)).collect();
+    let has_carbon = parts.iter().any(|p| p.0 == "C");
+    let nh3_like = parts.len() == 2 && parts.iter().any(|p| p.0 == "H");
+    // Electropositive first: H before halogens/chalcogens (HCl, H2O), metals before all.
+    let rank = |s: &str| -> u8 {
+        match s {
+            "C" if has_carbon => 0,
+            "H" if has_carbon => 1,
+            "Li" | "Na" | "K" | "Mg" | "Ca" | "Ba" | "Cs" | "Rb" | "Sr" | "Al" | "Fe" | "Cu" | "Zn" => 2,
+            "N" if nh3_like => 4,
+            "H" => 3,
+            _ => 5,
+        }
+    };
+    parts.sort_by_key(|p| (rank(p.0), p.0));
+    let mut out = String::new();
+    for (s, n) in parts {
+        out.push_str(s);
+        if n != 1 {
+            out.push_str(&n.to_string());
+        }
+    }
+    out
+}
+
+/// An ion pair written in a SMILES (`[Na+].[OH-]`) is the salt: the bundled record of its
+/// formula in the state asked (the stable one at 298.15 K for `standard`), never gas-phase ions.
+fn salt(table: &Table, formula: &crate::formula::Formula, shown: &str, phase: DefaultPhase) -> Result<(Resolved, String), ResolveError> {
+    let hill = formula.hill();
+    let mut bases: Vec<&str> = table.by_formula(&hill).iter().map(|&k| table.records[k].base.as_str()).collect();
+    bases.sort_unstable_by_key(|b| b.to_ascii_uppercase());
+    bases.dedup_by(|a, b| a.eq_ignore_ascii_case(b));
+    // NASA names the gas `NAOH`-style in capitals and the condensed phases in mixed case: one salt.
+    let Some(base) = bases
+        .iter()
+        .find(|b| table.by_name(b, 0).iter().any(|&k| table.records[k].phase != Phase::Gas))
+        .or(bases.first())
+    else {
+        return Err(ResolveError::UnknownSalt {
+            species: shown.to_string(),
+            formula: hill,
+        });
+    };
+    let spec = SpeciesSpec {
+        text: base.to_string(),
+        formula: Some(formula.clone()),
+        phase: phase.phase(),
+        form: None,
+    };
+    let mut r = table.resolve(&spec)?;
+    r.notes.retain(|n| !n.contains("has no phase tag"));
+    r.notes.push(format!(
+        "{shown}: an ion pair, taken as the salt {base} ({}); aqueous ions are not bundled",
+        r.phase.tag()
+    ));
+    Ok((r, base.to_string()))
+}
+
+/// A molecule: the bundled record with the same structure, else an estimate from the structure.
+/// A record whose structure is unknown or different is never used, even with the same formula.
+fn by_structure(
+    table: &Table,
+    structures: &Structures,
+    m: &Molecule,
+    key: &str,
+    smiles: &str,
+    phase: DefaultPhase,
+) -> Result<Resolved, ResolveError> {
     let formula = m.formula();
     let mut notes = Vec::new();
     let spec_for = |name: &str, phase: Option<Phase>| SpeciesSpec {
@@ -179,89 +294,91 @@ pub fn resolve_smiles(
         phase,
         form: None,
     };
-    // 1. By structure.
-    let names = structures.names_for(&key);
+    // `[HH]` and `[H][H]` are both dihydrogen: one hydrogen with an implicit hydrogen, or two
+    // explicit ones. The canonical keys differ, so the bundled structure is looked up under both.
+    let h2_key;
+    let names = match structures.names_for(key) {
+        [] if formula.hill() == "H2" && m.heavy_atom_count() == 0 => {
+            h2_key = Molecule::parse("[H][H]", 0).map(|h| h.canonical_key()).unwrap_or_default();
+            structures.names_for(&h2_key)
+        }
+        found => found,
+    };
+    // Joback groups with the name table's measured melting and boiling points where it has them.
+    let estimate = || {
+        Estimate::of(m).map(|e| {
+            let known = names::bundled().by_structure(key, &formula.hill());
+            let point = |p: &Option<(f64, String)>| p.as_ref().map(|(t, src)| (*t, src.clone()));
+            let (tm, tb) = known.map_or((None, None), |c| (point(&c.melting_k), point(&c.boiling_k)));
+            e.with_measured(
+                tm.as_ref().map(|(t, s)| (*t, s.as_str())),
+                tb.as_ref().map(|(t, s)| (*t, s.as_str())),
+            )
+        })
+    };
     for name in names {
         match table.resolve(&spec_for(name, phase.phase())) {
             Ok(mut r) => {
-                // A table with only the gas of a compound that is liquid at 298.15 K: for the
-                // standard phase, take the liquid from the gas plus an estimated vaporization.
-                let liquid_listed = names.iter().any(|n| table.resolve(&spec_for(n, Some(Phase::Liquid))).is_ok());
-                if phase == DefaultPhase::Standard && r.phase == Phase::Gas && !liquid_listed {
-                    if let Ok(e) = Estimate::of(&m) {
-                        if e.tb_k > T_REF_K {
-                            return Ok(SmilesSpecies {
-                                resolved: liquid_from_gas(&r, &e, name)?,
-                                key,
-                            });
+                // A table with only the gas of a compound that is condensed at 298.15 K: for the
+                // standard state, the liquid or solid from the gas and an estimated vaporization
+                // (and fusion).
+                let condensed_listed = names.iter().any(|n| {
+                    table.resolve(&spec_for(n, Some(Phase::Liquid))).is_ok() || table.resolve(&spec_for(n, Some(Phase::Solid))).is_ok()
+                });
+                if phase == DefaultPhase::Standard && r.phase == Phase::Gas && !condensed_listed {
+                    if let Ok(e) = estimate() {
+                        let (state, why) = e.state_at_298();
+                        if state != Phase::Gas {
+                            return condensed_from_gas(&r, &e, name, state, &why);
                         }
                     }
                 }
                 r.notes.retain(|n| !n.contains("has no phase tag"));
                 r.notes.push(format!("{smiles}: bundled record {name} by structure"));
-                return Ok(SmilesSpecies { resolved: r, key });
+                return Ok(r);
             }
             Err(ResolveError::NotFound { .. }) => {}
-            Err(e) => return Err(e.into()),
+            Err(e) => return Err(e),
         }
     }
-    if phase == DefaultPhase::Liquid {
-        if let Some((name, gas)) = names
-            .iter()
-            .find_map(|n| table.resolve(&spec_for(n, Some(Phase::Gas))).ok().map(|g| (n, g)))
-        {
-            // A liquid from the gas where the estimated Tb says it is one at 298.15 K; a
-            // permanent gas (H2, CO2, ethylene) in a liquid-phase case stays a gas, with a note.
-            match Estimate::of(&m) {
-                Ok(e) if e.tb_k > T_REF_K => {
-                    return Ok(SmilesSpecies {
-                        resolved: liquid_from_gas(&gas, &e, name)?,
-                        key,
-                    })
-                }
-                _ => {
-                    return Ok(SmilesSpecies {
-                        resolved: fallback(gas, smiles, phase),
-                        key,
-                    })
+    // A solid-phase case keeps species that melt below 298.15 K (solvents, reagents) in their
+    // stable state, as a liquid-phase case keeps permanent gases gaseous.
+    let mut phase = phase;
+    if phase == DefaultPhase::Solid {
+        if let Ok(e) = estimate() {
+            if let Some(tm) = e.tm_k.filter(|&t| t < T_REF_K) {
+                notes.push(format!(
+                    "{smiles}: asked as a solid, but it melts at {tm:.0} K ({}): its stable state at 298.15 K is used",
+                    e.tm_source
+                ));
+                phase = DefaultPhase::Standard;
+                if let Some(r) = names.iter().find_map(|n| table.resolve(&spec_for(n, None)).ok()) {
+                    let mut r = r;
+                    r.notes.retain(|n| !n.contains("has no phase tag"));
+                    r.notes.append(&mut notes);
+                    return Ok(r);
                 }
             }
         }
     }
-    if phase == DefaultPhase::Solid {
-        // No solid record: the stable phase at 298.15 K is used, with a note.
-        if let Some(r) = names.iter().find_map(|n| table.resolve(&spec_for(n, None)).ok()) {
-            return Ok(SmilesSpecies {
-                resolved: fallback(r, smiles, phase),
-                key,
-            });
+    if let Some(asked @ (Phase::Liquid | Phase::Solid)) = phase.phase() {
+        let from = |p: Phase| names.iter().find_map(|n| table.resolve(&spec_for(n, Some(p))).ok().map(|r| (n, r)));
+        if let Some((name, tabulated)) = from(Phase::Gas).or_else(|| from(Phase::Liquid)) {
+            // The condensed phase asked for, from the tabulated gas, where the melting and
+            // boiling points say it can be one at 298.15 K; a permanent gas (H2, CO2, ethylene)
+            // in a liquid-phase case stays a gas, with a note.
+            return match estimate() {
+                Ok(e) if e.tb_k > T_REF_K && tabulated.phase == Phase::Gas => condensed_from_gas(&tabulated, &e, name, asked, "asked for"),
+                _ => Ok(fallback(tabulated, smiles, phase)),
+            };
         }
     }
     if let Some(name) = names.first() {
         notes.push(format!("{smiles}: the bundled table has {name} but not as {}", phase.name()));
     }
-    // 2. By formula, only where no record of this formula has a known structure.
-    let hill = formula.hill();
-    let ids = table.by_formula(&hill);
-    if !ids.is_empty() && names.is_empty() {
-        let mut bases: Vec<&str> = ids.iter().map(|&k| table.records[k].base.as_str()).collect();
-        bases.sort_unstable_by_key(|b| b.to_ascii_uppercase());
-        bases.dedup_by(|a, b| a.eq_ignore_ascii_case(b));
-        let any_known = bases.iter().any(|b| structures.key_of(b).is_some());
-        if bases.len() == 1 && !any_known {
-            if let Ok(mut r) = table.resolve(&spec_for(bases[0], phase.phase())) {
-                r.notes.retain(|n| !n.contains("has no phase tag"));
-                r.notes.push(format!(
-                    "{smiles}: matched bundled record {} by formula {hill} only (the table gives no structure; it could be an isomer)",
-                    bases[0]
-                ));
-                return Ok(SmilesSpecies { resolved: r, key });
-            }
-        }
-    }
-    // 3. Estimate.
+    // Estimate.
     let shown = format!("{smiles}({})", phase.phase().map_or("standard", |p| p.tag()));
-    let e = Estimate::of(&m).map_err(|e| ResolveError::NotEstimable {
+    let e = estimate().map_err(|e| ResolveError::NotEstimable {
         species: shown.clone(),
         reason: e.to_string(),
     })?;
@@ -274,7 +391,7 @@ pub fn resolve_smiles(
         })?;
     notes.append(&mut r.notes);
     r.notes = notes;
-    Ok(SmilesSpecies { resolved: r, key })
+    Ok(r)
 }
 
 /// A tabulated species used in another phase than the case's default, saying so.
@@ -289,13 +406,15 @@ fn fallback(mut r: Resolved, smiles: &str, phase: DefaultPhase) -> Resolved {
     r
 }
 
-/// The liquid from a tabulated gas and an estimated vaporization at 298.15 K.
-fn liquid_from_gas(gas: &Resolved, e: &Estimate, name: &str) -> Result<Resolved, ResolveError> {
-    let label = format!("{name}(l)");
-    let v = e.vaporization().map_err(|err| ResolveError::NotEstimable {
+/// The liquid or solid from a tabulated gas: minus an estimated vaporization at 298.15 K, and
+/// for a solid minus an estimated fusion. `why` says why this state (for the note).
+fn condensed_from_gas(gas: &Resolved, e: &Estimate, name: &str, state: Phase, why: &str) -> Result<Resolved, ResolveError> {
+    let label = format!("{name}({})", state.tag());
+    let err = |err: joback::JobackError| ResolveError::NotEstimable {
         species: label.clone(),
         reason: err.to_string(),
-    })?;
+    };
+    let v = e.vaporization().map_err(err)?;
     let ln_t = T_REF_K.ln();
     let st = gas.state(T_REF_K, ln_t);
     let seg = gas
@@ -309,23 +428,42 @@ fn liquid_from_gas(gas: &Resolved, e: &Estimate, name: &str) -> Result<Resolved,
     let mut origin = gas.origin.clone();
     origin.push(Origin::Estimated {
         method: format!(
-            "vaporization from {}: Watson (0.38) and Clausius–Clapeyron from the estimated Tb, Rowlinson–Bondi liquid Cp",
-            joback::METHOD
+            "vaporization from {}: Watson (0.38) and Clausius–Clapeyron from Tb ({}), Rowlinson–Bondi liquid Cp",
+            joback::METHOD,
+            e.tb_source
         ),
     });
-    let sigma = (gas.dhf_uncertainty_kj_per_mol.unwrap_or(0.0).powi(2) + joback::DHVAP_SIGMA_KJ_PER_MOL.powi(2)).sqrt();
+    let mut sigma2 = gas.dhf_uncertainty_kj_per_mol.unwrap_or(0.0).powi(2) + joback::DHVAP_SIGMA_KJ_PER_MOL.powi(2);
+    let mut note = format!(
+        "{label}: the bundled table has only the gas; {why}; liquid = gas − estimated vaporization at 298.15 K (ΔvapH {:.1} kJ/mol, p_sat {:.3} bar, Tb {:.0} K, {}), liquid Cp {cp_l:.0} J/mol/K held constant",
+        v.dhvap_298_kj_per_mol, v.p_sat_298_bar, e.tb_k, e.tb_source
+    );
+    let (segment, rivals) = if state == Phase::Solid {
+        let f = e.fusion().map_err(err)?;
+        origin.push(Origin::Estimated {
+            method: format!("enthalpy of fusion from {} at Tm ({})", joback::METHOD, e.tm_source),
+        });
+        sigma2 += joback::FUSION_SIGMA_KJ_PER_MOL.powi(2);
+        note.push_str(&format!(
+            "; solid = liquid − ΔfusH {:.1} kJ/mol (Tm {:.0} K), solid Cp taken as the liquid's",
+            f.dhfus_kj_per_mol, f.tm_k
+        ));
+        let mut rivals = gas.segments.clone();
+        rivals.push(liquid);
+        (f.solid_segment(&liquid, cp_l), rivals)
+    } else {
+        (liquid, gas.segments.clone())
+    };
     Ok(Resolved {
         label,
         formula: gas.formula.clone(),
-        phase: Phase::Liquid,
-        segments: vec![liquid],
+        phase: state,
+        segments: vec![segment],
         origin,
-        dhf_uncertainty_kj_per_mol: Some(sigma),
-        notes: vec![format!(
-            "{name}(l): the bundled table has only the gas; liquid = gas − estimated vaporization at 298.15 K (ΔvapH {:.1} kJ/mol, p_sat {:.3} bar, estimated Tb {:.0} K), liquid Cp {cp_l:.0} J/mol/K held constant",
-            v.dhvap_298_kj_per_mol, v.p_sat_298_bar, e.tb_k
-        )],
-        rivals: gas.segments.clone(),
+        dhf_uncertainty_kj_per_mol: Some(sigma2.sqrt()),
+        sigma_basis: format!("{} combined with the estimated phase change's σ", gas.sigma_basis),
+        notes: vec![note],
+        rivals,
     })
 }
 
@@ -335,7 +473,7 @@ mod tests {
     use crate::species::bundled as table;
 
     fn resolve(s: &str, p: DefaultPhase) -> Resolved {
-        resolve_smiles(table(), bundled(), s, 0, p)
+        resolve_smiles(table(), bundled(), s, 0, p, None)
             .unwrap_or_else(|e| panic!("{s}: {e}"))
             .resolved
     }
@@ -366,7 +504,7 @@ mod tests {
             r.origin
         );
         let r2 = resolve("C(O)C", DefaultPhase::Gas);
-        assert_eq!(r.label, r2.label);
+        assert_eq!(r.origin, r2.origin);
         let r = resolve("COC", DefaultPhase::Gas);
         assert!(matches!(&r.origin[0], Origin::Tabulated { record, .. } if record == "CH3OCH3"));
         let r = resolve("c1ccccc1", DefaultPhase::Liquid);
@@ -388,8 +526,15 @@ mod tests {
         assert!(r.dhf_uncertainty_kj_per_mol.unwrap() > 10.0);
         let r = resolve("CC(C)(C)OC", DefaultPhase::Standard);
         assert_eq!(r.phase, Phase::Liquid, "MTBE boils at 328 K");
-        assert!(resolve_smiles(table(), bundled(), "CS(=O)C", 0, DefaultPhase::Gas).is_err());
-        assert!(resolve_smiles(table(), bundled(), "CC(C)(C)OC", 0, DefaultPhase::Solid).is_err());
+        assert!(resolve_smiles(table(), bundled(), "CS(=O)C", 0, DefaultPhase::Gas, None).is_err());
+        // A solid is estimated through vaporization and Joback's enthalpy of fusion; a group
+        // without a fusion value (=NH) makes it an error.
+        // 4-nitrotoluene (Tm 325 K, measured) is in no bundled table.
+        let s = resolve("Cc1ccc(cc1)[N+](=O)[O-]", DefaultPhase::Standard);
+        assert_eq!(s.phase, Phase::Solid);
+        assert!(s.notes.iter().any(|n| n.contains("ΔfusH")), "{:?}", s.notes);
+        // An imine: Joback's =NH group has no fusion value.
+        assert!(resolve_smiles(table(), bundled(), "CC(=N)c1ccc(O)cc1", 0, DefaultPhase::Solid, None).is_err());
     }
 
     #[test]

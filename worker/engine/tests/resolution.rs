@@ -114,8 +114,28 @@ fn open_liquids_and_atct_uncertainties() {
     );
     assert!(r.species[0].species.resolved.source_line().contains("ATcT"));
     // Water formation: H2 and O2 are reference elements (σ = 0), H2O(l) carries ATcT 1.112's
-    // ±0.027 kJ/mol (data/nasa_uncertainty.tsv), so the reaction's uncertainty is that one.
+    // ±0.027 kJ/mol (data/nasa_uncertainty.tsv), a 95% interval: σ = 0.0135 kJ/mol.
     let w = s.screen("H2(g) + 1/2 O2(g) -> H2O(l)").unwrap();
     let u = w.delta_h_uncertainty_kj_per_mol.expect("uncertainty");
-    assert!((u - 0.027).abs() < 1e-9, "{u}");
+    assert!((u - 0.0135).abs() < 1e-9, "{u}");
+    let water = &w
+        .species
+        .iter()
+        .find(|t| t.species.resolved.label == "H2O(l)")
+        .unwrap()
+        .species
+        .resolved;
+    assert!(water.sigma_basis.contains("±/2"), "{}", water.sigma_basis);
+    // A species whose source states no σ carries the table's source-typical σ
+    // (data/source_sigma.tsv: NASA against ATcT 1.112), never none.
+    let f = s.screen("2 Al(cr) + Fe2O3(s) -> Al2O3(s) + 2 Fe(cr)").unwrap();
+    let fe2o3 = &f
+        .species
+        .iter()
+        .find(|t| t.species.resolved.label.starts_with("Fe2O3"))
+        .unwrap()
+        .species
+        .resolved;
+    assert!(fe2o3.sigma_basis.contains("source-typical"), "{}", fe2o3.sigma_basis);
+    assert!(f.delta_h_uncertainty_kj_per_mol.is_some_and(|u| u > 5.0));
 }

@@ -3,6 +3,7 @@
 
 use crate::rows::{self, build_row, CaseRow};
 use std::panic::{catch_unwind, AssertUnwindSafe};
+use thermosieve_engine::structures::DefaultPhase;
 use thermosieve_engine::{species, Screener, TemperatureGrid};
 use thermosieve_queue::{BatchSpec, CaseInput};
 
@@ -51,8 +52,11 @@ impl ChunkProcessor {
                 (Err(e), None) => Err(e.clone()),
                 (Ok(_), None) if case.reaction.trim().is_empty() => Err(rows::missing_reaction_message(case)),
                 (Ok(s), None) => {
+                    // The case's phase is the state of its SMILES and named species; the table
+                    // readers and the gRPC conversion have already refused unknown phase words.
+                    let phase = case.phase.as_deref().and_then(DefaultPhase::parse).unwrap_or_default();
                     // A panic in the engine must cost one case, not the chunk or the worker.
-                    match catch_unwind(AssertUnwindSafe(|| s.screen(&case.reaction))) {
+                    match catch_unwind(AssertUnwindSafe(|| s.screen_with(&case.reaction, phase))) {
                         Ok(Ok(screened)) => Ok(screened),
                         Ok(Err(e)) => Err(rows::engine_error_message(case, &e)),
                         Err(_) => Err(format!(

@@ -422,6 +422,10 @@ pub fn species_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
                     .collect::<Vec<Option<f64>>>(),
             ),
             col(
+                "delta_fh_uncertainty_basis",
+                species.iter().map(|p| p.resolved.sigma_basis.as_str()).collect::<Vec<&str>>(),
+            ),
+            col(
                 "notes",
                 species.iter().map(|p| joined(&p.resolved.notes)).collect::<Vec<Option<String>>>(),
             ),

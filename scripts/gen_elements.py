@@ -39,7 +39,7 @@ from periodictable import mass as pt_mass
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 OUT = os.path.join(ROOT, "worker", "engine", "data", "elements.tsv")
 
-# Values the brief listed from memory for interval elements; compared, never used to overwrite.
+# Values recalled from memory for interval elements; compared, never used to overwrite.
 EXPECTED_CONVENTIONAL = {
     "H": 1.008, "C": 12.011, "N": 14.007, "O": 15.999, "Li": 6.94, "B": 10.81,
     "Mg": 24.305, "Si": 28.085, "S": 32.06, "Cl": 35.45, "Br": 79.904, "Tl": 204.38,

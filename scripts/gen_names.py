@@ -15,16 +15,18 @@ Which compounds
 1. every compound with a bundled record: each row of data/structures.tsv (gen_structures.py)
    whose InChIKey the identifier tables hold;
 2. every compound of `chemical identifiers pubchem small.tsv`;
-3. compounds of process and fine-chemical work from the larger tables: every ChemSep 8.32
-   compound (Misc/ChemSep8.32.xml, 431 industrial chemicals) and every compound of the DIPPR
-   2014 compound list that chemicals ships (Identifiers/dippr_2014.csv: CAS numbers only, used
-   here only to choose rows, no DIPPR value is used); and, from the large table, the
-   common ones (at least MIN_NAMES human names, see below) with at most MAX_HEAVY heavy atoms
-   in at least one of the classes of CLASSES (nitroarenes, anilines, anilides, amides, esters,
-   acids, anhydrides, acid halides, alcohols, phenols, ketones, aldehydes, amines, nitriles,
-   peroxides, halobenzenes, heterocycles, ethers, ...) or salts of Na, K, Li, Ca, Mg or ammonium.
+3. every compound of ChemSep 8.32 (Misc/ChemSep8.32.xml, 431 industrial chemicals) and of the
+   DIPPR 2014 compound list that chemicals ships (Identifiers/dippr_2014.csv: CAS numbers only,
+   used here only to choose rows; no DIPPR value is used);
+4. from the other (larger) tables, the common solvents, reagents and intermediates: at most
+   MAX_HEAVY heavy atoms, no radical, in one of CLASSES (nitroarenes, anilines, anilides,
+   amides, esters, acids, anhydrides, acid halides, alcohols, phenols, ketones, aldehydes,
+   amines, nitriles, peroxides, halobenzenes, heterocycles, ethers, ...), inorganic, or a salt or
+   organometallic of Na, K, Li, Ca, Mg; and "common": at least as many human names (after the
+   filters below) as MIN_NAMES asks for its size (small molecules have fewer synonyms than
+   drugs), MIN_NAMES_SALT for salts (NaH, n-BuLi). These thresholds keep the file near 3 MB.
 Only the elements C H N O S P F Cl Br I B Si Na K Li Ca Mg; no isotopic labels; net charge 0;
-no hydrates and adducts (a neutral part next to other parts) except in groups 1 and 2.
+no hydrates and adducts (a neutral part next to other parts) in groups 3 and 4.
 
 Checks (a row that fails is dropped and counted in the header)
 --------------------------------------------------------------
@@ -32,20 +34,24 @@ Checks (a row that fails is dropped and counted in the header)
 * the formula from the SMILES equals the table's formula.
 One row per InChIKey: where two CAS numbers share one, the bundled record's CAS, else chemicals'
 preferred CAS, else the one in the small table, else the one with more names is kept.
+Every CAS number written passes the CAS check digit.
 
 Names
 -----
 Lower case, spaces single, typographic dashes and primes as ASCII (as the engine compares them).
 The first is the table's common name, then its IUPAC name (PubChem's, with ';' between ions read
-as a space), then the synonyms in the table's order. Left out: names that look like registry
-numbers or codes (CAS- and EC-like numbers, runs of three or more digits, a letter followed by a
-digit as in `nsc 1234`, `ai3-01234`, `schembl123`, a number standing alone after a word),
-names over 60 characters, vendor grades and solutions (`%`, `solution`, `reagent`, ...),
-names of other forms (`radical` for a molecule, `hydrochloride` or `sodium` where the formula has
-no Cl or Na, deuterated `-d5`), trailing tags like `[inn]`, `(9ci)` or `[german]` are cut off.
-Radicals keep only their common name (PubChem's IUPAC name and synonyms of a radical are often
-the parent's: `methanol` for hydroxymethyl, `butane` for the butyl radicals). A name given to two compounds of the file is
-dropped from both. At most MAX_NAMES names a compound.
+as a space), then up to MAX_ABBREVIATIONS abbreviations (dmf, dmso, thf), then the synonyms
+that read as chemical names, then the others (trade names), each in the table's order.
+Left out: names that look like registry numbers or codes (CAS- and EC-like numbers, runs of three
+or more digits, a letter followed by a digit as in `ai3-01234`, `schembl123`, a number standing
+alone after a word as in `nsc 1234`), isotope-labelled names (`(14c)methanol`), names over 60
+characters, vendor grades and solutions (`%`, `solution`, `reagent`, `in hexanes`, ...), names
+of other forms (`radical` for a molecule, `polymer`, `hydrochloride` or `sodium` where the
+formula has no Cl or Na, metals the compound lacks, deuterated `-d5`); trailing tags like
+`[inn]`, `(9ci)` or `[german]` are cut off. Radicals keep only their common name (PubChem's IUPAC
+name and synonyms of a radical are often the parent's: `methanol` for hydroxymethyl, `butane`
+for the butyl radicals). A name given to two compounds of the file is dropped from both. At most
+MAX_NAMES names a compound (MAX_NAMES_LARGE for group 4).
 
 Melting and boiling points (K, 1 atm), only from openly licensed tables in chemicals:
 * melting: `OpenNotebook Melting Points.tsv` (Jean-Claude Bradley Open Melting Point Dataset, CC0),
@@ -86,7 +92,7 @@ METALS = {"Na", "K", "Li", "Ca", "Mg"}
 MAX_HEAVY = 24        # heavy atoms of a compound chosen from the large table
 # Human names a compound of the large table needs to count as common, by size (heavy atoms):
 # small molecules (reagents, solvents, building blocks) have fewer synonyms than drugs.
-MIN_NAMES = ((10, 10), (16, 13), (24, 20))
+MIN_NAMES = ((10, 9), (16, 13), (24, 20))
 MIN_NAMES_SALT = 3    # salts and organometallics of Na, K, Li, Ca, Mg (NaH, n-BuLi, ...)
 MAX_NAMES = 10        # names written per compound ...
 MAX_NAMES_LARGE = 6   # ... and per compound chosen from the large table
@@ -155,27 +161,29 @@ CODE = [
     re.compile(r"\d{3,}"),                  # registry and catalogue numbers
     re.compile(r"[a-z]\d"),                 # nsc1234, ai3-, schembl1, h1406, c18, n1-locants
     re.compile(r"(^|\s)\d+[a-z]?(\s|$)"),   # a number standing alone: 'nsc 1234', 'w 32'
+    re.compile(r"\b\d+[a-z]{2,}"),           # 'agn-pc-0cqjxk' (locants carry one letter: 1h-, 2h-)
     re.compile(r"[;_@#$\\|\t]|:"),          # merged lists, codes, ratios
-    re.compile(r"^\(\d+[a-z]{1,2}\d*[,)]|\b(?:11c|13c|14c|15n|17o|18o|18f|32p|35s|36cl|82br|125i|131i)\b"),  # isotopes
+    re.compile(r"(?<![0-9a-z])\((?:[23]h|1[134]c|15n|1[78]o|18f|3[23]p|35s|36cl|82br|12[35]i|131i)\d*[,)]|"
+               r"\b(?:13c|14c|15n|18o|18f|32p|35s|36cl|82br|125i|131i)\b"),  # isotopes: (3h), (14c)methanol
 ]
-# After the common and IUPAC names: up to MAX_ABBREVIATIONS abbreviations (2-5 letters, at most
+# After the common and IUPAC names: up to MAX_ABBREVIATIONS abbreviations (2-4 letters, at most
 # one vowel: dmf, dmso, dmap, thf, tfa), then synonyms that read as chemical names, then the rest
 # (trade names), each in the table's order.
-ABBREVIATION = re.compile(r"[a-z]{2,5}")
+ABBREVIATION = re.compile(r"[a-z]{2,4}")
 MAX_ABBREVIATIONS = 2
 CHEMICAL_LOOKING = re.compile(
     r"yl|ane\b|ene\b|yne\b|ol\b|one\b|al\b|ide\b|ate\b|ite\b|acid|amine|amide|hydr|oxy|chlor|brom|iod|"
     r"fluor|nitr|sulf|sulph|phosph|benz|phen|meth|eth|prop|but|pent|hex|hept|oct|carb|cyan|ium\b|salt|"
     r"ester|ether|anhydride|oxide|azol|azin|pyr|furan|thio|boron|silane")
 TRAILING_TAG = re.compile(
-    r"\s*(\[[a-z][a-z .:/\-]*\]|\((?:[5-9]ci|van|tn|usan|inn|jan|ban|usp|nf|fcc|ep|jp\d*|mart\.|iupac|inci|"
+    r"\s*(\[[a-z][a-z .:/\-]*\]|\((?:\d+ci[, ]*)+\)|\((?:van|tn|usan|inn|jan|ban|usp|nf|fcc|ep|jp\d*|mart\.|iupac|inci|"
     r"acd/name[^)]*|ii|mi|iso|8ci,? 9ci)\))$")
 JUNK_WORDS = re.compile(
     r"%|\bsolution\b|\bsoln\b|\breagent\b|\bgrade\b|\bstandard\b|\bpurum\b|\bpuriss|\bpestanal\b|\btechnical\b|"
     r"\btech\b|\banalytical\b|\bcertified\b|aldrich|sigma|fluka|\bvetec\b|\bmixture\b|\bmixt\b|\bisomers\b|"
     r"\bmixed\b|\bradical\b|\banion\b|\bcation\b|\bion\b|\bdimer\b|\btrimer\b|\bpolymer\b|\bdeuter|"
     r"[-\s(]d\d+\b|\bcompd\b|\bcompound with\b|\bspectrophotometric\b|\bhplc\b|\bacs\b|\busp\b|\bbiotech|"
-    r"\blabell?ed\b|tritium|tritiated|\bredistilled\b|\bextra pure\b|\bfor synthesis\b|\banhydrous,|\bampule\b|^poly|\bpoly[a-z]")
+    r"\blabell?ed\b|\sin\s|tritium|tritiated|\bredistilled\b|\bextra pure\b|\bfor synthesis\b|\banhydrous,|\bampule\b|^poly|\bpoly[a-z]")
 # An element named in a name must be in the compound (a salt's or another compound's name).
 ELEMENT_WORDS = [
     ("Na", r"sodium|natrium|\bsoda\b"), ("K", r"potassium|kalium|\bpotash\b"), ("Li", r"lithium"),
@@ -212,7 +220,7 @@ def clean_name(raw, elements, is_radical):
     for el, rx in ELEMENT_RE:
         if el not in elements and rx.search(n):
             return None
-    if not re.search(r"[a-z]{2}", n) or (n.endswith("-") and "," not in n) or re.fullmatch(r"\d+[a-z]+", n):
+    if not re.search(r"[a-z]{2}", n) or (n.endswith("-") and ", " not in n) or re.fullmatch(r"\d+[a-z]+", n):
         return None
     return n
 
@@ -447,6 +455,11 @@ def main():
         assert c["cas"] not in by_cas
         by_cas[c["cas"]] = i
     problems = []
+    for c in compounds:
+        d = [int(x) for x in c["cas"] if x.isdigit()]
+        if not re.fullmatch(r"\d{2,7}-\d{2}-\d", c["cas"]) or \
+                sum((i + 1) * x for i, x in enumerate(reversed(d[:-1]))) % 10 != d[-1]:
+            problems.append(f"{c['cas']}: not a valid CAS number")
     for name, cas in REQUIRED.items():
         i = by_name.get(normalise(name))
         if i is None:

@@ -11,7 +11,8 @@ use thermosieve_engine::{species, Screened, Screener, TemperatureGrid, CAUTION};
 #[derive(clap::Args, Debug)]
 pub struct EvalArgs {
     /// The reaction, e.g. "Al(cr) + Fe2O3(s) -> Al2O3(s) + Fe(cr)". Coefficients are optional;
-    /// arrows ->, =>, = and <=> are accepted; phase tags (g) (l) (s) (cr) (aq) (gr).
+    /// arrows ->, =>, = and <=> are accepted; phase tags (g) (l) (s) (cr) (aq), forms such as (cr,alpha) and (cr,graphite);
+    /// species by formula, name ("acetic anhydride(l)"), CAS number, or a reaction SMILES ("CCO{l}.O=O>>...").
     pub reaction: String,
 
     /// State of species written as SMILES or names without their own state: gas, liquid, solid

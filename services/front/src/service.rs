@@ -9,8 +9,8 @@ use std::path::PathBuf;
 use std::pin::Pin;
 use std::sync::{Arc, Mutex};
 use std::time::Duration;
-use thermosieve_engine::formula::parse_species;
 use thermosieve_engine::species::{self, T_REF_K};
+use thermosieve_engine::{Screener, TemperatureGrid};
 use thermosieve_proto::v1 as pb;
 use thermosieve_proto::v1::screening_server::{Screening, ScreeningServer};
 use thermosieve_queue::{BatchState, Progress, Queue};
@@ -344,19 +344,31 @@ impl Screening for ScreeningService {
     }
 }
 
-/// What the bundled data says about one written species.
+/// What the engine would use for one written species: a formula (`H2O(l)`), a name
+/// (`acetic anhydride(l)`), a CAS number, or a SMILES with an optional state (`CCO{l}`).
 pub fn resolve_one(query: &str) -> pb::SpeciesInfo {
-    let table = species::bundled();
     let mut info = pb::SpeciesInfo {
         query: query.to_string(),
         ..Default::default()
     };
-    let resolved = parse_species(query.trim(), 0)
-        .map_err(|e| e.to_string())
-        .and_then(|spec| table.resolve(&spec).map_err(|e| e.to_string()));
+    let q = query.trim();
+    let grid = TemperatureGrid::new(vec![T_REF_K]).expect("298.15 K is a valid grid");
+    let mut screener = Screener::new(species::bundled(), grid);
+    // A formula or name first; a SMILES when that fails. Characters only SMILES use decide which
+    // error to show when both fail.
+    let resolved = screener.species(q, 0).or_else(|first| {
+        screener.smiles_species(q, 0).map_err(|second| {
+            if q.contains(['=', '#', '[', '@', '/', '\\']) {
+                second
+            } else {
+                first
+            }
+        })
+    });
     match resolved {
-        Err(e) => info.error = e,
-        Ok(r) => {
+        Err(e) => info.error = e.to_string(),
+        Ok(p) => {
+            let r = &p.resolved;
             let st = r.state(T_REF_K, T_REF_K.ln());
             let (lo, hi) = r.range_k();
             info.label = r.label.clone();
@@ -368,6 +380,7 @@ pub fn resolve_one(query: &str) -> pb::SpeciesInfo {
             info.delta_fh_298_kj_per_mol = st.h_j_per_mol / 1000.0;
             info.s_298_j_per_mol_k = st.s_j_per_mol_k;
             info.delta_fh_uncertainty_kj_per_mol = r.dhf_uncertainty_kj_per_mol;
+            info.delta_fh_uncertainty_basis = r.sigma_basis.clone();
             info.notes = r.notes.clone();
         }
     }

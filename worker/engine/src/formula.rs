@@ -3,14 +3,16 @@
 //!
 //! Grammar (positions in errors are byte offsets into the whole input):
 //! ```text
-//! species   := electron | name tags | body qualifier? charge? tags   qualifier: ',' [a-z0-9-]+
+//! species   := electron | name tags | body charge? tags
 //! body      := groups ( ADDUCT count? groups )*        ADDUCT: · • * .
 //! groups    := ( element count? | '(' groups ')' count? | '[' groups ']' count? )+
 //! charge    := '^' digits? sign | '^' sign digits? | sign+ | sign digits
-//! tags      := ( '(' tag (',' tag)* ')' )*              tag: g l s cr aq gr alpha rhombic ...
+//! tags      := ( '(' tag (',' tag)* ')' )*              tag: g l s cr aq graphite alpha rhombic ...
 //! ```
-//! A parenthesised group whose content starts with a lower-case letter (or is NASA's `L`) is a
-//! phase tag, otherwise a group of atoms.
+//! A parenthesised group whose content starts with a lower-case letter is a phase tag, otherwise a
+//! group of atoms. Polymorphs and allotropes are written in IUPAC style (`Fe(cr,alpha)`,
+//! `C(cr,graphite)`, `S(cr,rhombic)`); isomers by name or SMILES, never by the data file's record
+//! names. Names (`water(l)`, `acetic anhydride(l)`) are resolved by [`crate::screen`].
 
 use crate::elements::{self, Z};
 use std::fmt;
@@ -148,10 +150,9 @@ impl fmt::Display for SpeciesSpec {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         f.write_str(&self.text_with_charge())?;
         match (self.phase, &self.form) {
-            (_, Some(form)) if form == "gr" => write!(f, "(gr)"),
+            (Some(Phase::Solid) | None, Some(form)) => write!(f, "(cr,{form})"),
             (Some(p), Some(form)) => write!(f, "({},{})", p.tag(), form),
             (Some(p), None) => write!(f, "({})", p.tag()),
-            (None, Some(form)) => write!(f, "({form})"),
             (None, None) => Ok(()),
         }
     }
@@ -359,17 +360,22 @@ fn charge(cur: &mut Cursor) -> Result<i32, SyntaxError> {
     Ok(q as i32)
 }
 
+/// A word of a phase tag: a state (`g`, `l`, `s`, `cr`, `aq`) or a polymorph or allotrope in
+/// IUPAC style (`alpha` … `delta`, `graphite`, `rhombic`, `monoclinic`). Forms are kept as words;
+/// [`crate::species`] maps them to the records of the bundled data.
 fn tag_word(word: &str) -> Option<(Option<Phase>, Option<&'static str>)> {
     Some(match word {
         "g" | "gas" => (Some(Phase::Gas), None),
-        "l" | "L" | "liq" | "liquid" => (Some(Phase::Liquid), None),
+        "l" | "liq" | "liquid" => (Some(Phase::Liquid), None),
         "s" | "cr" | "solid" | "cryst" => (Some(Phase::Solid), None),
         "aq" => (Some(Phase::Aqueous), None),
-        "gr" | "graphite" => (Some(Phase::Solid), Some("gr")),
-        "a" | "alpha" | "rhombic" | "orthorhombic" => (Some(Phase::Solid), Some("a")),
-        "b" | "beta" | "monoclinic" => (Some(Phase::Solid), Some("b")),
-        "c" | "gamma" => (Some(Phase::Solid), Some("c")),
-        "d" | "delta" => (Some(Phase::Solid), Some("d")),
+        "gr" | "graphite" => (Some(Phase::Solid), Some("graphite")),
+        "alpha" => (Some(Phase::Solid), Some("alpha")),
+        "rhombic" | "orthorhombic" => (Some(Phase::Solid), Some("rhombic")),
+        "beta" => (Some(Phase::Solid), Some("beta")),
+        "monoclinic" => (Some(Phase::Solid), Some("monoclinic")),
+        "gamma" => (Some(Phase::Solid), Some("gamma")),
+        "delta" => (Some(Phase::Solid), Some("delta")),
         _ => return None,
     })
 }
@@ -385,7 +391,7 @@ fn tags(cur: &mut Cursor, spec: &mut SpeciesSpec) -> Result<(), SyntaxError> {
             let word = &cur.s[start..cur.i];
             let (phase, form) = tag_word(word).ok_or_else(|| {
                 cur.i = start;
-                cur.unexpected("a phase tag: g, l, s, cr, aq, gr, alpha, beta, gamma, delta, rhombic, monoclinic")
+                cur.unexpected("a phase tag: g, l, s, cr, aq, or a form such as cr,alpha, cr,graphite, cr,rhombic")
             })?;
             // A later, more specific tag refines an earlier one: `(cr,alpha)`, `(s)(gr)`.
             if phase.is_some() && (spec.phase.is_none() || spec.phase == Some(Phase::Solid)) {
@@ -463,13 +469,6 @@ pub fn parse_species(s: &str, base: usize) -> Result<SpeciesSpec, SyntaxError> {
                 let part = groups(&mut cur, 0)?;
                 merge(&mut atoms, &part, n, &cur)?;
             }
-            // NASA's isomer qualifier: `C4H10,n-butane`, `C6H12,cyclo-`.
-            if cur.peek() == Some(b',') && cur.b.get(cur.i + 1).is_some_and(|c| c.is_ascii_lowercase() || c.is_ascii_digit()) {
-                cur.i += 1;
-                while cur.peek().is_some_and(|c| c.is_ascii_alphanumeric() || c == b'-') {
-                    cur.i += 1;
-                }
-            }
             spec.text = s[..cur.i].to_string();
             let q = charge(&mut cur)?;
             let atoms = atoms.into_iter().map(|(z, n)| (z, n as u32)).collect();
@@ -510,21 +509,30 @@ mod tests {
         assert_eq!(hill("NH4+"), "H4N+");
         assert_eq!(hill("e-"), "e-");
         assert_eq!(hill("C2H5OH"), "C2H6O");
-        let q = parse_species("C4H10,n-butane(g)", 0).unwrap();
-        assert_eq!((q.text.as_str(), q.phase), ("C4H10,n-butane", Some(Phase::Gas)));
+        // The data file's isomer qualifier is not input syntax: isomers are written by name or SMILES.
+        assert!(parse_species("C4H10,n-butane(g)", 0).is_err());
         assert_eq!(atoms("H2O"), vec![("H".to_string(), 2), ("O".to_string(), 1)]);
     }
 
     #[test]
     fn phase_and_polymorph_tags() {
         let s = parse_species("C(gr)", 0).unwrap();
-        assert_eq!((s.phase, s.form.as_deref()), (Some(Phase::Solid), Some("gr")));
+        assert_eq!((s.phase, s.form.as_deref()), (Some(Phase::Solid), Some("graphite")));
+        let s = parse_species("C(cr,graphite)", 0).unwrap();
+        assert_eq!((s.phase, s.form.as_deref()), (Some(Phase::Solid), Some("graphite")));
         let s = parse_species("S(cr,rhombic)", 0).unwrap();
-        assert_eq!((s.phase, s.form.as_deref()), (Some(Phase::Solid), Some("a")));
+        assert_eq!((s.phase, s.form.as_deref()), (Some(Phase::Solid), Some("rhombic")));
+        let s = parse_species("Fe(cr,alpha)", 0).unwrap();
+        assert_eq!((s.phase, s.form.as_deref()), (Some(Phase::Solid), Some("alpha")));
+        assert_eq!(s.to_string(), "Fe(cr,alpha)");
+        // The data file's one-letter polymorph codes and capital (L) are not input syntax.
+        for coded in ["Fe(a)", "S(b)", "H2O(L)"] {
+            assert!(parse_species(coded, 0).is_err(), "{coded}");
+        }
         let s = parse_species("Fe(OH)3(s)", 0).unwrap();
         assert_eq!(s.phase, Some(Phase::Solid));
         assert_eq!(s.formula.unwrap().hill(), "FeH3O3");
-        assert_eq!(parse_species("H2O(L)", 0).unwrap().phase, Some(Phase::Liquid));
+        assert_eq!(parse_species("H2O(l)", 0).unwrap().phase, Some(Phase::Liquid));
         assert_eq!(parse_species("Fe+3(aq)", 0).unwrap().phase, Some(Phase::Aqueous));
         let s = parse_species("water(l)", 0).unwrap();
         assert_eq!((s.text.as_str(), s.formula.is_none()), ("water", true));

@@ -161,24 +161,17 @@ impl<'t> Screener<'t> {
     pub fn smiles_species(&mut self, text: &str, position: usize) -> Result<Arc<Prepared>, ScreenError> {
         let (smiles, asked) = split_state(text, position)?;
         let phase = asked.unwrap_or(StateAsked::Phase(self.default_phase));
-        self.structure_species(smiles, position, phase, None)
+        self.structure_species(smiles, position, phase)
     }
 
-    /// A species by structure in the state asked; `label` names it in results (the name a user
-    /// wrote), else the table's preferred name or the SMILES.
-    fn structure_species(
-        &mut self,
-        smiles: &str,
-        position: usize,
-        asked: StateAsked,
-        label: Option<&str>,
-    ) -> Result<Arc<Prepared>, ScreenError> {
+    /// A species by structure in the state asked.
+    fn structure_species(&mut self, smiles: &str, position: usize, asked: StateAsked) -> Result<Arc<Prepared>, ScreenError> {
         let phase = match asked {
             StateAsked::Aqueous => {
                 return Err(ScreenError::Species {
                     position,
                     error: ResolveError::Aqueous {
-                        species: format!("{}{{aq}}", label.unwrap_or(smiles)),
+                        species: format!("{smiles}{{aq}}"),
                     },
                 })
             }
@@ -200,7 +193,7 @@ impl<'t> Screener<'t> {
         let result = if let Some(v) = self.supplied.get(smiles) {
             Ok(Arc::new(self.prepare(from_supplied(smiles, v))))
         } else {
-            match structures::resolve_smiles(self.table, self.structures, smiles, position, phase, label) {
+            match structures::resolve_smiles(self.table, self.structures, smiles, position, phase) {
                 Ok(s) => {
                     let k = (s.key, phase);
                     match self.by_structure.get(&k) {
@@ -237,8 +230,10 @@ impl<'t> Screener<'t> {
             Some(p) => StateAsked::Phase(DefaultPhase::of(p)),
             None => StateAsked::Phase(self.default_phase),
         };
-        let (smiles, shown) = (c.smiles.clone(), c.name().to_string());
-        self.structure_species(&smiles, position, asked, Some(&shown))
+        // Labelled like any structure (by formula or the table's preferred name), not as written:
+        // a label must not depend on which spelling of a compound a screener met first.
+        let smiles = c.smiles.clone();
+        self.structure_species(&smiles, position, asked)
     }
 
     pub fn grid(&self) -> &TemperatureGrid {
@@ -315,7 +310,29 @@ impl<'t> Screener<'t> {
                 if spec.formula.is_none() {
                     return self.named_species(&spec.text, spec.phase, position);
                 }
-                self.check_isomers(&spec).and_then(|()| self.table.resolve(&spec))
+                match self.check_isomers(&spec).and_then(|()| self.table.resolve(&spec)) {
+                    // A record with a known structure but not in the state asked (`CH3COOH(l)`
+                    // where only the gas is tabulated): the structure path estimates that state.
+                    Err(ResolveError::NotFound { .. }) if spec.phase != Some(Phase::Aqueous) && spec.form.is_none() => {
+                        let charge = spec.charge();
+                        let smiles = self
+                            .table
+                            .by_name(&spec.text, charge)
+                            .iter()
+                            .find_map(|&k| self.structures.smiles_of(&self.table.records[k].base))
+                            .map(str::to_string);
+                        if let Some(smiles) = smiles {
+                            let asked = StateAsked::Phase(spec.phase.map_or(DefaultPhase::Standard, DefaultPhase::of));
+                            let r = self.structure_species(&smiles, position, asked);
+                            if let Ok(p) = &r {
+                                self.cache.insert(text.to_string(), Ok(p.clone()));
+                            }
+                            return r;
+                        }
+                        self.table.resolve(&spec)
+                    }
+                    other => other,
+                }
             }
         };
         let result = result.map(|r| Arc::new(self.prepare(r)));
@@ -323,11 +340,17 @@ impl<'t> Screener<'t> {
         result.map_err(|error| ScreenError::Species { position, error })
     }
 
-    /// A formula names one compound only when no other known compound shares it, or when it is
-    /// written as the structural formula of a bundled record with a known structure (`C2H5OH`,
-    /// `CH3COCH3`). `C6H5CH2OH` or `C3H6O` fit several compounds: an error naming them.
+    /// A carbon formula names one compound only when no other known compound shares it, or when
+    /// it is written as the structural formula of a bundled record with a known structure
+    /// (`C2H5OH`, `CH3COCH3`). `C6H5CH2OH`, `C3H6O` or `C8H18` fit several compounds: an error
+    /// naming them.
     fn check_isomers(&self, spec: &SpeciesSpec) -> Result<(), ResolveError> {
         let Some(formula) = &spec.formula else { return Ok(()) };
+        // Inorganic formulas name their compound in practice (HNO3 is nitric acid, not
+        // peroxynitrous acid); isomers that matter in route chemistry are carbon compounds.
+        if !formula.atoms.iter().any(|&(z, _)| z == 6) {
+            return Ok(());
+        }
         let hill = formula.hill();
         let known = names::bundled().with_formula(&hill);
         if known.len() < 2 {

@@ -510,16 +510,18 @@ fn apply_uncertainties(tsv: &str, records: &mut [Record], provenance: &mut Strin
     Ok(())
 }
 
-/// Whether a polymorph asked for (`a` alpha, `b` beta, `c` gamma, `d` delta, `gr` graphite)
-/// names a record's tag. NASA labels polymorphs by letters, by `cr1`/`cr2` (sulfur) or by Roman
-/// and Arabic numerals in order of increasing temperature.
+/// Whether a polymorph or allotrope asked for (`alpha` … `delta`, `graphite`, `rhombic`,
+/// `monoclinic`) names a record's tag. NASA labels polymorphs by letters (`a`, `b`), by `cr1`/`cr2`
+/// (sulfur) or by Roman and Arabic numerals in order of increasing temperature; those codes are
+/// the data's provenance, never what a user writes.
 fn form_matches(form: &str, tag: &str) -> bool {
     let tags: &[&str] = match form {
-        "a" => &["a", "cr1", "I", "1"],
-        "b" => &["b", "cr2", "II", "2", "b,c"],
-        "c" => &["c", "III", "3", "b,c"],
-        "d" => &["d", "IV"],
-        other => return other == tag,
+        "alpha" | "rhombic" => &["a", "cr1", "I", "1"],
+        "beta" | "monoclinic" => &["b", "cr2", "II", "2", "b,c"],
+        "gamma" => &["c", "III", "3", "b,c"],
+        "delta" => &["d", "IV"],
+        "graphite" => &["gr"],
+        _ => return false,
     };
     tags.contains(&tag)
 }
@@ -724,14 +726,14 @@ impl Table {
                 return Err(ResolveError::Ambiguous {
                     species: shown,
                     candidates: names.iter().map(|&k| self.records[k].name.clone()).collect(),
-                    advice: "add a polymorph tag such as (alpha) or (gr)",
+                    advice: "add a form such as (cr,alpha) or (cr,graphite)",
                 });
             }
         }
         ids.sort_by(|&a, &b| self.records[a].t_min_k().total_cmp(&self.records[b].t_min_k()));
+        // Labels in IUPAC style: `Fe(cr,alpha)`, `C(cr,graphite)`, `H2O(l)`.
         let label = match (phase, spec.form.as_deref()) {
-            (_, Some("gr")) => format!("{}(gr)", spec.text_with_charge()),
-            (p, Some(f)) => format!("{}({},{f})", spec.text_with_charge(), p.tag()),
+            (_, Some(f)) => format!("{}(cr,{f})", spec.text_with_charge()),
             (p, None) => format!("{}({})", spec.text_with_charge(), p.tag()),
         };
         let recs: Vec<&Record> = ids.iter().map(|&k| &self.records[k]).collect();

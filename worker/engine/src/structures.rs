@@ -73,8 +73,8 @@ impl DefaultPhase {
 /// Bundled structures of table records, indexed by canonical key.
 pub struct Structures {
     by_key: HashMap<String, Vec<String>>,
-    /// Base names (as in the table) that have a structure.
-    named: HashMap<String, String>,
+    /// Base names (as in the table) that have a structure: (canonical key, SMILES).
+    named: HashMap<String, (String, String)>,
     /// Header comment of the data file.
     pub provenance: String,
 }
@@ -103,7 +103,7 @@ impl Structures {
             let m = Molecule::parse(smiles, 0).map_err(|e| row.error(&e.to_string()))?;
             let key = m.canonical_key();
             by_key.entry(key.clone()).or_default().push(name.to_string());
-            named.insert(name.to_string(), key);
+            named.insert(name.to_string(), (key, smiles.to_string()));
         }
         Ok(Structures { by_key, named, provenance })
     }
@@ -115,7 +115,12 @@ impl Structures {
 
     /// Canonical key of a table base name, when it has a bundled structure.
     pub fn key_of(&self, name: &str) -> Option<&str> {
-        self.named.get(name).map(String::as_str)
+        self.named.get(name).map(|(k, _)| k.as_str())
+    }
+
+    /// SMILES of a table base name, when it has a bundled structure.
+    pub fn smiles_of(&self, name: &str) -> Option<&str> {
+        self.named.get(name).map(|(_, s)| s.as_str())
     }
 
     pub fn len(&self) -> usize {
@@ -167,8 +172,8 @@ pub enum SmilesSpeciesError {
 }
 
 /// Resolve one SMILES species (bundled record by structure, a salt by its formula, or an
-/// estimate). `label` is how results name it (a name the user wrote); without one, the name
-/// table's preferred name for the structure, else the SMILES as written.
+/// estimate). Results name it by its formula where that names one compound (H2O, CO2), else by
+/// the name table's preferred name, else by the SMILES as written.
 ///
 /// # Errors
 /// [`SmilesSpeciesError`] when the SMILES does not parse (with its byte position) or the species
@@ -179,7 +184,6 @@ pub fn resolve_smiles(
     smiles: &str,
     position: usize,
     phase: DefaultPhase,
-    label: Option<&str>,
 ) -> Result<SmilesSpecies, SmilesSpeciesError> {
     let m = Molecule::parse(smiles, position)?;
     let key = m.canonical_key();
@@ -188,26 +192,20 @@ pub fn resolve_smiles(
     let known = names::bundled();
     let named = || known.by_structure(&key, &hill).map(|c| c.name().to_string());
     let mut r = if smiles.contains('.') && smiles.split('.').any(|c| crate::equation::smiles_charge(c) != 0) {
-        let (mut r, base) = salt(table, &formula, label.unwrap_or(smiles), phase)?;
+        let (mut r, base) = salt(table, &formula, smiles, phase)?;
         // A salt is shown by its formula as the table writes it (NASA spells Cl and Al in capitals).
-        r.label = format!(
-            "{}({})",
-            label.map_or_else(|| base.replace("CL", "Cl").replace("AL", "Al"), str::to_string),
-            r.phase.tag()
-        );
+        r.label = format!("{}({})", base.replace("CL", "Cl").replace("AL", "Al"), r.phase.tag());
         return Ok(SmilesSpecies { resolved: r, key });
     } else {
         by_structure(table, structures, &m, &key, smiles, phase)?
     };
-    // Results name a species as the user wrote it by name; else by its formula where that names
-    // one compound (H2, CO2, HCl), else by the name table's name, else by the SMILES as written.
+    // Results name a species by its formula where that names one compound (H2, CO2, HCl), else by
+    // the name table's name, else by the SMILES as written: never by how it was spelled.
     // Formulas read well for inorganic molecules and the smallest carbon ones (CO2, CH4, COCl2).
     let count = |z: u8| formula.atoms.iter().find(|a| a.0 == z).map_or(0, |a| a.1);
     let small = count(6) == 0 || (count(6) == 1 && (count(1) == 0 || m.heavy_atom_count() == 1));
     let formula_label = (small && known.with_formula(&hill).len() < 2).then(|| formula_text(&formula));
-    let shown = label
-        .map(str::to_string)
-        .or(if formula.charge == 0 { formula_label } else { None })
+    let shown = (if formula.charge == 0 { formula_label } else { None })
         .or_else(named)
         .unwrap_or_else(|| smiles.to_string());
     r.label = format!("{shown}({})", r.phase.tag());
@@ -473,7 +471,7 @@ mod tests {
     use crate::species::bundled as table;
 
     fn resolve(s: &str, p: DefaultPhase) -> Resolved {
-        resolve_smiles(table(), bundled(), s, 0, p, None)
+        resolve_smiles(table(), bundled(), s, 0, p)
             .unwrap_or_else(|e| panic!("{s}: {e}"))
             .resolved
     }
@@ -526,7 +524,7 @@ mod tests {
         assert!(r.dhf_uncertainty_kj_per_mol.unwrap() > 10.0);
         let r = resolve("CC(C)(C)OC", DefaultPhase::Standard);
         assert_eq!(r.phase, Phase::Liquid, "MTBE boils at 328 K");
-        assert!(resolve_smiles(table(), bundled(), "CS(=O)C", 0, DefaultPhase::Gas, None).is_err());
+        assert!(resolve_smiles(table(), bundled(), "CS(=O)C", 0, DefaultPhase::Gas).is_err());
         // A solid is estimated through vaporization and Joback's enthalpy of fusion; a group
         // without a fusion value (=NH) makes it an error.
         // 4-nitrotoluene (Tm 325 K, measured) is in no bundled table.
@@ -534,7 +532,7 @@ mod tests {
         assert_eq!(s.phase, Phase::Solid);
         assert!(s.notes.iter().any(|n| n.contains("ΔfusH")), "{:?}", s.notes);
         // An imine: Joback's =NH group has no fusion value.
-        assert!(resolve_smiles(table(), bundled(), "CC(=N)c1ccc(O)cc1", 0, DefaultPhase::Solid, None).is_err());
+        assert!(resolve_smiles(table(), bundled(), "CC(=N)c1ccc(O)cc1", 0, DefaultPhase::Solid).is_err());
     }
 
     #[test]

@@ -38,7 +38,10 @@ fn rows() -> BTreeMap<String, Vec<Row>> {
         let num = |k: usize| f[k].parse::<f64>().unwrap_or_else(|_| panic!("number in {line}"));
         out.entry(f[id].to_string()).or_default().push(Row {
             kind: f[kind].to_string(),
-            equation: f[eq].to_string(),
+            // The generator writes isomers by their Cantera record names or bare formulas; the
+            // engine's syntax names them (the record is then found by structure), as a molecular
+            // formula that fits several known compounds (C7H8) is refused.
+            equation: f[eq].replace("C6H12,cyclo-", "cyclohexane").replace("C7H8(", "toluene("),
             t: num(t),
             dh: num(dh),
             ds: num(ds),

@@ -62,11 +62,7 @@ fn compare(split: &str) -> (Fig, Fig) {
         };
         fig.n += 1;
         let exp: f64 = f[cond].parse::<f64>().unwrap() - f[gas].parse::<f64>().unwrap();
-        let at = |p: DefaultPhase| {
-            structures::resolve_smiles(table, structs, f[smi], 0, p, None)
-                .ok()
-                .map(|s| s.resolved)
-        };
+        let at = |p: DefaultPhase| structures::resolve_smiles(table, structs, f[smi], 0, p).ok().map(|s| s.resolved);
         let (Some(c), Some(g)) = (at(phase), at(DefaultPhase::Gas)) else {
             fig.skipped += 1;
             continue;

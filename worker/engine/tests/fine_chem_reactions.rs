@@ -77,7 +77,8 @@ struct Figures {
 }
 
 impl Figures {
-    fn add(&mut self, id: &str, reference: f64, got: Result<(f64, f64), String>) {
+    /// `ref_sigma`: the reference value's own standard uncertainty, which the 2σ test includes.
+    fn add(&mut self, id: &str, reference: f64, ref_sigma: f64, got: Result<(f64, f64), String>) {
         self.n += 1;
         let (dh, sigma) = match got {
             Ok(v) => v,
@@ -91,7 +92,7 @@ impl Figures {
         self.abs_err.push(err);
         self.sigma.push(sigma);
         self.within_8 += usize::from(err <= 8.0);
-        self.within_2_sigma += usize::from(err <= 2.0 * sigma);
+        self.within_2_sigma += usize::from(err <= 2.0 * sigma.hypot(ref_sigma));
         if reference.abs() > 20.0 && dh.signum() != reference.signum() {
             self.sign_errors.push(format!("{id}: {dh:.1} vs {reference:.1}"));
         }
@@ -124,6 +125,23 @@ impl Figures {
     }
 }
 
+/// Robust standard spread of the CRC Handbook's ΔfH° against ATcT 1.112 over the 156 gases both
+/// carry in chemicals 1.5.2: 1.4826 × the median absolute difference (0.685 kJ/mol) ≈ 1.0 kJ/mol.
+/// The reference values carry it too, so a tabulated reaction whose engine σ is 0.1 kJ/mol is
+/// not counted as a miss for a 1 kJ/mol disagreement between two experimental tables.
+const REFERENCE_SIGMA_PER_SPECIES_KJ_PER_MOL: f64 = 1.0;
+
+/// √Σν² over the species of a reaction SMILES (a species repeated n times has ν = n).
+fn nu_norm(smiles: &str) -> f64 {
+    let mut counts: HashMap<&str, f64> = HashMap::new();
+    for side in smiles.split(">>") {
+        for s in side.split('.') {
+            *counts.entry(s).or_default() += 1.0;
+        }
+    }
+    counts.values().map(|n| n * n).sum::<f64>().sqrt()
+}
+
 fn run(split: &str) -> HashMap<&'static str, Figures> {
     let mut s = Screener::new(species::bundled(), TemperatureGrid::new(vec![298.15]).expect("grid"));
     let mut out: HashMap<&'static str, Figures> = HashMap::new();
@@ -132,20 +150,25 @@ fn run(split: &str) -> HashMap<&'static str, Figures> {
         Ok((r.standard.delta_h_kj_per_mol, r.delta_h_uncertainty_kj_per_mol.ok_or("no σ")?))
     };
     for c in checks().iter().filter(|c| c.split == split) {
+        let ref_sigma = REFERENCE_SIGMA_PER_SPECIES_KJ_PER_MOL * nu_norm(&c.smiles);
         if let Some(v) = c.standard {
-            out.entry("standard state chosen by the engine")
-                .or_default()
-                .add(&c.id, v, screen(&c.smiles, DefaultPhase::Standard));
+            out.entry("standard state chosen by the engine").or_default().add(
+                &c.id,
+                v,
+                ref_sigma,
+                screen(&c.smiles, DefaultPhase::Standard),
+            );
             out.entry("states as tabulated, written per species").or_default().add(
                 &c.id,
                 v,
+                ref_sigma,
                 screen(&with_states(&c.smiles, &c.states), DefaultPhase::Standard),
             );
         }
         if let Some(v) = c.gas {
             out.entry("ideal gas")
                 .or_default()
-                .add(&c.id, v, screen(&c.smiles, DefaultPhase::Gas));
+                .add(&c.id, v, ref_sigma, screen(&c.smiles, DefaultPhase::Gas));
         }
     }
     for (k, f) in &out {
@@ -163,7 +186,7 @@ fn every_species_of_the_check_set_resolves_to_its_own_structure() {
     let mut wrong = Vec::new();
     for c in checks() {
         for smiles in c.smiles.split(">>").flat_map(|side| side.split('.')) {
-            let Ok(r) = structures::resolve_smiles(table, structs, smiles, 0, DefaultPhase::Gas, None) else {
+            let Ok(r) = structures::resolve_smiles(table, structs, smiles, 0, DefaultPhase::Gas) else {
                 continue;
             };
             let m = thermosieve_engine::smiles::Molecule::parse(smiles, 0).expect("reference SMILES parse");
@@ -197,9 +220,9 @@ fn held_out_reaction_enthalpies_agree_with_experiment() {
     // Bounds on the held-out set, just outside the figures measured when they were set (README).
     // They guard against regressions; they are not yet the targets (≥ 90% inside 2σ and no sign
     // error where |ΔrH°| > 20 kJ/mol in every state, most reactions within 8 kJ/mol), which need
-    // second-order group additivity. Measured: gas 109 reactions, 14 not screened, MAE 15.4
-    // kJ/mol, 93% inside 2σ, 2 sign errors; standard state 128, 19, MAE 24.3, 85%, 1; states
-    // written per species 128, 18, MAE 24.1, 85%, 1.
+    // second-order group additivity. Measured (2σ including the reference's own σ): gas 109
+    // reactions, 14 not screened, MAE 15.4 kJ/mol, 95% inside 2σ, 2 sign errors; standard state
+    // 128, 19, MAE 24.3, 90%, 1; states written per species 128, 18, MAE 24.1, 90%, 1.
     assert!(gas.n >= 100, "{}", gas.n);
     assert!(gas.failed <= 15, "{} of {} not screened", gas.failed, gas.n);
     assert!(gas.mae() < 17.0, "gas MAE {}", gas.mae());

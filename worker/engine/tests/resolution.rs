@@ -18,28 +18,36 @@ fn bundled_table_loads_every_usable_record() {
 
 #[test]
 fn isomers_and_several_solids_are_errors_that_name_the_candidates() {
+    // The table alone: a formula with records of two compounds is ambiguous.
     let e = resolve("C2H6O(g)").unwrap_err();
     assert!(
         matches!(&e, ResolveError::Ambiguous { candidates, .. } if candidates == &["C2H5OH", "CH3OCH3"]),
         "{e}"
     );
-    let e = resolve("C4H10(g)").unwrap_err();
-    assert!(
-        e.to_string().contains("C4H10,isobutane") && e.to_string().contains("C4H10,n-butane"),
-        "{e}"
-    );
-    assert_eq!(resolve("n-butane(g)").unwrap().formula.hill(), "C4H10");
     assert_eq!(resolve("C2H5OH(g)").unwrap().label, "C2H5OH(g)");
+    // Through the screener: a formula that fits several known compounds names them with their
+    // SMILES, also where the table has only one record of it (C7H8O: cresol; benzyl alcohol,
+    // anisole and the cresols are all known compounds).
+    let mut s = thermosieve_engine::Screener::new(species::bundled(), thermosieve_engine::TemperatureGrid::new(vec![298.15]).unwrap());
+    for written in ["C4H10(g)", "C6H5CH2OH(g)", "C7H8O(g)", "C3H6O(g)"] {
+        let e = s.species(written, 0).unwrap_err().to_string();
+        assert!(e.contains("fits several compounds") && e.contains('('), "{written}: {e}");
+    }
+    let e = s.species("C6H5CH2OH(g)", 0).unwrap_err().to_string();
+    assert!(e.contains("benzyl alcohol (") || e.contains("phenylmethanol ("), "{e}");
+    // Written by name, the isomer resolves to its own record by structure.
+    let b = s.species("n-butane(g)", 0).unwrap();
+    assert!(matches!(&b.resolved.origin[0], species::Origin::Tabulated { record, .. } if record == "C4H10,n-butane"));
+    // A structural formula that is a bundled record's own is that record.
+    assert!(s.species("CH3COCH3(l)", 0).is_ok());
 }
 
 #[test]
-fn an_isomer_qualifier_with_no_record_is_an_error_not_another_isomer() {
-    // C7H14 has one bundled record (1-heptene); methylcyclohexane is not bundled.
-    assert_eq!(resolve("C7H14(g)").unwrap().formula.hill(), "C7H14");
-    let e = resolve("C7H14,methylcyclohexane(g)").unwrap_err();
-    assert!(matches!(e, ResolveError::NotFound { .. }), "{e}");
-    assert!(e.to_string().contains("no record has that name"), "{e}");
-    assert!(resolve("C4H10,n-butane(g)").is_ok());
+fn the_data_files_record_names_are_not_input_syntax() {
+    // `formula,record` qualifiers and one-letter polymorph codes are provenance, not syntax.
+    assert!(parse_species("C7H14,methylcyclohexane(g)", 0).is_err());
+    assert!(parse_species("C4H10,n-butane(g)", 0).is_err());
+    assert!(parse_species("Fe(a)", 0).is_err());
 }
 
 #[test]
@@ -61,9 +69,12 @@ fn untagged_species_take_the_stable_phase_at_298() {
 fn polymorphs_form_a_series_and_tags_pick_one() {
     let fe = resolve("Fe(cr)").unwrap();
     assert_eq!(fe.origin.len(), 3, "alpha, gamma, delta iron");
-    let alpha = resolve("Fe(alpha)").unwrap();
+    let alpha = resolve("Fe(cr,alpha)").unwrap();
     assert_eq!(alpha.origin.len(), 1);
-    assert_eq!(resolve("C(gr)").unwrap().label, "C(gr)");
+    assert_eq!(alpha.label, "Fe(cr,alpha)");
+    // Labels in IUPAC style however graphite is written.
+    assert_eq!(resolve("C(gr)").unwrap().label, "C(cr,graphite)");
+    assert_eq!(resolve("C(cr,graphite)").unwrap().label, "C(cr,graphite)");
     let sulfur = resolve("S(cr,rhombic)").unwrap();
     assert_eq!(sulfur.origin.len(), 1);
     assert!(matches!(resolve("NaCl(aq)"), Err(ResolveError::NotFound { .. })));

@@ -3,7 +3,7 @@ const REACTIONS: [&str; 24] = [
     "CH4(g) + 2 O2(g) -> CO2(g) + 2 H2O(g)",
     "C3H8(g) + O2(g) -> CO2(g) + H2O(l)",
     "C2H4(g) + H2(g) -> C2H6(g)",
-    "C6H6(g) + H2(g) -> C6H12,cyclo-(g)",
+    "C6H6(g) + H2(g) -> cyclohexane(g)",
     "CO(g) + 2 H2(g) -> CH3OH(g)",
     "CO2(g) + H2(g) -> CH3OH(g) + H2O(g)",
     "2 SO2(g) + O2(g) -> 2 SO3(g)",

@@ -9,41 +9,50 @@
 //! The data are `data/names.tsv`, written by `scripts/gen_names.py` from the identifier tables
 //! shipped in `chemicals` (derived from PubChem, public domain); melting and boiling points only
 //! from openly licensed tables (origins and terms in `scripts/README-open-data.md`).
+//!
+//! The file is 3 MB with some 60,000 names: its rows are cut once (a few milliseconds) and each
+//! index is built the first time it is asked for, so a run that never writes a name does not pay
+//! for the name index.
 
 use crate::smiles::Molecule;
+use std::borrow::Cow;
 use std::collections::HashMap;
 use std::sync::{Mutex, OnceLock};
 
-/// One compound of the name table.
+/// One compound of the name table (borrowed from the bundled file).
 #[derive(Clone, Debug)]
 pub struct Compound {
-    pub smiles: String,
-    pub cas: String,
-    /// Hill formula with charge, as [`crate::formula::Formula::hill`] writes it.
-    pub formula: String,
-    /// Names, the preferred one first.
-    pub names: Vec<String>,
+    pub smiles: &'static str,
+    pub cas: &'static str,
+    /// Formula as RDKit writes it: Hill order for carbon compounds (then the engine's own), but
+    /// hydrogen first for the others; [`hill_key`] turns it into the engine's.
+    pub formula: &'static str,
+    names: &'static str,
     /// Normal melting point, K, with the table it comes from.
-    pub melting_k: Option<(f64, String)>,
+    pub melting_k: Option<(f64, &'static str)>,
     /// Normal boiling point, K, with the table it comes from.
-    pub boiling_k: Option<(f64, String)>,
+    pub boiling_k: Option<(f64, &'static str)>,
 }
 
 impl Compound {
+    /// Names, the preferred one first.
+    pub fn names(&self) -> impl Iterator<Item = &'static str> {
+        self.names.split('|').filter(|s| !s.is_empty())
+    }
+
     /// The preferred name.
-    pub fn name(&self) -> &str {
-        self.names.first().map_or(self.smiles.as_str(), String::as_str)
+    pub fn name(&self) -> &'static str {
+        self.names().next().unwrap_or(self.smiles)
     }
 }
 
-/// The name table, indexed.
+/// The name table, indexed on demand.
 pub struct Names {
     compounds: Vec<Compound>,
-    by_name: HashMap<String, usize>,
-    by_cas: HashMap<String, usize>,
-    by_formula: HashMap<String, Vec<usize>>,
-    /// Canonical keys of the compounds of a formula, computed when a formula is first asked for
-    /// (parsing every SMILES at start-up would cost every one-case run).
+    by_name: OnceLock<HashMap<Cow<'static, str>, usize>>,
+    by_cas: OnceLock<HashMap<&'static str, usize>>,
+    by_formula: OnceLock<HashMap<Cow<'static, str>, Vec<usize>>>,
+    /// Canonical keys of the compounds of a formula, computed when a formula is first asked for.
     keys: Mutex<HashMap<usize, Option<String>>>,
     /// Header comment of the data file.
     pub provenance: String,
@@ -51,7 +60,7 @@ pub struct Names {
 
 const NAMES_TSV: &str = include_str!("../data/names.tsv");
 
-/// The bundled name table, parsed on first use.
+/// The bundled name table, cut into rows on first use.
 pub fn bundled() -> &'static Names {
     static N: OnceLock<Names> = OnceLock::new();
     N.get_or_init(|| Names::from_tsv(NAMES_TSV).unwrap_or_else(|e| panic!("{e}")))
@@ -75,6 +84,24 @@ pub fn normalise(name: &str) -> String {
     out
 }
 
+/// The engine's Hill formula of a row: RDKit's text for carbon compounds (the same order), read
+/// and rewritten for the others (RDKit puts hydrogen first where Hill's rule does not).
+pub fn hill_key(formula: &'static str) -> Cow<'static, str> {
+    let carbon = formula.starts_with('C') && !formula[1..].starts_with(|c: char| c.is_ascii_lowercase());
+    if carbon {
+        return Cow::Borrowed(formula);
+    }
+    crate::formula::parse_species(formula, 0)
+        .ok()
+        .and_then(|s| s.formula)
+        .map_or(Cow::Borrowed(formula), |f| Cow::Owned(f.hill()))
+}
+
+/// Whether [`normalise`] would leave a name as it is.
+fn is_normalised(n: &str) -> bool {
+    !n.starts_with(' ') && !n.ends_with(' ') && !n.contains("  ") && n.chars().all(|c| c.is_ascii() && !c.is_ascii_uppercase() && c != '\t')
+}
+
 /// `98-95-3`: two to seven digits, two digits, one check digit.
 pub fn looks_like_cas(s: &str) -> bool {
     let parts: Vec<&str> = s.split('-').collect();
@@ -96,57 +123,62 @@ pub fn cas_checksum_ok(s: &str) -> bool {
 }
 
 impl Names {
-    /// Parse the `names.tsv` layout: `smiles`, `cas`, `formula`, `names` (`|`-separated),
-    /// `melting_k`, `melting_source`, `boiling_k`, `boiling_source`.
+    /// Cut the `names.tsv` layout: `#` comments, a header, then rows with `smiles`, `cas`,
+    /// `formula`, `names` (`|`-separated), `melting_k`, `melting_source`, `boiling_k`,
+    /// `boiling_source`.
     ///
     /// # Errors
-    /// A message naming the line for a malformed row or a name given to two compounds.
-    pub fn from_tsv(tsv: &str) -> Result<Names, String> {
-        let table = crate::tsv::read(tsv, "names.tsv");
-        let mut n = Names {
-            compounds: Vec::new(),
-            by_name: HashMap::new(),
-            by_cas: HashMap::new(),
-            by_formula: HashMap::new(),
-            keys: Mutex::new(HashMap::new()),
-            provenance: table.comments.clone(),
-        };
-        for row in table.rows() {
-            let k = n.compounds.len();
-            let point = |v: &str, src: &str| -> Result<Option<(f64, String)>, String> {
-                if row.get(v)?.is_empty() {
+    /// A message naming the line for a malformed row.
+    pub fn from_tsv(tsv: &'static str) -> Result<Names, String> {
+        let mut provenance = String::new();
+        let mut header: Option<Vec<&str>> = None;
+        let mut compounds = Vec::new();
+        for (i, line) in tsv.lines().enumerate() {
+            if let Some(c) = line.strip_prefix('#') {
+                provenance.push_str(c.trim());
+                provenance.push('\n');
+                continue;
+            }
+            if line.trim().is_empty() {
+                continue;
+            }
+            let fields: Vec<&'static str> = line.split('\t').collect();
+            let Some(h) = &header else {
+                header = Some(fields);
+                continue;
+            };
+            let err = |what: &str| format!("names.tsv line {}: {what}", i + 1);
+            let col = |name: &str| -> Result<&'static str, String> {
+                let k = h
+                    .iter()
+                    .position(|c| *c == name)
+                    .ok_or_else(|| format!("names.tsv: no column {name}"))?;
+                fields.get(k).copied().ok_or_else(|| err(&format!("missing {name}")))
+            };
+            let point = |v: &str, src: &str| -> Result<Option<(f64, &'static str)>, String> {
+                let t = col(v)?;
+                if t.is_empty() {
                     return Ok(None);
                 }
-                let t: f64 = row.get(v)?.parse().map_err(|_| row.error(&format!("bad number in {v}")))?;
-                Ok(Some((t, row.get(src)?.to_string())))
+                Ok(Some((t.parse().map_err(|_| err(&format!("bad number in {v}")))?, col(src)?)))
             };
-            let c = Compound {
-                smiles: row.get("smiles")?.to_string(),
-                cas: row.get("cas")?.to_string(),
-                // RDKit writes `C7H8O`, `C5H6N+`: read it as a formula and write it as the engine does.
-                formula: crate::formula::parse_species(row.get("formula")?, 0)
-                    .ok()
-                    .and_then(|s| s.formula)
-                    .map(|f| f.hill())
-                    .ok_or_else(|| row.error("formula does not parse"))?,
-                names: row.get("names")?.split('|').map(str::to_string).filter(|s| !s.is_empty()).collect(),
+            compounds.push(Compound {
+                smiles: col("smiles")?,
+                cas: col("cas")?,
+                formula: col("formula")?,
+                names: col("names")?,
                 melting_k: point("melting_k", "melting_source")?,
                 boiling_k: point("boiling_k", "boiling_source")?,
-            };
-            for name in &c.names {
-                if let Some(other) = n.by_name.insert(normalise(name), k) {
-                    if other != k {
-                        return Err(row.error(&format!("the name {name:?} is given to two compounds")));
-                    }
-                }
-            }
-            if !c.cas.is_empty() {
-                n.by_cas.insert(c.cas.clone(), k);
-            }
-            n.by_formula.entry(c.formula.clone()).or_default().push(k);
-            n.compounds.push(c);
+            });
         }
-        Ok(n)
+        Ok(Names {
+            compounds,
+            by_name: OnceLock::new(),
+            by_cas: OnceLock::new(),
+            by_formula: OnceLock::new(),
+            keys: Mutex::new(HashMap::new()),
+            provenance,
+        })
     }
 
     pub fn len(&self) -> usize {
@@ -157,34 +189,78 @@ impl Names {
         self.compounds.is_empty()
     }
 
+    /// Every compound, in file order.
+    pub fn compounds(&self) -> &[Compound] {
+        &self.compounds
+    }
+
+    fn by_name(&self) -> &HashMap<Cow<'static, str>, usize> {
+        self.by_name.get_or_init(|| {
+            let mut m = HashMap::with_capacity(6 * self.compounds.len());
+            for (k, c) in self.compounds.iter().enumerate() {
+                for n in c.names() {
+                    // The file's names are mostly written as compared already: borrow those.
+                    let key = if is_normalised(n) {
+                        Cow::Borrowed(n)
+                    } else {
+                        Cow::Owned(normalise(n))
+                    };
+                    // The generator drops names given to two compounds; first wins regardless.
+                    m.entry(key).or_insert(k);
+                }
+            }
+            m
+        })
+    }
+
+    fn by_formula(&self) -> &HashMap<Cow<'static, str>, Vec<usize>> {
+        self.by_formula.get_or_init(|| {
+            let mut m: HashMap<Cow<'static, str>, Vec<usize>> = HashMap::with_capacity(self.compounds.len());
+            for (k, c) in self.compounds.iter().enumerate() {
+                m.entry(hill_key(c.formula)).or_default().push(k);
+            }
+            m
+        })
+    }
+
     /// The compound of a name or CAS number, as written (case and spacing do not matter).
     pub fn find(&self, name_or_cas: &str) -> Option<&Compound> {
         let t = name_or_cas.trim();
         let k = if looks_like_cas(t) {
-            self.by_cas.get(t)
+            self.by_cas
+                .get_or_init(|| {
+                    self.compounds
+                        .iter()
+                        .enumerate()
+                        .filter(|(_, c)| !c.cas.is_empty())
+                        .map(|(k, c)| (c.cas, k))
+                        .collect()
+                })
+                .get(t)
+                .copied()
         } else {
-            self.by_name.get(&normalise(t))
+            self.by_name().get(normalise(t).as_str()).copied()
         };
-        k.map(|&k| &self.compounds[k])
+        k.map(|k| &self.compounds[k])
     }
 
-    /// Known compounds with this Hill formula (charge included).
+    /// Known compounds with this Hill formula.
     pub fn with_formula(&self, hill: &str) -> Vec<&Compound> {
-        self.by_formula
+        self.by_formula()
             .get(hill)
             .map_or_else(Vec::new, |ks| ks.iter().map(|&k| &self.compounds[k]).collect())
     }
 
     /// The compound with this structure, if the table has it. `hill` is the molecule's formula.
     pub fn by_structure(&self, canonical_key: &str, hill: &str) -> Option<&Compound> {
-        let ks = self.by_formula.get(hill)?;
+        let ks = self.by_formula().get(hill)?;
         let mut keys = self.keys.lock().unwrap_or_else(|e| e.into_inner());
         ks.iter()
             .copied()
             .find(|k| {
                 let key = keys
                     .entry(*k)
-                    .or_insert_with(|| Molecule::parse(&self.compounds[*k].smiles, 0).ok().map(|m| m.canonical_key()));
+                    .or_insert_with(|| Molecule::parse(self.compounds[*k].smiles, 0).ok().map(|m| m.canonical_key()));
                 key.as_deref() == Some(canonical_key)
             })
             .map(|k| &self.compounds[k])
@@ -198,13 +274,13 @@ impl Names {
         }
         let limit = (want.chars().count() / 3).max(2);
         let mut scored: Vec<(usize, &str)> = self
-            .by_name
+            .by_name()
             .iter()
             .filter(|(k, _)| k.len().abs_diff(want.len()) <= limit)
             .filter_map(|(k, &i)| {
                 let d = edit_distance(&want, k);
-                let shown = self.compounds[i].names.iter().find(|s| normalise(s) == *k)?;
-                (d <= limit).then_some((d, shown.as_str()))
+                let shown = self.compounds[i].names().find(|s| normalise(s) == k.as_ref())?;
+                (d <= limit).then_some((d, shown))
             })
             .collect();
         scored.sort_by(|a, b| a.0.cmp(&b.0).then(a.1.cmp(b.1)));
@@ -246,5 +322,23 @@ mod tests {
         assert_eq!(normalise("  Acetic   Anhydride "), "acetic anhydride");
         assert_eq!(normalise("propan‐2‐ol"), "propan-2-ol");
         assert_eq!(edit_distance("nitrobenzen", "nitrobenzene"), 1);
+        for n in ["acetic anhydride", "N,N-dimethylformamide", "propan‐2‐ol", " water"] {
+            assert_eq!(is_normalised(n), normalise(n) == n, "{n}");
+        }
+    }
+
+    #[test]
+    fn the_files_formulas_are_the_engines_hill_formulas() {
+        // The formula index is keyed on the file's text: RDKit's Hill formula must be the one the
+        // engine writes for every row (neutral rows only), and every CAS number must check out.
+        let n = bundled();
+        assert!(n.len() > 10_000, "{}", n.len());
+        for c in n.compounds() {
+            let f = crate::formula::parse_species(c.formula, 0).unwrap().formula.unwrap();
+            assert_eq!(f.hill(), hill_key(c.formula), "{}", c.smiles);
+            assert!(c.cas.is_empty() || cas_checksum_ok(c.cas), "{} {}", c.cas, c.smiles);
+        }
+        assert_eq!(n.find("propan-2-ol").map(|c| c.smiles), n.find("isopropanol").map(|c| c.smiles));
+        assert_eq!(n.find("98-95-3").map(Compound::name), Some("nitrobenzene"));
     }
 }

@@ -232,8 +232,7 @@ impl<'t> Screener<'t> {
         };
         // Labelled like any structure (by formula or the table's preferred name), not as written:
         // a label must not depend on which spelling of a compound a screener met first.
-        let smiles = c.smiles.clone();
-        self.structure_species(&smiles, position, asked)
+        self.structure_species(c.smiles, position, asked)
     }
 
     pub fn grid(&self) -> &TemperatureGrid {

@@ -204,7 +204,19 @@ pub fn resolve_smiles(
     // Formulas read well for inorganic molecules and the smallest carbon ones (CO2, CH4, COCl2).
     let count = |z: u8| formula.atoms.iter().find(|a| a.0 == z).map_or(0, |a| a.1);
     let small = count(6) == 0 || (count(6) == 1 && (count(1) == 0 || m.heavy_atom_count() == 1));
-    let formula_label = (small && known.with_formula(&hill).len() < 2).then(|| formula_text(&formula));
+    // The table's own formula for a tabulated small molecule (H2SO4, N2H4, COCl2), as chemists
+    // write them; Hill-like order otherwise.
+    let record_formula = r.origin.iter().find_map(|o| match o {
+        Origin::Tabulated { record, .. } => table
+            .records
+            .iter()
+            .find(|x| &x.name == record)
+            .map(|x| x.base.as_str())
+            .filter(|b| !b.contains(',') && !b.contains('('))
+            .map(|b| b.replace("CL", "Cl").replace("AL", "Al")),
+        _ => None,
+    });
+    let formula_label = (small && known.with_formula(&hill).len() < 2).then(|| record_formula.unwrap_or_else(|| formula_text(&formula)));
     let shown = (if formula.charge == 0 { formula_label } else { None })
         .or_else(named)
         .unwrap_or_else(|| smiles.to_string());
@@ -306,12 +318,7 @@ fn by_structure(
     let estimate = || {
         Estimate::of(m).map(|e| {
             let known = names::bundled().by_structure(key, &formula.hill());
-            let point = |p: &Option<(f64, String)>| p.as_ref().map(|(t, src)| (*t, src.clone()));
-            let (tm, tb) = known.map_or((None, None), |c| (point(&c.melting_k), point(&c.boiling_k)));
-            e.with_measured(
-                tm.as_ref().map(|(t, s)| (*t, s.as_str())),
-                tb.as_ref().map(|(t, s)| (*t, s.as_str())),
-            )
+            e.with_measured(known.and_then(|c| c.melting_k), known.and_then(|c| c.boiling_k))
         })
     };
     for name in names {

@@ -652,7 +652,36 @@ fn phase_cases() -> Vec<thermosieve_queue::CaseInput> {
         case("tagged", "CCO{l}.O=O.O=O.O=O>>O=C=O.O=C=O.O{g}.O{g}.O{g}", Some("gas")),
         case("named", "ethanol(l) + 3 oxygen(g) -> 2 carbon dioxide(g) + 3 water(l)", None),
         case("salt", "[Na+].[OH-].Cl>>[Na+].[Cl-].O", None),
+        // A step charged at once (dosing time 0) that also carries an accumulated fraction: batch
+        // means X_acc = 1, so MTSR = T_p + ΔT_ad whatever the fraction says.
+        thermosieve_queue::CaseInput {
+            conditions: thermosieve_queue::Conditions {
+                process_temperature_k: Some(313.15),
+                dosing_time_h: Some(0.0),
+                accumulation_fraction: Some(0.3),
+                ..Default::default()
+            },
+            ..case("batch", "nitrobenzene(l) + 3 H2(g) -> aniline(l) + 2 water(l)", None)
+        },
     ]
+}
+
+/// MTSR of the batch case is T_p + ΔT_ad (X_acc = 1; MTSR = T_p + X_acc·ΔT_ad, Stoessel's
+/// definition, from memory), on the path that wrote `cases`.
+fn assert_batch_means_batch(cases: &DataFrame, path: &str) {
+    let ids = strings(cases, "case_id");
+    let k = ids.iter().position(|i| i.as_deref() == Some("batch")).expect("batch case");
+    let (tp, rise, mtsr) = (
+        floats(cases, "process_temperature_used_k")[k].expect("T_p"),
+        floats(cases, "adiabatic_rise_k")[k].expect("ΔT_ad"),
+        floats(cases, "mtsr_k")[k].expect("MTSR"),
+    );
+    assert!(rise > 100.0, "{path}: a strong exotherm, ΔT_ad {rise}");
+    assert!(
+        (mtsr - (tp + rise)).abs() < 1e-6,
+        "{path}: MTSR {mtsr} K, expected T_p + ΔT_ad = {}",
+        tp + rise
+    );
 }
 
 /// ΔrH°(298.15 K) expected per case, from ATcT 1.112 ΔfH° (kJ/mol; chemicals 1.5.2 tables
@@ -692,14 +721,18 @@ async fn the_phase_asked_reaches_the_engine_on_every_path() {
     let out = thermosieve_front::embedded::run_cases(phase_cases().into_iter(), BatchOptions::default(), dir.path(), 1)
         .await
         .expect("embedded run");
-    assert_phase_results(&read_table(&out.batch_dir.join("cases.parquet")), "embedded");
+    let embedded_cases = read_table(&out.batch_dir.join("cases.parquet"));
+    assert_phase_results(&embedded_cases, "embedded");
+    assert_batch_means_batch(&embedded_cases, "embedded");
 
     // Redis + gRPC + worker, and ScreenInline on the same front.
     let svc = Service::start(1, |_| {}).await;
     let mut client = svc.client().await;
     let id = submit(&mut client, &phase_cases(), 0).await;
     wait_done(&mut client, &id).await;
-    assert_phase_results(&read_table_bytes(fetch(&mut client, &id, pb::Table::Cases).await), "redis");
+    let redis_cases = read_table_bytes(fetch(&mut client, &id, pb::Table::Cases).await);
+    assert_phase_results(&redis_cases, "redis");
+    assert_batch_means_batch(&redis_cases, "redis");
     let inline = client
         .screen_inline(pb::ScreenInlineRequest {
             cases: phase_cases().iter().map(convert::case_to_pb).collect(),

@@ -72,8 +72,12 @@ impl EvalArgs {
             scale: self.scale_mol.map(Scale::MolOfReaction),
             reaction_mass_kg: self.reaction_mass_kg,
             cp_kj_per_kg_k: self.cp_kj_per_kg_k,
-            operation: (self.dosing_time_h.is_some() || self.accumulation_fraction.is_some()).then_some(Operation::SemiBatch),
-            dosing_time_h: self.dosing_time_h,
+            // Only a positive dosing time makes the step semi-batch; an accumulation on a batch
+            // step is ignored (X_acc = 1) with a note.
+            operation: self
+                .dosing_time_h
+                .map(|h| if h == 0.0 { Operation::Batch } else { Operation::SemiBatch }),
+            dosing_time_h: self.dosing_time_h.filter(|&h| h != 0.0),
             accumulation_fraction: self.accumulation_fraction,
             mtt_k: k(self.mtt_c),
             t_d24_k: k(self.t_d24_c),

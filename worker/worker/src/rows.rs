@@ -92,16 +92,26 @@ pub struct ProcessColumns {
 }
 
 /// The engine's process inputs from a case's conditions. A dosing time of 0 is how tables write
-/// "all charged at once": it means batch, not an invalid semi-batch.
+/// "all charged at once": it means batch, not an invalid semi-batch. Only a positive dosing time
+/// makes a step semi-batch; an accumulated fraction on a batch step is ignored (X_acc = 1, noted
+/// by the engine), so a batch step's MTSR is never lowered by it.
 pub fn process_conditions(c: &thermosieve_queue::Conditions) -> ProcessConditions {
     let dosing = c.dosing_time_h.filter(|&h| h != 0.0);
+    // A negative time stays semi-batch so that the engine's range check rejects it.
+    let operation = c.dosing_time_h.map(|h| {
+        if h == 0.0 {
+            process::Operation::Batch
+        } else {
+            process::Operation::SemiBatch
+        }
+    });
     ProcessConditions {
         process_temperature_k: c.process_temperature_k,
         pressure_bar: c.pressure_bar,
         scale: c.scale_mol.map(Scale::MolOfReaction),
         reaction_mass_kg: c.reaction_mass_kg,
         cp_kj_per_kg_k: c.cp_kj_per_kg_k,
-        operation: (dosing.is_some() || c.accumulation_fraction.is_some()).then_some(process::Operation::SemiBatch),
+        operation,
         dosing_time_h: dosing,
         accumulation_fraction: c.accumulation_fraction,
         mtt_k: c.mtt_k,
@@ -644,4 +654,28 @@ pub fn routes_frame(summaries: &[RouteSummary]) -> PolarsResult<DataFrame> {
             col("case_ids", summaries.iter().map(|r| r.case_ids.join(JOIN)).collect::<Vec<String>>()),
         ],
     )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use thermosieve_engine::process::Operation;
+
+    #[test]
+    fn batch_means_batch() {
+        // MTSR = T_p + X_acc·ΔT_ad with X_acc = 1 for batch (Stoessel, Thermal Safety of Chemical
+        // Processes, 2008, ch. 3, from memory): an accumulated fraction on a step charged at once
+        // must not lower it.
+        let with = |dosing: Option<f64>, acc: Option<f64>| {
+            process_conditions(&thermosieve_queue::Conditions {
+                dosing_time_h: dosing,
+                accumulation_fraction: acc,
+                ..Default::default()
+            })
+        };
+        assert_eq!(with(Some(0.0), Some(0.3)).operation, Some(Operation::Batch));
+        assert_eq!(with(None, Some(0.3)).operation, None, "no dosing time: the engine's default, batch");
+        assert_eq!(with(Some(2.0), Some(0.3)).operation, Some(Operation::SemiBatch));
+        assert_eq!(with(Some(2.0), Some(0.3)).dosing_time_h, Some(2.0));
+    }
 }

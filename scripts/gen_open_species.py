@@ -235,6 +235,7 @@ SPECIES = [
     ("100-52-7", "C6H5CHO", True, ""),                 # benzaldehyde
     ("108-95-2", "C6H5OH,phenol", False, ""),          # phenol: solid at 298.15 K, skipped
     ("75-07-0", "CH3CHO,ethanal", False, ""),          # acetaldehyde: boils at 294 K, skipped
+    ("7697-37-2", "HNO3", False, ""),                  # nitric acid (nitrations)
 ]
 # Left out after the cross-check below (the derivation or a ChemSep value fails):
 #   acetic acid (l): its vapour dimerizes, so S(ig) - dvapS misses by 80 J/mol/K;

@@ -11,8 +11,8 @@ fn resolve(s: &str) -> Result<species::Resolved, ResolveError> {
 #[test]
 fn bundled_table_loads_every_usable_record() {
     // 1,130 NASA records (748 gas + 382 condensed in Cantera 3.2.0) less 25 deuterated ones,
-    // plus 55 open records (34 liquids, 21 gases) from data/open_species.tsv.
-    assert_eq!(species::bundled().records.len(), 1105 + 55);
+    // plus 56 open records (35 liquids, 21 gases) from data/open_species.tsv.
+    assert_eq!(species::bundled().records.len(), 1105 + 56);
     assert!(species::bundled().provenance.contains("Cantera 3.2.0"));
 }
 

@@ -45,6 +45,15 @@ pub const AMIDE_SIGMA_KJ_PER_MOL: f64 = 13.0;
 /// and −221 kJ/mol. Its σ stays the peroxide weak spot's 50 kJ/mol per oxygen.
 pub const PEROXIDE_OFFSET_KJ_PER_MOL: f64 = 216.0;
 
+/// Correction of Joback's ΔfH°(g) per bond between two carbonyl carbons (1,2-diketones, glyoxal,
+/// oxalic acid and its esters; not where a carbonyl is on nitrogen), kJ/mol: Joback makes them too
+/// stable. Set on dimethyl oxalate (CRC, rule rows of condensed_dhf.tsv), glyoxal, oxalic acid and
+/// 2,3-butanedione (ATcT 1.112, the rule-setting set): errors −51.6, −43.4, −63.8, −24.5 (mean
+/// −45.8, SD 16). Checked on the held-out ones (benzil, diethyl oxalate, pyruvaldehyde, …).
+pub const ADJACENT_CARBONYL_OFFSET_KJ_PER_MOL: f64 = 46.0;
+/// Standard uncertainty per corrected carbonyl–carbonyl bond (the rule set's spread, widened), kJ/mol.
+pub const ADJACENT_CARBONYL_SIGMA_KJ_PER_MOL: f64 = 20.0;
+
 /// Joback & Reid's enthalpy-of-fusion contributions, kJ/mol, in [`GROUPS`] order (None where the
 /// table has none), copied from `thermo` 0.6.1 (`JOBACK_GROUPS[k].Hfus`, MIT), which carries the
 /// published table. Joback & Reid report an average absolute error of 485.2 cal/mol (2.0 kJ/mol)
@@ -1034,9 +1043,20 @@ impl Assign<'_> {
             })
             .collect();
         let carbonyl = |i: usize| carbonyl[i];
+        let on_nitrogen = |i: usize| m.neighbours(i).any(|(w, _)| m.atoms[w].element == 7);
         for b in &m.bonds {
             if carbonyl(b.a) && carbonyl(b.b) {
-                self.weak("adjacent carbonyls", "two carbonyl groups bonded to each other", 30.0);
+                if on_nitrogen(b.a) || on_nitrogen(b.b) {
+                    // Oxamides and oxamic acids: the amide correction already applies.
+                    self.weak("adjacent carbonyls", "two carbonyl groups bonded to each other", 30.0);
+                } else {
+                    self.biased(
+                        "adjacent carbonyls",
+                        "two carbonyl groups bonded to each other (corrected by +46 kJ/mol)",
+                        ADJACENT_CARBONYL_SIGMA_KJ_PER_MOL,
+                        ADJACENT_CARBONYL_OFFSET_KJ_PER_MOL,
+                    );
+                }
             }
         }
         for i in 0..n {

@@ -14,7 +14,7 @@ use common::Tsv;
 use thermosieve_engine::joback::Estimate;
 use thermosieve_engine::smiles::Molecule;
 
-const RULE_SETTING: [&str; 18] = [
+const RULE_SETTING: [&str; 19] = [
     "C1CC1",
     "ClC(Cl)(Cl)Cl",
     "c1ccccc1",
@@ -35,6 +35,8 @@ const RULE_SETTING: [&str; 18] = [
     "C1CC(=O)NC1=O",
     "C1=CNC(=O)NC1=O",
     "C1=CC=C(C=C1)C(=O)OOC(=O)C2=CC=CC=C2",
+    // The adjacent-carbonyl correction (joback::ADJACENT_CARBONYL_OFFSET_KJ_PER_MOL).
+    "COC(=O)C(=O)OC",
 ];
 
 struct Stats {
@@ -103,7 +105,7 @@ fn rule_setting_set_atct() {
     assert!(s.n >= 50, "only {} molecules compared", s.n);
     // At most 10% of the set may be skipped as not estimable; the rules were set here, so the
     // in-sample coverage must reach the 95% they promise (measured: 136 compared, 7 skipped,
-    // MAE 34.0 kJ/mol, 0.98 inside 2σ).
+    // MAE 33.4 kJ/mol, 0.98 inside 2σ).
     assert!(s.skipped * 10 <= s.n + s.skipped, "{} of {} skipped", s.skipped, s.n + s.skipped);
     assert!(s.coverage >= 0.95, "in-sample 2σ coverage {:.2}", s.coverage);
     assert!(s.mae < 36.0, "in-sample MAE {:.1} kJ/mol", s.mae);
@@ -118,8 +120,9 @@ fn held_out_set_crc_inside_two_sigma() {
         s.n, s.skipped, s.mae, s.coverage
     );
     assert!(s.n >= 50, "only {} molecules compared", s.n);
-    // Measured: 834 compared, 35 skipped, MAE 22.6 kJ/mol, 0.90 inside 2σ (with the amide and
-    // peroxide corrections; 25.1 and 0.87 before). Still short of the 95% the σ promises.
+    // Measured: 833 compared, 35 skipped, MAE 22.5 kJ/mol, 0.90 inside 2σ (with the amide,
+    // peroxide and adjacent-carbonyl corrections; 25.1 and 0.87 before). Still short of the 95%
+    // the σ promises.
     assert!(s.skipped * 10 <= s.n + s.skipped, "{} of {} skipped", s.skipped, s.n + s.skipped);
     assert!(s.coverage >= 0.88, "2σ coverage {:.2} (MAE {:.1} kJ/mol)", s.coverage, s.mae);
     assert!(s.mae < 24.0, "held-out MAE {:.1} kJ/mol", s.mae);

@@ -607,16 +607,9 @@ impl Table {
             } else {
                 r.base.as_str()
             };
+            // Record names (`C4H10,n-butane`) are looked up whole, only by the engine itself: users
+            // write isomers by name or SMILES (`crate::names`, `crate::structures`).
             by_name.entry((base.to_string(), r.formula.charge)).or_default().push(k);
-            // NASA qualifies isomers after a comma (`C4H10,n-butane`): the qualifier is a name too.
-            if let Some((_, alias)) = base.split_once(',') {
-                if alias.len() >= 3
-                    && alias.starts_with(|c: char| c.is_ascii_lowercase())
-                    && alias.chars().all(|c| c.is_ascii_alphanumeric() || c == '-')
-                {
-                    by_name.entry((alias.to_string(), r.formula.charge)).or_default().push(k);
-                }
-            }
             by_formula.entry(r.formula.hill()).or_default().push(k);
         }
         Table {
@@ -661,21 +654,7 @@ impl Table {
         }
         let mut ids: Vec<usize> = by_name.to_vec();
         if ids.is_empty() {
-            let same_formula = self.by_formula(&formula.hill());
-            // An isomer qualifier (`C7H14,methylcyclohexane`) names one compound: when no record
-            // has that name, another isomer with the formula is not a stand-in for it.
-            if spec.text.contains(',') {
-                let mut have: Vec<String> = same_formula.iter().map(|&k| self.records[k].name.clone()).collect();
-                have.sort();
-                have.dedup();
-                let hint = if have.is_empty() {
-                    " (no record has that name or formula)".to_string()
-                } else {
-                    format!(" (no record has that name; the records with its formula are {})", have.join(", "))
-                };
-                return Err(ResolveError::NotFound { species: shown, hint });
-            }
-            ids = same_formula.to_vec();
+            ids = self.by_formula(&formula.hill()).to_vec();
         }
         let all = ids.clone();
         ids.retain(|&k| {

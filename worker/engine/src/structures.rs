@@ -51,12 +51,15 @@ impl DefaultPhase {
         }
     }
 
-    /// The phase tag of a species written by name, as a default phase.
+    /// The phase tag of a species written by name, as a default phase. Callers refuse an aqueous
+    /// species before asking (no aqueous data is bundled); it maps to `Standard` only so the
+    /// function is total.
     pub fn of(phase: Phase) -> DefaultPhase {
         match phase {
             Phase::Gas => DefaultPhase::Gas,
             Phase::Liquid => DefaultPhase::Liquid,
-            Phase::Solid | Phase::Aqueous => DefaultPhase::Solid,
+            Phase::Solid => DefaultPhase::Solid,
+            Phase::Aqueous => DefaultPhase::Standard,
         }
     }
 

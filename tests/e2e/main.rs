@@ -157,6 +157,8 @@ fn species_are_the_engines(table: &DataFrame, engine: &HashMap<String, std::sync
     let dh = floats(table, "delta_fh_298_kj_per_mol");
     let s298 = floats(table, "s_298_j_per_mol_k");
     let estimated = table.column("estimated").unwrap().bool().unwrap().clone();
+    let sigma = floats(table, "delta_fh_uncertainty_kj_per_mol");
+    let basis = strings(table, "delta_fh_uncertainty_basis");
     assert_eq!(labels.len(), engine.len(), "one row per species named by the cases");
     for (i, label) in labels.iter().enumerate() {
         let label = label.as_deref().unwrap();
@@ -167,6 +169,10 @@ fn species_are_the_engines(table: &DataFrame, engine: &HashMap<String, std::sync
         assert_eq!(s298[i], Some(st.s_j_per_mol_k), "{label}");
         let is_estimated = p.resolved.origin.iter().any(|o| matches!(o, species::Origin::Estimated { .. }));
         assert_eq!(estimated.get(i), Some(is_estimated), "{label}");
+        // Every species carries a σ and says where it comes from.
+        assert_eq!(sigma[i], p.resolved.dhf_uncertainty_kj_per_mol, "{label}");
+        assert!(sigma[i].is_some(), "{label} has no σ");
+        assert_eq!(basis[i].as_deref(), Some(p.resolved.sigma_basis.as_str()), "{label}");
     }
 }
 

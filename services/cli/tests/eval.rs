@@ -71,3 +71,26 @@ fn process_options_print_the_heat_budget() {
         "{out}"
     );
 }
+
+/// ΔrH°(298.15 K) printed by `eval`, kJ/mol.
+fn delta_h(out: &str) -> f64 {
+    let rest = out.split("ΔrH° = ").nth(1).unwrap_or_else(|| panic!("no ΔrH° in\n{out}"));
+    rest.split_whitespace()
+        .next()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or_else(|| panic!("bad ΔrH° in\n{out}"))
+}
+
+#[test]
+fn the_phase_option_sets_the_state_of_smiles_species() {
+    // Ethanol combustion from ATcT 1.112 ΔfH° (chemicals 1.5.2 'ATcT 1.112 (g).tsv', '(l).tsv'):
+    // all gas −1277.8 kJ/mol; ethanol and water liquid (O2, CO2 stay gases) −1367.4 kJ/mol.
+    let burn = "CCO.O=O.O=O.O=O>>O=C=O.O=C=O.O.O.O";
+    for (phase, want) in [("gas", -1277.8), ("liquid", -1367.4)] {
+        let (code, out, err) = eval(&[burn, "--phase", phase]);
+        assert_eq!(code, 0, "{err}");
+        assert!((delta_h(&out) - want).abs() < 0.6, "{phase}: {out}");
+    }
+    let (code, _, err) = eval(&[burn, "--phase", "plasma"]);
+    assert_eq!(code, 2, "{err}");
+}

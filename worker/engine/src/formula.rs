@@ -363,7 +363,7 @@ fn charge(cur: &mut Cursor) -> Result<i32, SyntaxError> {
 /// A word of a phase tag: a state (`g`, `l`, `s`, `cr`, `aq`) or a polymorph or allotrope in
 /// IUPAC style (`alpha` … `delta`, `graphite`, `rhombic`, `monoclinic`). Forms are kept as words;
 /// [`crate::species`] maps them to the records of the bundled data.
-fn tag_word(word: &str) -> Option<(Option<Phase>, Option<&'static str>)> {
+pub(crate) fn tag_word(word: &str) -> Option<(Option<Phase>, Option<&'static str>)> {
     Some(match word {
         "g" | "gas" => (Some(Phase::Gas), None),
         "l" | "liq" | "liquid" => (Some(Phase::Liquid), None),

@@ -104,12 +104,13 @@ fn is_normalised(n: &str) -> bool {
 
 /// `98-95-3`: two to seven digits, two digits, one check digit.
 pub fn looks_like_cas(s: &str) -> bool {
-    let parts: Vec<&str> = s.split('-').collect();
-    parts.len() == 3
-        && (2..=7).contains(&parts[0].len())
-        && parts[1].len() == 2
-        && parts[2].len() == 1
-        && parts.iter().all(|p| p.bytes().all(|b| b.is_ascii_digit()))
+    // Called for every species token of a batch: no allocation.
+    let digits = |p: &str, lengths: std::ops::RangeInclusive<usize>| lengths.contains(&p.len()) && p.bytes().all(|b| b.is_ascii_digit());
+    let mut parts = s.split('-');
+    matches!(
+        (parts.next(), parts.next(), parts.next(), parts.next()),
+        (Some(a), Some(b), Some(c), None) if digits(a, 2..=7) && digits(b, 2..=2) && digits(c, 1..=1)
+    )
 }
 
 /// Whether a CAS number's check digit is right (weighted digit sum modulo 10).

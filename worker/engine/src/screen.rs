@@ -12,7 +12,7 @@
 use crate::balance::{self, Balance, BalanceError, Column, Outcome, Side};
 use crate::equation;
 use crate::equation::{split_equation, Arrow, Notation, RawTerm};
-use crate::formula::{found_at, parse_species, Phase, SpeciesSpec, SyntaxError};
+use crate::formula::{found_at, parse_species, tag_word, Phase, SpeciesSpec, SyntaxError};
 use crate::names;
 use crate::rational::Rational;
 use crate::smiles::SmilesError;
@@ -309,29 +309,25 @@ impl<'t> Screener<'t> {
                 if spec.formula.is_none() {
                     return self.named_species(&spec.text, spec.phase, position);
                 }
-                match self.check_isomers(&spec).and_then(|()| self.table.resolve(&spec)) {
-                    // A record with a known structure but not in the state asked (`CH3COOH(l)`
-                    // where only the gas is tabulated): the structure path estimates that state.
-                    Err(ResolveError::NotFound { .. }) if spec.phase != Some(Phase::Aqueous) && spec.form.is_none() => {
-                        let charge = spec.charge();
-                        let smiles = self
-                            .table
-                            .by_name(&spec.text, charge)
-                            .iter()
-                            .find_map(|&k| self.structures.smiles_of(&self.table.records[k].base))
-                            .map(str::to_string);
-                        if let Some(smiles) = smiles {
-                            let asked = StateAsked::Phase(spec.phase.map_or(DefaultPhase::Standard, DefaultPhase::of));
-                            let r = self.structure_species(&smiles, position, asked);
-                            if let Ok(p) = &r {
-                                self.cache.insert(text.to_string(), Ok(p.clone()));
-                            }
-                            return r;
+                let resolved = self.check_isomers(&spec).and_then(|()| self.table.resolve(&spec));
+                // A record with a known structure but not in the state asked (`CH3COOH(l)` where
+                // only the gas is tabulated): the structure path estimates that state.
+                if matches!(resolved, Err(ResolveError::NotFound { .. })) && spec.phase != Some(Phase::Aqueous) && spec.form.is_none() {
+                    let structure = self
+                        .table
+                        .by_name(&spec.text, spec.charge())
+                        .iter()
+                        .find_map(|&k| self.structures.smiles_of(&self.table.records[k].base));
+                    if let Some(smiles) = structure {
+                        let asked = StateAsked::Phase(spec.phase.map_or(DefaultPhase::Standard, DefaultPhase::of));
+                        let r = self.structure_species(smiles, position, asked);
+                        if let Ok(p) = &r {
+                            self.cache.insert(text.to_string(), Ok(p.clone()));
                         }
-                        self.table.resolve(&spec)
+                        return r;
                     }
-                    other => other,
                 }
+                resolved
             }
         };
         let result = result.map(|r| Arc::new(self.prepare(r)));
@@ -639,12 +635,13 @@ fn split_state(text: &str, position: usize) -> Result<(&str, Option<StateAsked>)
             found: found_at(text, open),
         });
     };
-    let state = match inner.trim().to_ascii_lowercase().as_str() {
-        "aq" => StateAsked::Aqueous,
+    // The state words of phase tags (`g`, `l`, `s`, `cr`, `aq`, …), and `std` for the stable state.
+    let word = inner.trim().to_ascii_lowercase();
+    let state = match word.as_str() {
         "std" | "standard" => StateAsked::Phase(DefaultPhase::Standard),
-        "cr" => StateAsked::Phase(DefaultPhase::Solid),
-        w => match DefaultPhase::parse(w) {
-            Some(p) if !w.is_empty() => StateAsked::Phase(p),
+        w => match tag_word(w) {
+            Some((Some(Phase::Aqueous), None)) => StateAsked::Aqueous,
+            Some((Some(p), None)) => StateAsked::Phase(DefaultPhase::of(p)),
             _ => {
                 return Err(SyntaxError::Unexpected {
                     position: position + open + 1,
@@ -659,18 +656,9 @@ fn split_state(text: &str, position: usize) -> Result<(&str, Option<StateAsked>)
 
 /// A trailing phase tag of a name: `acetic anhydride(l)` → (`acetic anhydride`, liquid).
 fn strip_tag(text: &str) -> (&str, Option<Phase>) {
-    if let Some(head) = text.strip_suffix(')') {
-        if let Some(open) = head.rfind('(') {
-            let tag = match &head[open + 1..] {
-                "g" | "gas" => Some(Phase::Gas),
-                "l" | "liquid" => Some(Phase::Liquid),
-                "s" | "cr" | "solid" => Some(Phase::Solid),
-                "aq" => Some(Phase::Aqueous),
-                _ => None,
-            };
-            if tag.is_some() {
-                return (head[..open].trim_end(), tag);
-            }
+    if let Some((head, word)) = text.strip_suffix(')').and_then(|t| t.rsplit_once('(')) {
+        if let Some((Some(phase), None)) = tag_word(word) {
+            return (head.trim_end(), Some(phase));
         }
     }
     (text, None)

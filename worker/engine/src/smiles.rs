@@ -693,13 +693,18 @@ impl Molecule {
         }
     }
 
-    /// Fold `[H]` atoms bonded singly to one non-hydrogen atom into that atom's count.
+    /// Fold `[H]` atoms bonded singly to one non-hydrogen atom into that atom's count. Dihydrogen
+    /// written `[H][H]` folds the same way into `[HH]` (the second atom into the first), so both
+    /// spellings are one graph.
     fn fold_explicit_hydrogens(&mut self) {
-        let foldable = |m: &Molecule, i: usize| {
+        let plain_h = |m: &Molecule, i: usize| {
             let a = &m.atoms[i];
-            a.element == 1 && a.isotope.is_none() && a.charge == 0 && a.hydrogens == 0 && m.degree(i) == 1 && {
+            a.element == 1 && a.isotope.is_none() && a.charge == 0 && a.hydrogens == 0 && m.degree(i) == 1
+        };
+        let foldable = |m: &Molecule, i: usize| {
+            plain_h(m, i) && {
                 let (nb, b) = m.neighbours(i).next().expect("degree 1");
-                m.atoms[nb].element != 1 && m.bonds[b].kekule_order == 1
+                m.bonds[b].kekule_order == 1 && (m.atoms[nb].element != 1 || (plain_h(m, nb) && nb < i))
             }
         };
         let fold: Vec<bool> = (0..self.atoms.len()).map(|i| foldable(self, i)).collect();
@@ -1714,6 +1719,14 @@ mod tests {
         assert_eq!(hill("C/C=C/C"), "C4H8");
         assert_eq!(hill("C[C@@H](O)CC"), "C4H10O");
         assert_eq!(hill("C$C"), "C2");
+    }
+
+    #[test]
+    fn dihydrogen_is_one_graph_however_written() {
+        // `[H][H]` (as RDKit writes H2) and `[HH]` (as PubChem-derived tables do) are one molecule.
+        assert_eq!(key("[H][H]"), key("[HH]"));
+        assert_eq!(hill("[H][H]"), "H2");
+        assert_ne!(key("[H][H]"), key("[H]"));
     }
 
     #[test]

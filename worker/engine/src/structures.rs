@@ -307,21 +307,16 @@ fn by_structure(
         phase,
         form: None,
     };
-    // `[HH]` and `[H][H]` are both dihydrogen: one hydrogen with an implicit hydrogen, or two
-    // explicit ones. The canonical keys differ, so the bundled structure is looked up under both.
-    let h2_key;
-    let names = match structures.names_for(key) {
-        [] if formula.hill() == "H2" && m.heavy_atom_count() == 0 => {
-            h2_key = Molecule::parse("[H][H]", 0).map(|h| h.canonical_key()).unwrap_or_default();
-            structures.names_for(&h2_key)
-        }
-        found => found,
-    };
-    // Joback groups with the name table's measured melting and boiling points where it has them.
+    let names = structures.names_for(key);
+    // Joback groups with the name table's measured melting and boiling points where it has them;
+    // made once, when first needed.
+    let estimated = std::cell::OnceCell::new();
     let estimate = || {
-        Estimate::of(m).map(|e| {
-            let known = names::bundled().by_structure(key, &formula.hill());
-            e.with_measured(known.and_then(|c| c.melting_k), known.and_then(|c| c.boiling_k))
+        estimated.get_or_init(|| {
+            Estimate::of(m).map(|e| {
+                let known = names::bundled().by_structure(key, &formula.hill());
+                e.with_measured(known.and_then(|c| c.melting_k), known.and_then(|c| c.boiling_k))
+            })
         })
     };
     for name in names {
@@ -330,14 +325,16 @@ fn by_structure(
                 // A table with only the gas of a compound that is condensed at 298.15 K: for the
                 // standard state, the liquid or solid from the gas and an estimated vaporization
                 // (and fusion).
-                let condensed_listed = names.iter().any(|n| {
-                    table.resolve(&spec_for(n, Some(Phase::Liquid))).is_ok() || table.resolve(&spec_for(n, Some(Phase::Solid))).is_ok()
-                });
-                if phase == DefaultPhase::Standard && r.phase == Phase::Gas && !condensed_listed {
+                let condensed_listed = || {
+                    names.iter().any(|n| {
+                        table.resolve(&spec_for(n, Some(Phase::Liquid))).is_ok() || table.resolve(&spec_for(n, Some(Phase::Solid))).is_ok()
+                    })
+                };
+                if phase == DefaultPhase::Standard && r.phase == Phase::Gas && !condensed_listed() {
                     if let Ok(e) = estimate() {
                         let (state, why) = e.state_at_298();
                         if state != Phase::Gas {
-                            return condensed_from_gas(&r, &e, name, state, &why);
+                            return condensed_from_gas(&r, e, name, state, &why);
                         }
                     }
                 }
@@ -376,7 +373,7 @@ fn by_structure(
             // boiling points say it can be one at 298.15 K; a permanent gas (H2, CO2, ethylene)
             // in a liquid-phase case stays a gas, with a note.
             return match estimate() {
-                Ok(e) if e.tb_k > T_REF_K && tabulated.phase == Phase::Gas => condensed_from_gas(&tabulated, &e, name, asked, "asked for"),
+                Ok(e) if e.tb_k > T_REF_K && tabulated.phase == Phase::Gas => condensed_from_gas(&tabulated, e, name, asked, "asked for"),
                 _ => Ok(fallback(tabulated, smiles, phase)),
             };
         }
@@ -386,7 +383,7 @@ fn by_structure(
     }
     // Estimate.
     let shown = format!("{smiles}({})", phase.phase().map_or("standard", |p| p.tag()));
-    let e = estimate().map_err(|e| ResolveError::NotEstimable {
+    let e = estimate().as_ref().map_err(|e| ResolveError::NotEstimable {
         species: shown.clone(),
         reason: e.to_string(),
     })?;

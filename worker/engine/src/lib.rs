@@ -15,6 +15,7 @@
 //! - [`species`]: the bundled data table, polynomial models and species resolution.
 //! - [`smiles`]: SMILES structures: molecular graphs, formulas and canonical identity.
 //! - [`names`]: compounds by name and CAS number, with melting and boiling points.
+//! - [`benson`]: Benson second-order group additivity for ideal-gas species without data.
 //! - [`joback`]: Joback & Reid group-contribution estimates for species without data.
 //! - [`structures`]: SMILES species in equations: bundled structures and estimation.
 //! - [`thermo`]: temperature grids and reaction properties (ΔrH°, ΔrS°, ΔrG°, log10 K).
@@ -23,6 +24,7 @@
 //! - [`routes`]: the steps of each route rolled up, and the routes of a batch ranked.
 
 pub mod balance;
+pub mod benson;
 pub mod elements;
 pub mod equation;
 pub mod formula;

@@ -996,20 +996,22 @@ impl Molecule {
         None
     }
 
+    /// What ranking starts from: element, isotope, charge, hydrogens, valence, degree.
+    fn invariant(&self, i: usize) -> u64 {
+        let a = &self.atoms[i];
+        ((a.element as u64) << 48)
+            | ((a.isotope.unwrap_or(0) as u64) << 36)
+            | (((a.charge as i64 + 128) as u64) << 28)
+            | ((a.hydrogens as u64) << 20)
+            | ((a.valence as u64) << 12)
+            | (self.degree(i) as u64).min(4095)
+    }
+
     /// Canonical ranks 0..n: equal for no two atoms, and the same for any atom order of one graph
     /// (up to automorphism, which leaves the key unchanged).
     pub fn canonical_ranks(&self) -> Vec<u32> {
         let n = self.atoms.len();
-        let invariant = |i: usize| -> u64 {
-            let a = &self.atoms[i];
-            ((a.element as u64) << 48)
-                | ((a.isotope.unwrap_or(0) as u64) << 36)
-                | (((a.charge as i64 + 128) as u64) << 28)
-                | ((a.hydrogens as u64) << 20)
-                | ((a.valence as u64) << 12)
-                | (self.degree(i) as u64).min(4095)
-        };
-        let keys: Vec<u64> = (0..n).map(invariant).collect();
+        let keys: Vec<u64> = (0..n).map(|i| self.invariant(i)).collect();
         let mut rank = ranks_from_keys(&keys);
         // Scratch buffers live per thread so a batch does not allocate them per molecule.
         thread_local! {
@@ -1022,9 +1024,27 @@ impl Molecule {
         rank
     }
 
-    fn rank_with(&self, rank: &mut [u32], scratch: &mut Refiner) {
+    /// Symmetry classes (atoms no invariant of the graph tells apart: the orbits of its
+    /// automorphisms for chemical graphs) and the number of automorphisms of the heavy-atom graph
+    /// (hydrogens as counts), as the product of the orbit sizes met while individualizing atoms
+    /// one by one — exact where refinement finds the orbits.
+    pub fn symmetry(&self) -> (Vec<u32>, f64) {
+        let n = self.atoms.len();
+        let mut scratch = Refiner::default();
+        let keys: Vec<u64> = (0..n).map(|i| self.invariant(i)).collect();
+        let mut rank = ranks_from_keys(&keys);
+        refine(self, &mut rank, &mut scratch);
+        let classes = rank.clone();
+        let automorphisms = self.rank_with(&mut rank, &mut scratch);
+        (classes, automorphisms)
+    }
+
+    /// Ranks until every atom has its own; returns the product of the sizes of the classes split
+    /// on the way (the automorphism count of [`Molecule::symmetry`]).
+    fn rank_with(&self, rank: &mut [u32], scratch: &mut Refiner) -> f64 {
         let n = rank.len();
         let mut counts = std::mem::take(&mut scratch.counts);
+        let mut automorphisms = 1.0;
         loop {
             refine(self, rank, scratch);
             counts.clear();
@@ -1035,7 +1055,7 @@ impl Molecule {
             // Tied leaves of one parent (the methyls of a t-butyl, the F of a CF3) are swapped by
             // an automorphism: give them consecutive ranks in input order, no refinement needed
             // (their parent's class holds only that parent, or the class would span parents).
-            if self.split_leaf_ties(rank, &counts, &mut scratch.leaf) {
+            if self.split_leaf_ties(rank, &counts, &mut scratch.leaf, &mut automorphisms) {
                 counts.clear();
                 counts.resize(n, 0);
                 for &r in rank.iter() {
@@ -1047,6 +1067,7 @@ impl Molecule {
             let Some(tied) = (0..n).find(|&r| counts[r] > 1) else {
                 break;
             };
+            automorphisms *= counts[tied] as f64;
             let chosen = (0..n).find(|&i| rank[i] as usize == tied).expect("a tied rank has atoms");
             for (i, r) in rank.iter_mut().enumerate() {
                 if *r as usize == tied && i != chosen {
@@ -1055,10 +1076,12 @@ impl Molecule {
             }
         }
         scratch.counts = counts;
+        automorphisms
     }
 
-    /// Split every tied class made only of leaves on one parent; true when any was split.
-    fn split_leaf_ties(&self, rank: &mut [u32], counts: &[u32], parent: &mut Vec<u32>) -> bool {
+    /// Split every tied class made only of leaves on one parent; true when any was split. Each
+    /// split class of m leaves multiplies `automorphisms` by m!.
+    fn split_leaf_ties(&self, rank: &mut [u32], counts: &[u32], parent: &mut Vec<u32>, automorphisms: &mut f64) -> bool {
         const UNSET: u32 = u32::MAX;
         const MIXED: u32 = u32::MAX - 1;
         let n = rank.len();
@@ -1090,6 +1113,7 @@ impl Molecule {
             if splits(c) {
                 *r = c as u32 + offset[c];
                 offset[c] += 1;
+                *automorphisms *= offset[c] as f64;
             }
         }
         true

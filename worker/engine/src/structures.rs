@@ -448,11 +448,15 @@ fn condensed_from_gas(gas: &Resolved, e: &Estimate, name: &str, state: Phase, wh
         origin.push(Origin::Estimated {
             method: format!("enthalpy of fusion from {} at Tm ({})", joback::METHOD, e.tm_source),
         });
-        sigma2 += joback::FUSION_SIGMA_KJ_PER_MOL.powi(2);
+        sigma2 += f.sigma_kj_per_mol().powi(2);
         note.push_str(&format!(
             "; solid = liquid − ΔfusH {:.1} kJ/mol (Tm {:.0} K), solid Cp taken as the liquid's",
             f.dhfus_kj_per_mol, f.tm_k
         ));
+        if let Some(n) = f.zwitterion_note() {
+            note.push_str("; ");
+            note.push_str(&n);
+        }
         let mut rivals = gas.segments.clone();
         rivals.push(liquid);
         (f.solid_segment(&liquid, cp_l), rivals)
@@ -526,9 +530,31 @@ mod tests {
 
     #[test]
     fn unknown_structures_are_estimated_with_uncertainty() {
+        // Ethyl dodecanoate: every group has a Benson value; σ by benson::sigma: base 4, 0.4
+        // per heavy atom (16): √(16 + 6.4²) = 7.55.
         let r = resolve("CCCCCCCCCCCC(=O)OCC", DefaultPhase::Gas);
-        assert!(matches!(&r.origin[0], Origin::Estimated { .. }));
-        assert!(r.dhf_uncertainty_kj_per_mol.unwrap() > 10.0);
+        assert!(
+            matches!(&r.origin[0], Origin::Estimated { method } if method.starts_with("Benson")),
+            "{:?}",
+            r.origin
+        );
+        assert!(
+            (r.dhf_uncertainty_kj_per_mol.unwrap() - 7.55).abs() < 0.01,
+            "{:?}",
+            r.dhf_uncertainty_kj_per_mol
+        );
+        // A thioether has no Benson groups in the carried tables: Joback.
+        let r = resolve("CCSCC", DefaultPhase::Gas);
+        assert!(
+            matches!(&r.origin[0], Origin::Estimated { method } if method.starts_with("Joback")),
+            "{:?}",
+            r.origin
+        );
+        assert!(
+            r.notes.iter().any(|n| n.contains("ideal gas by Joback (no Benson group for S")),
+            "{:?}",
+            r.notes
+        );
         let r = resolve("CC(C)(C)OC", DefaultPhase::Standard);
         assert_eq!(r.phase, Phase::Liquid, "MTBE boils at 328 K");
         assert!(resolve_smiles(table(), bundled(), "CS(=O)C", 0, DefaultPhase::Gas).is_err());

@@ -45,8 +45,13 @@ fn estimated_species_are_counted_and_named() {
         .find(|t| t.species.resolved.label.contains("propyl acetate") || t.species.resolved.label.starts_with("CCCOC(C)=O"))
         .unwrap_or_else(|| panic!("{}", r.balanced_equation));
     assert!(matches!(ester.species.resolved.origin[0], Origin::Estimated { .. }));
-    assert!(ester.species.resolved.source_line().contains("Joback"));
-    assert!(ester.species.resolved.dhf_uncertainty_kj_per_mol.unwrap() > 10.0);
+    // Its ideal gas is Benson's (every group has a value), its liquid through Joback's Tb, Tc.
+    assert!(
+        ester.species.resolved.source_line().contains("Benson"),
+        "{}",
+        ester.species.resolved.source_line()
+    );
+    assert!(ester.species.resolved.dhf_uncertainty_kj_per_mol.unwrap() > 4.0);
     // Ethyl acetate, written as SMILES, is the bundled ChemSep liquid by structure, not an estimate.
     let e = s.screen_with("CCOC(C)=O.O>>CC(=O)O.CCO", DefaultPhase::Liquid).unwrap();
     assert_eq!(e.estimated_species, 1, "{}", e.balanced_equation);

@@ -7,7 +7,10 @@
    uncertainty rules for Joback estimates (joback.rs): it is the rule-setting set.
 2. worker/engine/tests/reference/crc_hfg.tsv: the CRC Handbook gas-phase values shipped in
    `chemicals` (heat_capacity.CRC_standard_data, 'Hfg'), for molecules not in set 1. It was not
-   looked at while choosing the rules: the held-out set the engine's coverage test uses.
+   looked at while choosing the Joback rules: the held-out set of the Joback coverage test. For
+   Benson's σ rules its rows with an even CAS check digit join the rule-setting set; the rows
+   with an odd one are Benson's held-out set. S°(g) from the same table checks Benson's
+   entropies (symmetry numbers, optical isomers).
 
 Structures: the SMILES chemicals' identifier database gives for the CAS number. Kept: neutral,
 closed-shell molecules of C, H, N, O, S, F, Cl, Br, I with a carbon and 2+ heavy atoms, whose
@@ -88,8 +91,9 @@ def write(path, source, rows):
     with path.open("w") as out:
         out.write(f"# {path.name} - written by scripts/gen_hfg_reference.py; do not edit by hand.\n")
         out.write(f"# {source}, as bundled in chemicals {chemicals.__version__}; SMILES from chemicals' identifier database by CAS.\n")
-        out.write("# Gas-phase standard enthalpy of formation at 298.15 K, kJ/mol.\n")
-        out.write("cas\tname\tsmiles\tdhf_gas_kj_per_mol\n")
+        out.write("# Gas-phase standard enthalpy of formation at 298.15 K, kJ/mol; standard entropy of the ideal gas\n")
+        out.write("# at 298.15 K and 1 bar, J/(mol K), where the source has one (empty otherwise).\n")
+        out.write("cas\tname\tsmiles\tdhf_gas_kj_per_mol\ts_gas_j_per_mol_k\n")
         for r in rows:
             out.write("\t".join(r) + "\n")
     print(f"wrote {len(rows)} molecules to {path.relative_to(ROOT)}")
@@ -105,7 +109,7 @@ def main():
         if smi is None or parse_formula(f[col["Formula"]]) != comp:
             continue
         seen.add(f[col["CAS"]])
-        atct.append((f[col["CAS"]], f[col["Chemical"]], smi, f"{float(f[col['Hfg']]) / 1000:.3f}"))
+        atct.append((f[col["CAS"]], f[col["Chemical"]], smi, f"{float(f[col['Hfg']]) / 1000:.3f}", ""))
     write(REF / "atct_hfg.tsv", "Active Thermochemical Tables 1.112, gas phase (rule-setting set)", atct)
     crc = []
     d = heat_capacity.CRC_standard_data
@@ -115,8 +119,13 @@ def main():
         smi, comp = structure(cas)
         if smi is None:
             continue
-        crc.append((cas, row["Chemical"], smi, f"{row['Hfg'] / 1000:.3f}"))
-    write(REF / "crc_hfg.tsv", "CRC Handbook of Chemistry and Physics gas-phase values (held-out set)", crc)
+        s0g = "" if row["S0g"] != row["S0g"] else f"{row['S0g']:.2f}"
+        crc.append((cas, row["Chemical"], smi, f"{row['Hfg'] / 1000:.3f}", s0g))
+    write(
+        REF / "crc_hfg.tsv",
+        "CRC Handbook of Chemistry and Physics gas-phase values (held out for Joback; for Benson, rows with an even CAS check digit join the rule-setting set and odd ones are held out)",
+        crc,
+    )
 
 
 if __name__ == "__main__":

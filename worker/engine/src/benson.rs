@@ -71,6 +71,8 @@ const REJECTED: [&str; 1] = ["C[d](CN)2"];
 /// Values of one group or correction: ΔfH° kJ/mol, S° J/(mol·K), Cp J/(mol·K) at [`CP_T_K`].
 #[derive(Clone, Debug, PartialEq)]
 struct Values {
+    /// A ring-strain row (its S° and Cp are not zero when missing, unlike a gauche's).
+    strain: bool,
     dhf: f64,
     s: Option<f64>,
     cp: [Option<f64>; 7],
@@ -119,6 +121,7 @@ impl Library {
                     lib.values.insert(
                         name,
                         Values {
+                            strain: kind == "strain",
                             dhf,
                             s: num(&row, "s_j_per_mol_k")?,
                             cp,
@@ -298,7 +301,12 @@ impl Benson {
             add(name, n);
         }
         let (strain, ring_notes) = ring_strain(m, &kinds)?;
-        for name in strain {
+        // Where a listed ring's row has no S° or Cp, its carbocycle's stand in.
+        let mut stand_in: Vec<(String, &'static str)> = Vec::new();
+        for (name, carbocycle) in strain {
+            if let Some(c) = carbocycle {
+                stand_in.push((name.clone(), c));
+            }
             add(name, 1.0);
         }
         widened.extend(ring_notes);
@@ -352,17 +360,29 @@ impl Benson {
             if v.thin {
                 thin += n;
             }
-            // Gauche, cis and similar corrections carry ΔfH° only: their S° and Cp are zero.
-            let is_group = g.contains('(');
-            match v.s {
+            // Gauche, cis and similar corrections carry ΔfH° only: their S° and Cp are zero. A
+            // ring row without them takes its carbocycle's.
+            let has_sc = |x: &Values| x.s.is_some() && x.cp.iter().take(6).all(Option::is_some);
+            let sc = if v.strain && !has_sc(v) {
+                stand_in
+                    .iter()
+                    .find(|(r, _)| r == g)
+                    .and_then(|(_, c)| lib.values.get(*c))
+                    .filter(|c| has_sc(c))
+                    .unwrap_or(v)
+            } else {
+                v
+            };
+            let needed = g.contains('(') || v.strain;
+            match sc.s {
                 Some(x) => s += n * x,
-                None if is_group => no_s.push(g.clone()),
+                None if needed => no_s.push(g.clone()),
                 None => {}
             }
-            for (sum, value) in cp.iter_mut().zip(&v.cp).take(6) {
+            for (sum, value) in cp.iter_mut().zip(&sc.cp).take(6) {
                 match value {
                     Some(x) => *sum += n * x,
-                    None if is_group => {
+                    None if needed => {
                         no_cp.push(g.clone());
                         break;
                     }
@@ -957,7 +977,8 @@ fn hetero_pairs(m: &Molecule) -> usize {
 
 /// Ring-strain corrections, one per smallest ring (benzene rings have none), and notes for the
 /// rings whose value is borrowed or whose system is fused.
-fn ring_strain(m: &Molecule, kinds: &[Kind]) -> Result<(Vec<String>, Vec<String>), BensonError> {
+#[allow(clippy::type_complexity)]
+fn ring_strain(m: &Molecule, kinds: &[Kind]) -> Result<(Vec<(String, Option<&'static str>)>, Vec<String>), BensonError> {
     let mut names = Vec::new();
     let mut notes = Vec::new();
     let rings = m.rings();
@@ -1043,40 +1064,43 @@ fn ring_strain(m: &Molecule, kinds: &[Kind]) -> Result<(Vec<String>, Vec<String>
             (3, 0, 0, 0, 6) => Some("Trioxane-1,3,5"),
             _ => None,
         };
-        let name = match tabulated {
-            Some(t) => t.to_string(),
-            None => {
-                // Borrow the carbocycle of the same size and unsaturation (project rule).
-                let borrowed = match (doubles.len(), n) {
-                    (0, 3) => "Cyclopropane",
-                    (0, 4) => "Cyclobutane",
-                    (0, 5) => "Cyclopentane",
-                    (0, 6) => "Cyclohexane",
-                    (0, 7) => "Cycloheptane",
-                    (0, 8) => "Cyclooctane",
-                    (1, 3) => "Cyclopropene",
-                    (1, 4) => "Cyclobutene",
-                    (1, 5) => "Cyclopentene",
-                    (1, 6) => "Cyclohexene",
-                    (1, 7) => "Cycloheptene",
-                    (1, 8) => "cis-Cyclooctene",
-                    (2, 5) => "Cyclopentadiene",
-                    (2, 6) if conjugated => "Cyclohexadiene-1,3",
-                    (2, 6) => "Cyclohexadiene-1,4",
-                    _ => {
-                        return Err(BensonError::Missing(vec![format!(
-                            "the strain of a {n}-membered ring with {} double bond(s)",
-                            doubles.len()
-                        )]))
-                    }
-                };
+        // The carbocycle of the same size and unsaturation: the strain of a ring the table does
+        // not list, and the S° and Cp of a listed ring whose row has ΔfH° only (project rule,
+        // no source).
+        let carbocycle = match (doubles.len(), n) {
+            (0, 3) => Some("Cyclopropane"),
+            (0, 4) => Some("Cyclobutane"),
+            (0, 5) => Some("Cyclopentane"),
+            (0, 6) => Some("Cyclohexane"),
+            (0, 7) => Some("Cycloheptane"),
+            (0, 8) => Some("Cyclooctane"),
+            (1, 3) => Some("Cyclopropene"),
+            (1, 4) => Some("Cyclobutene"),
+            (1, 5) => Some("Cyclopentene"),
+            (1, 6) => Some("Cyclohexene"),
+            (1, 7) => Some("Cycloheptene"),
+            (1, 8) => Some("cis-Cyclooctene"),
+            (2, 5) => Some("Cyclopentadiene"),
+            (2, 6) if conjugated => Some("Cyclohexadiene-1,3"),
+            (2, 6) => Some("Cyclohexadiene-1,4"),
+            _ => None,
+        };
+        let name = match (tabulated, carbocycle) {
+            (Some(t), _) => t,
+            (None, Some(c)) => {
                 notes.push(format!(
-                    "ring strain of a {n}-membered heterocycle or ring ketone taken from {borrowed} (project rule, no source)"
+                    "ring strain of a {n}-membered heterocycle or ring ketone taken from {c} (project rule, no source)"
                 ));
-                borrowed.to_string()
+                c
+            }
+            (None, None) => {
+                return Err(BensonError::Missing(vec![format!(
+                    "the strain of a {n}-membered ring with {} double bond(s)",
+                    doubles.len()
+                )]))
             }
         };
-        names.push(name);
+        names.push((name.to_string(), carbocycle));
     }
     // Fused and bridged systems: a strain per smallest ring is an approximation.
     let shared = m

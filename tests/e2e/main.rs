@@ -658,6 +658,8 @@ fn phase_cases() -> Vec<thermosieve_queue::CaseInput> {
         case("tagged", "CCO{l}.O=O.O=O.O=O>>O=C=O.O=C=O.O{g}.O{g}.O{g}", Some("gas")),
         case("named", "ethanol(l) + 3 oxygen(g) -> 2 carbon dioxide(g) + 3 water(l)", None),
         case("salt", "[Na+].[OH-].Cl>>[Na+].[Cl-].O", None),
+        // Methyl nonanoate is in no bundled table: its ideal gas is Benson's estimate.
+        case("benson", &benson_burn(), Some("gas")),
         // A step charged at once (dosing time 0) that also carries an accumulated fraction: batch
         // means X_acc = 1, so MTSR = T_p + ΔT_ad whatever the fraction says.
         thermosieve_queue::CaseInput {
@@ -697,13 +699,28 @@ fn assert_batch_means_batch(cases: &DataFrame, path: &str) {
 /// −1235.384. Salt: NaOH(cr) + HCl(g) → NaCl(cr) + H2O(l) with NaOH(cr) −425.8 and NaCl(cr)
 /// −411.2 (CRC Handbook, as bundled in chemicals 1.5.2, `Hfs`), HCl(g) −92.17 (ATcT 1.112):
 /// −179.0 (the NASA records the engine uses differ from these by under 1 kJ/mol).
-const PHASE_EXPECTED: [(&str, f64, f64); 6] = [
+/// Methyl nonanoate + 14 O2 → 10 CO2 + 10 H2O, every species as SMILES.
+fn benson_burn() -> String {
+    format!(
+        "CCCCCCCCC(=O)OC{}>>{}{}",
+        ".O=O".repeat(14),
+        vec!["O=C=O"; 10].join("."),
+        ".O".repeat(10)
+    )
+}
+
+/// "benson": 10 × ΔfH°(CO2, g) −393.510 + 10 × ΔfH°(H2O, g) −241.826 (NASA Glenn, as bundled)
+/// − ΔfH°(methyl nonanoate, g) −556.807 (Benson's groups: pgradd 2.9.14's table sum in
+/// `worker/engine/tests/reference/benson_pgradd.tsv`) = −5796.553 kJ/mol. Joback would give a
+/// value 10 kJ/mol away, so a path that lost Benson's estimate fails.
+const PHASE_EXPECTED: [(&str, f64, f64); 7] = [
     ("gas", -1277.844, 0.6),
     ("liquid", -1367.393, 0.6),
     ("standard", -1367.393, 0.6),
     ("tagged", -1235.384, 0.6),
     ("named", -1367.393, 0.6),
     ("salt", -179.0, 1.5),
+    ("benson", -5796.553, 0.6),
 ];
 
 fn assert_phase_results(cases: &DataFrame, path: &str) {

@@ -1,10 +1,12 @@
-//! SMILES species on one core: parse + canonical identity + Joback estimate for molecules seen
-//! for the first time (the 1,489 PubChem molecules of `tests/reference/joback_thermo.tsv`), each
+//! SMILES species on one core: parse + canonical identity + estimate (Benson's groups for the
+//! ideal gas where they cover the molecule, Joback's for the rest and for Tb, Tc, Pc) for
+//! molecules seen for the first time (the 1,489 PubChem molecules of `tests/reference/joback_thermo.tsv`), each
 //! step alone, and reaction SMILES through a Screener whose cache already holds their species
 //! (the batch case: repeated species cost a hash lookup by text).
 
 use criterion::{criterion_group, criterion_main, Criterion, Throughput};
 use std::hint::black_box;
+use thermosieve_engine::benson::Benson;
 use thermosieve_engine::joback::Estimate;
 use thermosieve_engine::smiles::Molecule;
 use thermosieve_engine::structures::DefaultPhase;
@@ -51,14 +53,21 @@ fn bench(c: &mut Criterion) {
             }
         })
     });
-    g.bench_function("joback", |b| {
+    g.bench_function("benson", |b| {
+        b.iter(|| {
+            for m in &parsed {
+                black_box(Benson::of(m).ok());
+            }
+        })
+    });
+    g.bench_function("estimate_benson_and_joback", |b| {
         b.iter(|| {
             for m in &parsed {
                 black_box(Estimate::of(m).ok());
             }
         })
     });
-    g.bench_function("parse_identity_joback", |b| {
+    g.bench_function("parse_identity_estimate", |b| {
         b.iter(|| {
             for s in &smiles {
                 let m = Molecule::parse(black_box(s), 0).expect("parse");

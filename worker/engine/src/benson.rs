@@ -700,7 +700,12 @@ fn group_name(m: &Molecule, kinds: &[Kind], i: usize) -> String {
         if kinds[w] == Kind::Consumed && m.atoms[w].element == 8 && m.bonds[b].kekule_order == 2 && m.atoms[i].element == 6 {
             continue;
         }
-        let l = ligand_name(m, kinds, w);
+        let mut l = ligand_name(m, kinds, w);
+        // Benson's benzene groups name only the substituent: a ring neighbour that is a fusion
+        // carbon is still the ring's (Cb–(H) next to naphthalene's fusion, not a group of its own).
+        if kinds[i] == Kind::Cb && kinds[w] == Kind::Cbf && m.bonds[b].in_ring {
+            l = Kind::Cb.name();
+        }
         match ligands.iter_mut().find(|x| x.0 == l) {
             Some(x) => x.1 += 1,
             None => ligands.push((l.to_string(), 1)),
@@ -1120,9 +1125,10 @@ fn ring_strain(m: &Molecule, kinds: &[Kind]) -> Result<(Vec<(String, Option<&'st
 }
 
 /// σ of the molecule: automorphisms of the heavy-atom graph, times 3 for each terminal XH3 top,
-/// divided by 2 for each tetrahedral atom with three or four equal branches (the graph counts
-/// their mirror permutations, which no rotation makes). Exact for planar and chain molecules;
-/// an upper bound for some non-planar rings.
+/// divided by 2 at each pyramidal or tetrahedral atom whose equal branches the graph may swap
+/// by a mirror image only — every pattern of equal neighbours (counting H as one class) except
+/// two pairs, which a C2 rotation swaps (propane's CH2). Exact for chains and planar molecules;
+/// non-planar rings can be off by a factor of 2.
 fn symmetry_number(m: &Molecule, classes: &[u32], automorphisms: f64) -> f64 {
     let mut sigma = automorphisms;
     for (i, a) in m.atoms.iter().enumerate() {
@@ -1130,17 +1136,31 @@ fn symmetry_number(m: &Molecule, classes: &[u32], automorphisms: f64) -> f64 {
         if a.hydrogens == 3 && heavy == 1 {
             sigma *= 3.0;
         }
-        if heavy + a.hydrogens as usize == 4 && kbonds(m, i).all(|(_, o)| o == 1) {
-            let mut counts: Vec<(u32, usize)> = Vec::new();
-            for (w, _) in m.neighbours(i) {
-                match counts.iter_mut().find(|c| c.0 == classes[w]) {
-                    Some(c) => c.1 += 1,
-                    None => counts.push((classes[w], 1)),
-                }
+        let connections = heavy + a.hydrogens as usize;
+        let saturated = kbonds(m, i).all(|(_, o)| o == 1) && !a.aromatic;
+        // Tetrahedral carbon, or a pyramidal amine nitrogen (no π neighbour to flatten it).
+        let pyramidal = a.element == 7
+            && connections == 3
+            && m.neighbours(i)
+                .all(|(w, _)| kbonds(m, w).all(|(_, o)| o == 1) && !m.atoms[w].aromatic);
+        if !(saturated && (connections == 4 || pyramidal)) {
+            continue;
+        }
+        let mut counts: Vec<(u32, usize)> = Vec::new();
+        for (w, _) in m.neighbours(i) {
+            match counts.iter_mut().find(|c| c.0 == classes[w]) {
+                Some(c) => c.1 += 1,
+                None => counts.push((classes[w], 1)),
             }
-            if counts.iter().any(|c| c.1 >= 3) {
-                sigma /= 2.0;
-            }
+        }
+        let equal_heavy = counts.iter().any(|c| c.1 >= 2);
+        let mut pattern: Vec<usize> = counts.iter().map(|c| c.1).collect();
+        if a.hydrogens > 0 {
+            pattern.push(a.hydrogens as usize);
+        }
+        pattern.sort_unstable();
+        if equal_heavy && pattern != [2, 2] {
+            sigma /= 2.0;
         }
     }
     sigma.max(1.0)
@@ -1190,9 +1210,12 @@ mod tests {
     }
 
     #[test]
-    fn symmetry_numbers_of_textbook_molecules() {
-        // Benson (1976) Table 2.? style values: ethane 18, propane 18, benzene 12, toluene 6,
-        // acetone 18, neopentane 972 (common symmetry numbers of rotors and frames).
+    fn symmetry_numbers_by_hand() {
+        // σ = external (rotations of the rigid frame) × internal (each methyl top 3), counted
+        // by hand from the point groups: ethane D3d 6 × 3 = 18; propane C2v 2 × 3² = 18; benzene
+        // D6h 12; toluene 2 (ring flip about the C–CH3 axis with the methyl) × 3 = 6; acetone
+        // C2v 2 × 3² = 18; neopentane Td 12 × 3⁴ = 972; isobutane C3v 3 × 3³ = 81;
+        // 2-methylbutane C1 × 3³ = 27; isopropylamine Cs 1 × 3² = 9; trimethylamine C3v 3 × 3³ = 81.
         for (s, sigma) in [
             ("CC", 18.0),
             ("CCC", 18.0),
@@ -1200,6 +1223,10 @@ mod tests {
             ("Cc1ccccc1", 6.0),
             ("CC(C)=O", 18.0),
             ("CC(C)(C)C", 972.0),
+            ("CC(C)C", 81.0),
+            ("CCC(C)C", 27.0),
+            ("CC(C)N", 9.0),
+            ("CN(C)C", 81.0),
         ] {
             let m = Molecule::parse(s, 0).unwrap();
             let (classes, aut) = m.symmetry();

@@ -118,3 +118,65 @@ fn groups_and_values_match_pgradd() {
     assert!(failures.is_empty(), "{} unexplained:\n{}", failures.len(), failures.join("\n"));
     assert!(agree >= 300, "only {agree} molecules with the same groups");
 }
+
+/// pgradd's own documented examples (Benson's tables, as carried): the README computes ethane
+/// (`GetGroups('CC')` → {'C(C)(H)3': 2}, H/RT = −34.4280812417) and the unit test
+/// `pgradd/tests/test_SMILES_to_thermo_examples.py::test_BensonGA` ethylene oxide
+/// ({'C(C)(H)2(O)': 2, 'O(C)2': 1, 'Oxirane': 1}, H/RT = −21.09467743150278), both at 298.15 K.
+#[test]
+fn pgradd_documented_examples() {
+    let rt = 8.314462618e-3 * 298.15;
+    for (smiles, groups, h_rt) in [
+        ("CC", "C(C)(H)3 ×2", -34.4280812417),
+        ("C1CO1", "C(C)(O)(H)2 ×2, O(C)2, Oxirane", -21.09467743150278),
+    ] {
+        let b = Benson::of(&Molecule::parse(smiles, 0).unwrap()).unwrap();
+        assert_eq!(b.groups_text(), groups);
+        let want = h_rt * rt;
+        assert!(
+            (b.dhf_gas_kj_per_mol - want).abs() < 0.05,
+            "{smiles}: {} vs {want}",
+            b.dhf_gas_kj_per_mol
+        );
+    }
+}
+
+/// Hand sums of Benson's group values (Thermochemical Kinetics, 2nd ed., 1976, pp. 272–275, as
+/// carried by pgradd; kcal/mol and cal/(mol·K), × 4.184), with σ and optical isomers counted by
+/// hand, against the engine.
+#[test]
+fn hand_sums_of_bensons_tables() {
+    let r_cal = 1.987204;
+    let cases: [(&str, f64, f64); 4] = [
+        // Propane: 2 C(C)(H)3 + C(C)2(H)2 = 2(−10.20) − 4.93 = −25.33 kcal/mol;
+        // S = 2(30.41) + 9.42 − R ln 18 = 70.24 − 5.744 = 64.50 cal/(mol·K).
+        ("CCC", -25.33, 70.24 - r_cal * 18f64.ln()),
+        // 2-Methylbutane: 3 C(C)(H)3 + C(C)2(H)2 + C(C)3(H) + 1 gauche
+        // = 3(−10.20) − 4.93 − 1.90 + 0.80 = −36.63 kcal/mol;
+        // S = 3(30.41) + 9.42 − 12.07 − R ln 27 = 88.58 − 6.549 = 82.03 cal/(mol·K).
+        ("CCC(C)C", -36.63, 88.58 - r_cal * 27f64.ln()),
+        // 2-Butanol: 2 C(C)(H)3 + C(C)2(H)2 + C(C)2(O)(H) + O(C)(H), no gauche (its C–C bond
+        // joins two carbons that each carry two carbons) = 2(−10.20) − 4.93 − 7.2 − 37.9
+        // = −70.43 kcal/mol; S = 2(30.41) + 9.42 − 11.0 + 29.07
+        // − R ln 9 + R ln 2 (one stereocentre) = 88.31 − 4.366 + 1.377 = 85.32 cal/(mol·K).
+        ("CCC(C)O", -70.43, 88.31 - r_cal * 9f64.ln() + r_cal * 2f64.ln()),
+        // Acetone: 2 C(C)(H)3 (C(CO)(H)3 counted as C(C)(H)3) + CO(C)2 = 2(−10.20) − 31.4
+        // = −51.80 kcal/mol; S = 2(30.41) + 15.0 − R ln 18 = 75.82 − 5.744 = 70.08 cal/(mol·K).
+        ("CC(C)=O", -51.80, 75.82 - r_cal * 18f64.ln()),
+    ];
+    for (smiles, h_kcal, s_cal) in cases {
+        let b = Benson::of(&Molecule::parse(smiles, 0).unwrap()).unwrap();
+        assert!(
+            (b.dhf_gas_kj_per_mol - h_kcal * 4.184).abs() < 0.01,
+            "{smiles}: ΔfH° {} ({})",
+            b.dhf_gas_kj_per_mol,
+            b.groups_text()
+        );
+        assert!(
+            (b.s_gas_j_per_mol_k - s_cal * 4.184).abs() < 0.05,
+            "{smiles}: S° {} vs {}",
+            b.s_gas_j_per_mol_k,
+            s_cal * 4.184
+        );
+    }
+}

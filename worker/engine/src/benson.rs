@@ -23,6 +23,7 @@
 use crate::elements::Z;
 use crate::smiles::Molecule;
 use crate::species::{R, T_REF_K};
+use std::borrow::Cow;
 use std::collections::HashMap;
 use std::fmt::Write as _;
 use std::sync::OnceLock;
@@ -79,9 +80,28 @@ struct Values {
     thin: bool,
 }
 
+/// FNV-1a: the group names are short and trusted (bundled), so a fast non-keyed hash will do.
+#[derive(Default)]
+struct Fnv(u64);
+
+impl std::hash::Hasher for Fnv {
+    fn finish(&self) -> u64 {
+        self.0
+    }
+    fn write(&mut self, bytes: &[u8]) {
+        let mut h = if self.0 == 0 { 0xcbf2_9ce4_8422_2325 } else { self.0 };
+        for &b in bytes {
+            h = (h ^ b as u64).wrapping_mul(0x0100_0000_01b3);
+        }
+        self.0 = h;
+    }
+}
+
+type Map<V> = HashMap<String, V, std::hash::BuildHasherDefault<Fnv>>;
+
 struct Library {
-    values: HashMap<String, Values>,
-    remaps: HashMap<String, Vec<(f64, String)>>,
+    values: Map<Values>,
+    remaps: Map<Vec<(f64, String)>>,
 }
 
 fn library() -> &'static Library {
@@ -93,8 +113,8 @@ impl Library {
     fn parse(text: &str) -> Result<Library, String> {
         let t = crate::tsv::read(text, "benson_groups.tsv");
         let mut lib = Library {
-            values: HashMap::new(),
-            remaps: HashMap::new(),
+            values: Map::default(),
+            remaps: Map::default(),
         };
         let num = |row: &crate::tsv::Row, c: &str| -> Result<Option<f64>, String> {
             let v = row.get(c)?.trim();
@@ -146,6 +166,17 @@ impl Library {
     }
 }
 
+impl Library {
+    /// The library's own copy of `name` (so it lives as long as the library) when the name has
+    /// a value or a remap.
+    fn key(&'static self, name: &str) -> Option<&'static str> {
+        self.values
+            .get_key_value(name)
+            .map(|(k, _)| k.as_str())
+            .or_else(|| self.remaps.get_key_value(name).map(|(k, _)| k.as_str()))
+    }
+}
+
 /// A group name in the one spelling this module uses: the centre, then each distinct ligand in
 /// parentheses (sorted by byte order, H last) with its count when above one. Names that are not
 /// of that shape (`AlkaneGauche`, `Cyclohexane`) are kept as they are.
@@ -157,7 +188,7 @@ pub fn canonical(name: &str) -> Option<String> {
         return Some(name.to_string());
     }
     let centre = &name[..open];
-    let mut ligands: Vec<(String, u32)> = Vec::new();
+    let mut ligands: Vec<(&str, u32)> = Vec::new();
     let mut rest = &name[open..];
     while !rest.is_empty() {
         let inner_end = rest.find(')')?;
@@ -181,22 +212,30 @@ pub fn canonical(name: &str) -> Option<String> {
         }
         match ligands.iter_mut().find(|l| l.0 == inner) {
             Some(l) => l.1 += n,
-            None => ligands.push((inner.to_string(), n)),
+            None => ligands.push((inner, n)),
         }
     }
     Some(render(centre, &mut ligands))
 }
 
-fn render(centre: &str, ligands: &mut [(String, u32)]) -> String {
-    ligands.sort_by(|a, b| (a.0 == "H", a.0.as_str()).cmp(&(b.0 == "H", b.0.as_str())));
-    let mut s = centre.to_string();
+fn render(centre: &str, ligands: &mut [(&str, u32)]) -> String {
+    let mut s = String::new();
+    render_into(&mut s, centre, ligands);
+    s
+}
+
+fn render_into(s: &mut String, centre: &str, ligands: &mut [(&str, u32)]) {
+    ligands.sort_unstable_by(|a, b| (a.0 == "H", a.0).cmp(&(b.0 == "H", b.0)));
+    s.clear();
+    s.push_str(centre);
     for (l, n) in ligands.iter() {
-        let _ = write!(s, "({l})");
+        s.push('(');
+        s.push_str(l);
+        s.push(')');
         if *n > 1 {
             let _ = write!(s, "{n}");
         }
     }
-    s
 }
 
 /// Why a molecule has no Benson estimate.
@@ -266,7 +305,7 @@ impl Kind {
 #[derive(Clone, Debug, PartialEq)]
 pub struct Benson {
     /// Every group and correction after pgradd's remaps, sorted by name, with its count.
-    pub contributions: Vec<(String, f64)>,
+    pub contributions: Vec<(&'static str, f64)>,
     pub dhf_gas_kj_per_mol: f64,
     /// Σ group and correction S°, before symmetry and optical isomers.
     pub s_intrinsic_j_per_mol_k: f64,
@@ -286,59 +325,68 @@ impl Benson {
     /// [`BensonError`] when an atom is outside the scheme or a group or correction has no value.
     pub fn of(m: &Molecule) -> Result<Benson, BensonError> {
         let kinds = atom_kinds(m)?;
-        let mut terms: Vec<(String, f64)> = Vec::new();
-        let mut add = |name: String, n: f64| match terms.iter_mut().find(|t| t.0 == name) {
+        let lib = library();
+        // Names as the library spells them (borrowed from it); an unknown one is kept owned for
+        // the error.
+        let mut terms: Vec<(Cow<'static, str>, f64)> = Vec::with_capacity(m.atoms.len());
+        let mut add = |name: Cow<'static, str>, n: f64| match terms.iter_mut().find(|t| t.0 == name) {
             Some(t) => t.1 += n,
             None => terms.push((name, n)),
         };
+        let mut buf = String::with_capacity(32);
         for i in 0..m.atoms.len() {
             if kinds[i] != Kind::Consumed {
-                add(group_name(m, &kinds, i), 1.0);
+                group_name_into(&mut buf, m, &kinds, i);
+                add(lib.key(&buf).map_or_else(|| Cow::Owned(buf.clone()), Cow::Borrowed), 1.0);
             }
         }
         let mut widened = Vec::new();
         for (name, n) in corrections(m, &kinds) {
-            add(name, n);
+            add(Cow::Borrowed(name), n);
         }
         let (strain, ring_notes) = ring_strain(m, &kinds)?;
         // Where a listed ring's row has no S° or Cp, its carbocycle's stand in.
-        let mut stand_in: Vec<(String, &'static str)> = Vec::new();
+        let mut stand_in: Vec<(&'static str, &'static str)> = Vec::new();
         for (name, carbocycle) in strain {
             if let Some(c) = carbocycle {
-                stand_in.push((name.clone(), c));
+                stand_in.push((name, c));
             }
-            add(name, 1.0);
+            add(Cow::Borrowed(name), 1.0);
         }
         widened.extend(ring_notes);
-        let lib = library();
         // Remaps, then values; try the short Benson names for aromatic and olefinic centres.
-        let mut expanded: Vec<(String, f64)> = Vec::new();
+        let mut expanded: Vec<(&'static str, f64)> = Vec::with_capacity(terms.len());
         let mut missing = Vec::new();
-        for (name, n) in terms {
+        for (name, n) in &terms {
             // pgradd's remaps, except those that count an amide or imide nitrogen as an amine:
             // its scheme maps N(CO)(H)2 to N(C)(H)2 although Benson lists N(CO)(H)2, which
             // costs amides 80 kJ/mol, and N(C)2(CO) to N(C)3, which costs DMF 85 kJ/mol. Those
             // keep their own value or, without one, leave the molecule to Joback.
             let amide_n = name.starts_with("N(") && name.contains("(CO)");
-            let resolved: Vec<(f64, String)> = match lib.remaps.get(&name) {
-                Some(t) if !amide_n => t.clone(),
-                _ => vec![(1.0, name)],
+            let one = [(1.0, name.as_ref())];
+            let remapped: Vec<(f64, &str)>;
+            let resolved: &[(f64, &str)] = match lib.remaps.get(name.as_ref()) {
+                Some(t) if !amide_n => {
+                    remapped = t.iter().map(|(f, g)| (*f, g.as_str())).collect();
+                    &remapped
+                }
+                _ => &one,
             };
-            for (f, g) in resolved {
-                let g = if REJECTED.contains(&g.as_str()) {
+            for &(f, g) in resolved {
+                let key = if REJECTED.contains(&g) {
                     missing.push(format!("{g} (value rejected on the rule-setting set)"));
                     continue;
-                } else if lib.values.contains_key(&g) {
-                    g
-                } else if let Some(short) = short_name(&g).filter(|s| lib.values.contains_key(s)) {
-                    short
+                } else if let Some((k, _)) = lib.values.get_key_value(g) {
+                    k.as_str()
+                } else if let Some((k, _)) = short_name(g).and_then(|s| lib.values.get_key_value(s.as_str())) {
+                    k.as_str()
                 } else {
-                    missing.push(g);
+                    missing.push(g.to_string());
                     continue;
                 };
-                match expanded.iter_mut().find(|e| e.0 == g) {
+                match expanded.iter_mut().find(|e| e.0 == key) {
                     Some(e) => e.1 += f * n,
-                    None => expanded.push((g, f * n)),
+                    None => expanded.push((key, f * n)),
                 }
             }
         }
@@ -347,7 +395,7 @@ impl Benson {
             missing.dedup();
             return Err(BensonError::Missing(missing));
         }
-        expanded.sort_by(|a, b| a.0.cmp(&b.0));
+        expanded.sort_unstable_by(|a, b| a.0.cmp(b.0));
         let mut dhf = 0.0;
         let mut s = 0.0;
         let mut cp = [0.0; 7];
@@ -355,7 +403,7 @@ impl Benson {
         let mut no_cp = Vec::new();
         let mut thin = 0.0;
         for (g, n) in &expanded {
-            let v = &lib.values[g];
+            let v = &lib.values[*g];
             dhf += n * v.dhf;
             if v.thin {
                 thin += n;
@@ -376,14 +424,14 @@ impl Benson {
             let needed = g.contains('(') || v.strain;
             match sc.s {
                 Some(x) => s += n * x,
-                None if needed => no_s.push(g.clone()),
+                None if needed => no_s.push(*g),
                 None => {}
             }
             for (sum, value) in cp.iter_mut().zip(&sc.cp).take(6) {
                 match value {
                     Some(x) => *sum += n * x,
                     None if needed => {
-                        no_cp.push(g.clone());
+                        no_cp.push(*g);
                         break;
                     }
                     None => {}
@@ -404,12 +452,12 @@ impl Benson {
             return Err(BensonError::Missing(v));
         }
         let (classes, automorphisms) = m.symmetry();
-        let symmetry_number = symmetry_number(m, &classes, automorphisms);
-        let optical_isomers = 2f64.powi(chiral_centres(m, &kinds, &classes) as i32);
+        let symmetry_number = symmetry_number(m, classes, automorphisms);
+        let optical_isomers = 2f64.powi(chiral_centres(m, &kinds, classes) as i32);
         let heavy = m.heavy_atom_count() as f64;
         let crowding: f64 = expanded
             .iter()
-            .filter(|(g, _)| g.ends_with("Gauche") || g == "Ortho")
+            .filter(|(g, _)| g.ends_with("Gauche") || *g == "Ortho")
             .map(|(_, n)| n)
             .sum();
         let pairs = hetero_pairs(m) as f64;
@@ -693,8 +741,8 @@ fn ligand_name(m: &Molecule, kinds: &[Kind], w: usize) -> &'static str {
     }
 }
 
-fn group_name(m: &Molecule, kinds: &[Kind], i: usize) -> String {
-    let mut ligands: Vec<(String, u32)> = Vec::new();
+fn group_name_into(buf: &mut String, m: &Molecule, kinds: &[Kind], i: usize) {
+    let mut ligands: Vec<(&str, u32)> = Vec::with_capacity(5);
     for (w, b) in m.neighbours(i) {
         // A carbonyl oxygen is part of its CO centre, not a ligand.
         if kinds[w] == Kind::Consumed && m.atoms[w].element == 8 && m.bonds[b].kekule_order == 2 && m.atoms[i].element == 6 {
@@ -708,13 +756,13 @@ fn group_name(m: &Molecule, kinds: &[Kind], i: usize) -> String {
         }
         match ligands.iter_mut().find(|x| x.0 == l) {
             Some(x) => x.1 += 1,
-            None => ligands.push((l.to_string(), 1)),
+            None => ligands.push((l, 1)),
         }
     }
     if m.atoms[i].hydrogens > 0 {
-        ligands.push(("H".into(), m.atoms[i].hydrogens as u32));
+        ligands.push(("H", m.atoms[i].hydrogens as u32));
     }
-    render(kinds[i].name(), &mut ligands)
+    render_into(buf, kinds[i].name(), &mut ligands)
 }
 
 /// Carbon neighbours of atom `i` through single (non-aromatic) bonds.
@@ -744,15 +792,15 @@ fn tertiary_from(m: &Molecule, kinds: &[Kind], c: usize, from: usize) -> bool {
 /// gauche, ditertiary ether — by pgradd's patterns (scheme.yaml `other_descriptors`) with the
 /// double-bond stereo unspecified, each pattern counted once per distinct set of atoms; and
 /// Benson's ortho correction, one per pair of adjacent ring carbons that both carry a carbon.
-fn corrections(m: &Molecule, kinds: &[Kind]) -> Vec<(String, f64)> {
-    let mut out: Vec<(String, f64)> = Vec::new();
-    let mut add = |name: &str, n: f64| {
+fn corrections(m: &Molecule, kinds: &[Kind]) -> Vec<(&'static str, f64)> {
+    let mut out: Vec<(&'static str, f64)> = Vec::new();
+    let mut add = |name: &'static str, n: f64| {
         if n == 0.0 {
             return;
         }
         match out.iter_mut().find(|o| o.0 == name) {
             Some(o) => o.1 += n,
-            None => out.push((name.to_string(), n)),
+            None => out.push((name, n)),
         }
     };
     for b in &m.bonds {
@@ -881,30 +929,31 @@ fn alkane_gauche(m: &Molecule, kinds: &[Kind]) -> f64 {
         (3, 4, 1, 2, 4.0),
         (4, 4, 2, 2, 6.0),
     ];
-    let mut total = 0.0;
-    for (n1, n2, o1, o2, gauche) in PATTERNS {
-        let mut sets = Vec::new();
-        for b in &m.bonds {
-            for (c1, c2) in [(b.a, b.b), (b.b, b.a)] {
-                if b.kekule_order != 1 || kinds[c1] != Kind::C || kinds[c2] != Kind::C || single_c(m, c1) != n1 || single_c(m, c2) != n2 {
-                    continue;
-                }
-                let side1: Vec<usize> = single_c_of(m, c1).filter(|&w| w != c2).collect();
-                let side2: Vec<usize> = single_c_of(m, c2).filter(|&w| w != c1).collect();
-                for p1 in picks(m, &side1, 1, o1, &[c1, c2]) {
-                    let mut taken = vec![c1, c2];
-                    taken.extend(&p1);
-                    for p2 in picks(m, &side2, 1, o2, &taken) {
-                        let mut set = taken.clone();
-                        set.extend(p2);
-                        sets.push(set);
-                    }
+    let mut sets: [Vec<Vec<usize>>; 5] = Default::default();
+    for b in &m.bonds {
+        if b.kekule_order != 1 || kinds[b.a] != Kind::C || kinds[b.b] != Kind::C {
+            continue;
+        }
+        for (c1, c2) in [(b.a, b.b), (b.b, b.a)] {
+            let (n1, n2) = (single_c(m, c1), single_c(m, c2));
+            let Some(k) = PATTERNS.iter().position(|p| p.0 == n1 && p.1 == n2) else {
+                continue;
+            };
+            let (_, _, o1, o2, _) = PATTERNS[k];
+            let side1: Vec<usize> = single_c_of(m, c1).filter(|&w| w != c2).collect();
+            let side2: Vec<usize> = single_c_of(m, c2).filter(|&w| w != c1).collect();
+            for p1 in picks(m, &side1, 1, o1, &[c1, c2]) {
+                let mut taken = vec![c1, c2];
+                taken.extend(&p1);
+                for p2 in picks(m, &side2, 1, o2, &taken) {
+                    let mut set = taken.clone();
+                    set.extend(p2);
+                    sets[k].push(set);
                 }
             }
         }
-        total += gauche * count_sets(&mut sets) as f64;
     }
-    total
+    PATTERNS.iter().zip(sets.iter_mut()).map(|(p, s)| p.4 * count_sets(s) as f64).sum()
 }
 
 /// Alkene gauche (pgradd's two patterns): an sp3 carbon with three (four) carbons, one (two) of
@@ -952,30 +1001,30 @@ fn hetero_pairs(m: &Molecule) -> usize {
     let hetero = |k: usize| {
         matches!(m.atoms[k].element, 7 | 8) && !(m.atoms[k].element == 8 && m.degree(k) == 1 && kbonds(m, k).any(|(_, o)| o == 2))
     };
+    let sites: Vec<usize> = (0..m.atoms.len()).filter(|&k| hetero(k)).collect();
+    if sites.len() < 2 {
+        return 0;
+    }
     let mut n = 0;
-    for a in 0..m.atoms.len() {
-        if !hetero(a) {
-            continue;
-        }
-        // Atoms at distance 2 and 3 from a, by breadth-first search.
-        let mut dist = vec![u8::MAX; m.atoms.len()];
-        dist[a] = 0;
-        let mut frontier = vec![a];
-        for d in 1..=3u8 {
-            let mut next = Vec::new();
-            for &v in &frontier {
-                for (w, _) in m.neighbours(v) {
-                    if dist[w] == u8::MAX {
-                        dist[w] = d;
-                        next.push(w);
-                    }
+    let mut near: Vec<(usize, u8)> = Vec::new();
+    for &a in &sites {
+        // Atoms within three bonds of a, with their distance (breadth-first, a short list).
+        near.clear();
+        near.push((a, 0));
+        let mut head = 0;
+        while head < near.len() {
+            let (v, d) = near[head];
+            head += 1;
+            if d == 3 {
+                continue;
+            }
+            for (w, _) in m.neighbours(v) {
+                if !near.iter().any(|&(x, _)| x == w) {
+                    near.push((w, d + 1));
                 }
             }
-            frontier = next;
         }
-        n += (a + 1..m.atoms.len())
-            .filter(|&b| hetero(b) && (dist[b] == 2 || dist[b] == 3))
-            .count();
+        n += near.iter().filter(|&&(b, d)| b > a && (d == 2 || d == 3) && hetero(b)).count();
     }
     n
 }
@@ -983,7 +1032,7 @@ fn hetero_pairs(m: &Molecule) -> usize {
 /// Ring-strain corrections, one per smallest ring (benzene rings have none), and notes for the
 /// rings whose value is borrowed or whose system is fused.
 #[allow(clippy::type_complexity)]
-fn ring_strain(m: &Molecule, kinds: &[Kind]) -> Result<(Vec<(String, Option<&'static str>)>, Vec<String>), BensonError> {
+fn ring_strain(m: &Molecule, kinds: &[Kind]) -> Result<(Vec<(&'static str, Option<&'static str>)>, Vec<String>), BensonError> {
     let mut names = Vec::new();
     let mut notes = Vec::new();
     let rings = m.rings();
@@ -1105,7 +1154,7 @@ fn ring_strain(m: &Molecule, kinds: &[Kind]) -> Result<(Vec<(String, Option<&'st
                 )]))
             }
         };
-        names.push((name.to_string(), carbocycle));
+        names.push((name, carbocycle));
     }
     // Fused and bridged systems: a strain per smallest ring is an approximation.
     let shared = m
@@ -1230,7 +1279,7 @@ mod tests {
         ] {
             let m = Molecule::parse(s, 0).unwrap();
             let (classes, aut) = m.symmetry();
-            assert_eq!(symmetry_number(&m, &classes, aut), sigma, "{s}");
+            assert_eq!(symmetry_number(&m, classes, aut), sigma, "{s}");
         }
     }
 }

@@ -109,7 +109,22 @@ pub struct Molecule {
     ring_list: Vec<Vec<usize>>,
     /// Connected parts (found with the rings).
     components: usize,
+    /// Symmetry classes, canonical ranks and automorphism count, computed once when first asked.
+    ranked: Ranked,
 }
+
+/// Ranking results kept once computed. Not part of a molecule's identity: two equal molecules
+/// compare equal whether or not either has been ranked.
+#[derive(Clone, Debug, Default)]
+struct Ranked(std::sync::OnceLock<(Vec<u32>, Vec<u32>, f64)>);
+
+impl PartialEq for Ranked {
+    fn eq(&self, _: &Ranked) -> bool {
+        true
+    }
+}
+
+impl Eq for Ranked {}
 
 /// What went wrong reading a SMILES, and where (byte offset into the text given).
 #[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
@@ -543,6 +558,7 @@ impl Molecule {
             adjacency: Vec::new(),
             ring_list: Vec::new(),
             components: 0,
+            ranked: Ranked::default(),
         };
         m.build_adjacency();
         m.kekulize()?;
@@ -1010,33 +1026,33 @@ impl Molecule {
     /// Canonical ranks 0..n: equal for no two atoms, and the same for any atom order of one graph
     /// (up to automorphism, which leaves the key unchanged).
     pub fn canonical_ranks(&self) -> Vec<u32> {
-        let n = self.atoms.len();
-        let keys: Vec<u64> = (0..n).map(|i| self.invariant(i)).collect();
-        let mut rank = ranks_from_keys(&keys);
-        // Scratch buffers live per thread so a batch does not allocate them per molecule.
-        thread_local! {
-            static SCRATCH: std::cell::RefCell<Refiner> = std::cell::RefCell::new(Refiner::default());
-        }
-        SCRATCH.with(|cell| {
-            let mut guard = cell.borrow_mut();
-            self.rank_with(&mut rank, &mut guard);
-        });
-        rank
+        self.ranked().1.clone()
+    }
+
+    /// (symmetry classes, canonical ranks, automorphisms), computed on first use.
+    fn ranked(&self) -> &(Vec<u32>, Vec<u32>, f64) {
+        self.ranked.0.get_or_init(|| {
+            let n = self.atoms.len();
+            let keys: Vec<u64> = (0..n).map(|i| self.invariant(i)).collect();
+            let mut rank = ranks_from_keys(&keys);
+            SCRATCH.with(|cell| {
+                let mut scratch = cell.borrow_mut();
+                refine(self, &mut rank, &mut scratch);
+                let classes = rank.clone();
+                let automorphisms = self.rank_with(&mut rank, &mut scratch);
+                (classes, rank, automorphisms)
+            })
+        })
     }
 
     /// Symmetry classes (atoms no invariant of the graph tells apart: the orbits of its
     /// automorphisms for chemical graphs) and the number of automorphisms of the heavy-atom graph
     /// (hydrogens as counts), as the product of the orbit sizes met while individualizing atoms
-    /// one by one — exact where refinement finds the orbits.
-    pub fn symmetry(&self) -> (Vec<u32>, f64) {
-        let n = self.atoms.len();
-        let mut scratch = Refiner::default();
-        let keys: Vec<u64> = (0..n).map(|i| self.invariant(i)).collect();
-        let mut rank = ranks_from_keys(&keys);
-        refine(self, &mut rank, &mut scratch);
-        let classes = rank.clone();
-        let automorphisms = self.rank_with(&mut rank, &mut scratch);
-        (classes, automorphisms)
+    /// one by one — exact where refinement finds the orbits. Shares its work with
+    /// [`Molecule::canonical_key`].
+    pub fn symmetry(&self) -> (&[u32], f64) {
+        let r = self.ranked();
+        (&r.0, r.2)
     }
 
     /// Ranks until every atom has its own; returns the product of the sizes of the classes split
@@ -1123,7 +1139,7 @@ impl Molecule {
     /// hydrogens and valence, then the bonds between canonical indices. Equal for every way of
     /// writing one molecule (stereo marks aside), different for different graphs.
     pub fn canonical_key(&self) -> String {
-        let rank = self.canonical_ranks();
+        let rank = &self.ranked().1;
         let n = self.atoms.len();
         let mut order = vec![0usize; n];
         for (i, &r) in rank.iter().enumerate() {
@@ -1326,6 +1342,7 @@ impl Molecule {
             adjacency: Vec::new(),
             ring_list: Vec::new(),
             components: 0,
+            ranked: Ranked::default(),
         };
         m.build_adjacency();
         m.perceive_rings();
@@ -1400,6 +1417,11 @@ fn ranks_from_keys(keys: &[u64]) -> Vec<u32> {
         };
     }
     rank
+}
+
+// Scratch buffers live per thread so a batch does not allocate them per molecule.
+thread_local! {
+    static SCRATCH: std::cell::RefCell<Refiner> = std::cell::RefCell::new(Refiner::default());
 }
 
 #[derive(Default)]

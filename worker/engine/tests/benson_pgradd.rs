@@ -43,6 +43,10 @@ fn pgradd_groups(text: &str) -> Vec<(String, f64)> {
     v
 }
 
+fn owned(c: &[(&str, f64)]) -> Vec<(String, f64)> {
+    c.iter().map(|(g, n)| (g.to_string(), *n)).collect()
+}
+
 fn same(a: &[(String, f64)], b: &[(String, f64)]) -> bool {
     a.len() == b.len() && a.iter().zip(b).all(|(x, y)| x.0 == y.0 && (x.1 - y.1).abs() < 1e-9)
 }
@@ -85,13 +89,13 @@ fn groups_and_values_match_pgradd() {
             Some("fused aromatic typing")
         } else if hetero_ring || fused || strain_missing {
             Some("ring strain pgradd does not assign")
-        } else if ours.as_ref().is_ok_and(|b| ortho(&b.contributions) != ortho(&theirs)) {
+        } else if ours.as_ref().is_ok_and(|b| ortho(&owned(&b.contributions)) != ortho(&theirs)) {
             Some("ortho: Benson counts each adjacent pair, pgradd one per ring")
         } else {
             None
         };
         match &ours {
-            Ok(b) if same(&b.contributions, &theirs) => {
+            Ok(b) if same(&owned(&b.contributions), &theirs) => {
                 agree += 1;
                 let dh = (b.dhf_gas_kj_per_mol - r[h].parse::<f64>().unwrap()).abs();
                 let ds = r[s].parse::<f64>().map_or(0.0, |x| (b.s_intrinsic_j_per_mol_k - x).abs());

@@ -31,6 +31,10 @@ use std::sync::OnceLock;
 /// The method, as results name it.
 pub const METHOD: &str = "Benson group additivity (Benson, Thermochemical Kinetics, 2nd ed., 1976; tables of pgradd 2.9.14)";
 
+/// The method when a second-tier row gives ΔfH° but S° and Cp come from Joback.
+pub const METHOD_DHF_ONLY: &str =
+    "Benson group additivity for ΔfH° (Benson 1976; tables of pgradd 2.9.14), S° and Cp by Joback & Reid (1987)";
+
 const DATA: &str = include_str!("../data/benson_groups.tsv");
 
 /// Temperatures of the tabulated heat capacities, K.
@@ -50,6 +54,8 @@ pub mod sigma {
     pub const PER_HEAVY_ATOM: f64 = 0.4;
     /// Per nitrogen or composite group (values resting on few compounds).
     pub const THIN_GROUP: f64 = 4.0;
+    /// Per occurrence of a second-tier row (ΔfH° without S° or Cp in the table).
+    pub const SECOND_TIER: f64 = 10.0;
     /// Per pair of O or N atoms two or three bonds apart (diols, glycol ethers, amino
     /// alcohols: interactions the groups do not see).
     pub const HETERO_PAIR: f64 = 9.0;
@@ -307,14 +313,19 @@ pub struct Benson {
     /// Every group and correction after pgradd's remaps, sorted by name, with its count.
     pub contributions: Vec<(&'static str, f64)>,
     pub dhf_gas_kj_per_mol: f64,
-    /// Σ group and correction S°, before symmetry and optical isomers.
-    pub s_intrinsic_j_per_mol_k: f64,
+    /// Σ group and correction S°, before symmetry and optical isomers; None when a second-tier
+    /// row (ΔfH° only) is among the groups.
+    pub s_intrinsic_j_per_mol_k: Option<f64>,
     pub symmetry_number: f64,
     pub optical_isomers: f64,
-    /// S°(g, 298.15 K) = intrinsic − R ln σ + R ln(optical isomers).
-    pub s_gas_j_per_mol_k: f64,
-    /// Cp = a + bT + cT² + dT³, J/(mol·K), fitted to the summed group values 300–1000 K.
-    pub cp: [f64; 4],
+    /// S°(g, 298.15 K) = intrinsic − R ln σ + R ln(optical isomers); None as above (the species
+    /// then takes Joback's).
+    pub s_gas_j_per_mol_k: Option<f64>,
+    /// Cp = a + bT + cT² + dT³, J/(mol·K), fitted to the summed group values 300–1000 K; None
+    /// when a second-tier row lacks heat capacities.
+    pub cp: Option<[f64; 4]>,
+    /// Rows with ΔfH° but no S° or Cp that the molecule needed.
+    pub second_tier: Vec<&'static str>,
     pub dhf_sigma_kj_per_mol: f64,
     /// What widened σ, for the notes.
     pub widened: Vec<String>,
@@ -373,10 +384,7 @@ impl Benson {
                 _ => &one,
             };
             for &(f, g) in resolved {
-                let key = if REJECTED.contains(&g) {
-                    missing.push(format!("{g} (value rejected on the rule-setting set)"));
-                    continue;
-                } else if let Some((k, _)) = lib.values.get_key_value(g) {
+                let key = if let Some((k, _)) = lib.values.get_key_value(g) {
                     k.as_str()
                 } else if let Some((k, _)) = short_name(g).and_then(|s| lib.values.get_key_value(s.as_str())) {
                     k.as_str()
@@ -384,6 +392,10 @@ impl Benson {
                     missing.push(g.to_string());
                     continue;
                 };
+                if REJECTED.contains(&key) {
+                    missing.push(format!("{key} (value rejected on the rule-setting set)"));
+                    continue;
+                }
                 match expanded.iter_mut().find(|e| e.0 == key) {
                     Some(e) => e.1 += f * n,
                     None => expanded.push((key, f * n)),
@@ -438,19 +450,12 @@ impl Benson {
                 }
             }
         }
-        // A row with ΔfH° but no S° or Cp is one of the table's second-tier values: on the
-        // rule-setting set, molecules that need one were no better than Joback (MAE 22.4 against
-        // 19.4 kJ/mol over 35 molecules), so they are left to Joback.
-        if !no_s.is_empty() || !no_cp.is_empty() {
-            let mut v: Vec<String> = no_s
-                .iter()
-                .map(|g| format!("{g} (S°)"))
-                .chain(no_cp.iter().map(|g| format!("{g} (Cp)")))
-                .collect();
-            v.sort();
-            v.dedup();
-            return Err(BensonError::Missing(v));
-        }
+        // A row with ΔfH° but no S° or Cp is one of the table's second-tier values: ΔfH° is still
+        // Benson's (on the rule-setting set such molecules came out MAE 10.3 kJ/mol against
+        // Joback's 16.8 over 40), S° and Cp then come from Joback, and σ widens per such row.
+        let mut second_tier: Vec<&'static str> = no_s.iter().chain(&no_cp).copied().collect();
+        second_tier.sort_unstable();
+        second_tier.dedup();
         let (classes, automorphisms) = m.symmetry();
         let symmetry_number = symmetry_number(m, classes, automorphisms);
         let optical_isomers = 2f64.powi(chiral_centres(m, &kinds, classes) as i32);
@@ -466,7 +471,15 @@ impl Benson {
         let ring_substituents = (0..m.atoms.len())
             .filter(|&k| m.atoms[k].in_ring && !m.atoms[k].aromatic && m.neighbours(k).any(|(_, b)| !m.bonds[b].in_ring))
             .count() as f64;
+        let second: f64 = expanded.iter().filter(|(g, _)| second_tier.contains(g)).map(|(_, n)| n).sum();
         let mut sigma2 = sigma::BASE.powi(2) + (sigma::PER_HEAVY_ATOM * heavy).powi(2);
+        sigma2 += second * sigma::SECOND_TIER.powi(2);
+        if second > 0.0 {
+            widened.push(format!(
+                "{} second-tier group(s) (ΔfH° without S° or Cp in the table)",
+                fmt_count(second)
+            ));
+        }
         sigma2 += thin * sigma::THIN_GROUP.powi(2);
         sigma2 += pairs * sigma::HETERO_PAIR.powi(2) + crowding * sigma::CROWDING.powi(2) + rings * sigma::RING.powi(2);
         sigma2 += quaternary * sigma::QUATERNARY.powi(2) + ring_substituents * sigma::RING_SUBSTITUENT.powi(2);
@@ -491,11 +504,12 @@ impl Benson {
         Ok(Benson {
             contributions: expanded,
             dhf_gas_kj_per_mol: dhf,
-            s_intrinsic_j_per_mol_k: s,
+            s_intrinsic_j_per_mol_k: no_s.is_empty().then_some(s),
             symmetry_number,
             optical_isomers,
-            s_gas_j_per_mol_k: s - R * symmetry_number.ln() + R * optical_isomers.ln(),
-            cp: fit_cubic(&cp),
+            s_gas_j_per_mol_k: no_s.is_empty().then(|| s - R * symmetry_number.ln() + R * optical_isomers.ln()),
+            cp: no_cp.is_empty().then(|| fit_cubic(&cp)),
+            second_tier,
             dhf_sigma_kj_per_mol: sigma2.sqrt(),
             widened,
         })

@@ -1387,10 +1387,10 @@ impl Estimate {
 
     /// The method the ideal gas comes from.
     pub fn gas_method(&self) -> &'static str {
-        if self.benson.is_ok() {
-            crate::benson::METHOD
-        } else {
-            METHOD
+        match &self.benson {
+            Ok(b) if b.second_tier.is_empty() => crate::benson::METHOD,
+            Ok(_) => crate::benson::METHOD_DHF_ONLY,
+            Err(_) => METHOD,
         }
     }
 
@@ -1416,7 +1416,7 @@ impl Estimate {
 
     /// Cp polynomial of the gas the species uses, J/(mol·K).
     pub fn gas_cp(&self) -> [f64; 4] {
-        self.benson.as_ref().map_or(self.cp, |b| b.cp)
+        self.benson.as_ref().ok().and_then(|b| b.cp).unwrap_or(self.cp)
     }
 
     fn gas_cp_at(&self, t_k: f64) -> f64 {
@@ -1430,9 +1430,9 @@ impl Estimate {
     /// # Errors
     /// As [`Estimate::s_gas_j_per_mol_k`].
     pub fn gas_s_j_per_mol_k(&self, formula: &Formula, element_entropy: &dyn Fn(Z) -> Option<f64>) -> Result<f64, JobackError> {
-        match &self.benson {
-            Ok(b) => Ok(b.s_gas_j_per_mol_k),
-            Err(_) => self.s_gas_j_per_mol_k(formula, element_entropy),
+        match self.benson.as_ref().ok().and_then(|b| b.s_gas_j_per_mol_k) {
+            Some(s) => Ok(s),
+            None => self.s_gas_j_per_mol_k(formula, element_entropy),
         }
     }
 

@@ -211,19 +211,32 @@ impl Slot {
     async fn run(mut self, stop: watch::Receiver<bool>) -> WorkerStats {
         let mut last_reclaim = Instant::now();
         let mut backoff = Duration::from_millis(200);
+        let mut stopping = stop.clone();
         while !*stop.borrow() {
-            let next = if last_reclaim.elapsed() >= self.cfg.reclaim_idle / 2 {
+            let reclaim_now = last_reclaim.elapsed() >= self.cfg.reclaim_idle / 2;
+            if reclaim_now {
                 last_reclaim = Instant::now();
-                match self.queue.reclaim(&self.consumer, self.cfg.reclaim_idle, 1).await {
-                    Ok(mut v) if !v.is_empty() => {
-                        tracing::warn!(consumer = %self.consumer, entry_id = %v[0].entry_id, deliveries = v[0].deliveries, "reclaimed an abandoned task");
-                        Ok(v.pop())
+            }
+            let read = async {
+                if reclaim_now {
+                    match self.queue.reclaim(&self.consumer, self.cfg.reclaim_idle, 1).await {
+                        Ok(mut v) if !v.is_empty() => {
+                            tracing::warn!(consumer = %self.consumer, entry_id = %v[0].entry_id, deliveries = v[0].deliveries, "reclaimed an abandoned task");
+                            Ok(v.pop())
+                        }
+                        Ok(_) => self.queue.poll(&self.consumer, self.cfg.block).await,
+                        Err(e) => Err(e),
                     }
-                    Ok(_) => self.queue.poll(&self.consumer, self.cfg.block).await,
-                    Err(e) => Err(e),
+                } else {
+                    self.queue.poll(&self.consumer, self.cfg.block).await
                 }
-            } else {
-                self.queue.poll(&self.consumer, self.cfg.block).await
+            };
+            // Shutdown ends a blocking read at once instead of after its block time. A task the
+            // queue handed out in that instant stays pending and is reclaimed: at least once.
+            let next = tokio::select! {
+                biased;
+                _ = stopping.wait_for(|s| *s) => break,
+                r = read => r,
             };
             match next {
                 Ok(Some(d)) => {

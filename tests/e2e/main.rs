@@ -690,6 +690,41 @@ fn assert_batch_means_batch(cases: &DataFrame, path: &str) {
         "{path}: MTSR {mtsr} K, expected T_p + ΔT_ad = {}",
         tp + rise
     );
+    // The mass after this batch step is aniline and water. Aniline(l)'s bundled record (ChemSep
+    // v8.3: ΔfH°(g) 87.100 − ΔvapH 55.107 = 31.993 kJ/mol) decomposes at most to 6 C + 3.5 H2 +
+    // 0.5 N2, releasing 31.993 kJ/mol; water releases none. Per kg of the default mass, the
+    // reactants (nitrobenzene 123.11 + 3 H2 6.048 = 129.16 g per mol of reaction):
+    // 31.993 / 0.12916 = 247.7 kJ/kg, and ΔT_ad = 247.7 / 1.8 = 137.6 K.
+    let heat = floats(cases, "decomposition_heat_max_kj_per_kg")[k].expect("decomposition heat");
+    let dt = floats(cases, "decomposition_adiabatic_rise_k")[k].expect("decomposition rise");
+    assert!((heat - 247.7).abs() < 0.5, "{path}: decomposition heat {heat} kJ/kg");
+    assert!((dt - 137.6).abs() < 0.5, "{path}: decomposition ΔT_ad {dt} K");
+}
+
+/// The species table names nitrobenzene's N–O group (UN Table A6.1) and its maximum heat of
+/// decomposition: C6H5NO2(l) in its bundled record (ChemSep v8.3: ΔfH°(g) 67.500 − ΔvapH 55.949
+/// = 11.551 kJ/mol) → 2 H2O(l) + 0.5 H2 + 0.5 N2 + 6 C(gr), H2O(l) −285.83 (NASA):
+/// 11.551 + 2 × 285.83 = 583.2 kJ/mol.
+fn assert_species_decomposition(species: &DataFrame, path: &str) {
+    let labels = strings(species, "species_label");
+    let k = labels
+        .iter()
+        .position(|l| l.as_deref() == Some("nitrobenzene(l)"))
+        .unwrap_or_else(|| panic!("{path}: no nitrobenzene(l) row in {labels:?}"));
+    let heat = floats(species, "decomposition_heat_max_kj_per_mol")[k].expect("heat");
+    assert!((heat - 583.2).abs() < 0.5, "{path}: nitrobenzene decomposition {heat} kJ/mol");
+    let groups = strings(species, "energetic_groups")[k].clone().unwrap_or_default();
+    assert!(groups.starts_with("N-O"), "{path}: nitrobenzene groups {groups:?}");
+}
+
+/// Methyl nonanoate + 14 O2 → 10 CO2 + 10 H2O, every species as SMILES.
+fn benson_burn() -> String {
+    format!(
+        "CCCCCCCCC(=O)OC{}>>{}{}",
+        ".O=O".repeat(14),
+        ["O=C=O"; 10].join("."),
+        ".O".repeat(10)
+    )
 }
 
 /// ΔrH°(298.15 K) expected per case, from ATcT 1.112 ΔfH° (kJ/mol; chemicals 1.5.2 tables
@@ -699,16 +734,6 @@ fn assert_batch_means_batch(cases: &DataFrame, path: &str) {
 /// −1235.384. Salt: NaOH(cr) + HCl(g) → NaCl(cr) + H2O(l) with NaOH(cr) −425.8 and NaCl(cr)
 /// −411.2 (CRC Handbook, as bundled in chemicals 1.5.2, `Hfs`), HCl(g) −92.17 (ATcT 1.112):
 /// −179.0 (the NASA records the engine uses differ from these by under 1 kJ/mol).
-/// Methyl nonanoate + 14 O2 → 10 CO2 + 10 H2O, every species as SMILES.
-fn benson_burn() -> String {
-    format!(
-        "CCCCCCCCC(=O)OC{}>>{}{}",
-        ".O=O".repeat(14),
-        vec!["O=C=O"; 10].join("."),
-        ".O".repeat(10)
-    )
-}
-
 /// "benson": 10 × ΔfH°(CO2, g) −393.510 + 10 × ΔfH°(H2O, g) −241.826 (NASA Glenn, as bundled)
 /// − ΔfH°(methyl nonanoate, g) −556.807 (Benson's groups: pgradd 2.9.14's table sum in
 /// `worker/engine/tests/reference/benson_pgradd.tsv`) = −5796.553 kJ/mol. Joback would give a
@@ -747,6 +772,7 @@ async fn the_phase_asked_reaches_the_engine_on_every_path() {
     let embedded_cases = read_table(&out.batch_dir.join("cases.parquet"));
     assert_phase_results(&embedded_cases, "embedded");
     assert_batch_means_batch(&embedded_cases, "embedded");
+    assert_species_decomposition(&read_table(&out.batch_dir.join("species.parquet")), "embedded");
 
     // Redis + gRPC + worker, and ScreenInline on the same front.
     let svc = Service::start(1, |_| {}).await;
@@ -756,6 +782,7 @@ async fn the_phase_asked_reaches_the_engine_on_every_path() {
     let redis_cases = read_table_bytes(fetch(&mut client, &id, pb::Table::Cases).await);
     assert_phase_results(&redis_cases, "redis");
     assert_batch_means_batch(&redis_cases, "redis");
+    assert_species_decomposition(&read_table_bytes(fetch(&mut client, &id, pb::Table::Species).await), "redis");
     let inline = client
         .screen_inline(pb::ScreenInlineRequest {
             cases: phase_cases().iter().map(convert::case_to_pb).collect(),

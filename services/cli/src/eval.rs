@@ -222,6 +222,20 @@ pub fn render(s: &Screened) -> String {
             t.nu.to_string(),
             r.source_line()
         );
+        let decomposition = match &t.species.decomposition {
+            Ok(d) => format!("{:.1} kJ/mol, {:.0} kJ/kg (to {})", d.heat_kj_per_mol, d.heat_kj_per_kg, d.products),
+            Err(e) => format!("not computed: {e}"),
+        };
+        let groups = match &t.species.energetic_groups {
+            Some(g) if g.is_empty() => "none".to_string(),
+            Some(g) => g.iter().map(|g| g.name()).collect::<Vec<_>>().join("; "),
+            None => "unknown (no structure)".to_string(),
+        };
+        let _ = writeln!(
+            o,
+            "  {:<16} maximum decomposition heat {decomposition}; energetic groups: {groups}",
+            ""
+        );
     }
     if !s.notes.is_empty() {
         let _ = writeln!(o);
@@ -273,6 +287,23 @@ pub fn render_process(p: &CaseProcess) -> String {
         p.severity.as_str(),
         c_and_k(h.mtsr_k)
     );
+    match &p.decomposition {
+        Ok(d) => {
+            let _ = writeln!(
+                o,
+                "  decomposition of the mass after reaction (maximum): {:.0} kJ/kg{}, adiabatic rise {:.0} K",
+                d.heat_kj_per_kg,
+                d.sigma_kj_per_kg.map_or(String::new(), |s| format!(" (σ {s:.0})")),
+                d.adiabatic_rise_k
+            );
+            for f in d.flags.iter().map(String::as_str).chain(d.energetic_groups.iter().copied()) {
+                let _ = writeln!(o, "    {f}");
+            }
+        }
+        Err(e) => {
+            let _ = writeln!(o, "  decomposition of the mass after reaction: {e}");
+        }
+    }
     match &p.criticality {
         Assessment::Assessed(k) => {
             let _ = writeln!(o, "  criticality {}", k.class.describe());

@@ -20,11 +20,13 @@
 //! - [`structures`]: SMILES species in equations: bundled structures and estimation.
 //! - [`thermo`]: temperature grids and reaction properties (ΔrH°, ΔrS°, ΔrG°, log10 K).
 //! - [`screen`]: one reaction end to end, with a species cache for batches.
+//! - [`decomposition`]: maximum heats of decomposition and energetic groups of species.
 //! - [`process`]: one reaction at its process conditions: equilibrium, heat budget, criticality, gas.
 //! - [`routes`]: the steps of each route rolled up, and the routes of a batch ranked.
 
 pub mod balance;
 pub mod benson;
+pub mod decomposition;
 pub mod elements;
 pub mod equation;
 pub mod formula;

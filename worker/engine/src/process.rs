@@ -492,6 +492,9 @@ pub struct CaseProcess {
     pub cooling: Assessment<CoolingCheck>,
     /// Labels of species whose data were estimated (any [`Origin::Estimated`] in their data).
     pub estimated_species: Vec<String>,
+    /// What a decomposition of the reaction mass after reaction could release, or why it cannot
+    /// be said.
+    pub decomposition: Result<MassDecomposition, String>,
     /// Things to know about this result (out-of-range data, process above MTT, ...).
     pub notes: Vec<String>,
     /// [`CAUTION`], carried with every result.
@@ -671,7 +674,9 @@ pub fn evaluate(screened: &Screened, conditions: &ProcessConditions) -> Result<C
         .filter(|s| is_estimated(&s.species.resolved.origin))
         .map(|s| s.species.resolved.label.clone())
         .collect();
+    let decomposition = mass_decomposition(screened, &effective);
     Ok(CaseProcess {
+        decomposition,
         conditions: effective,
         assumed,
         equilibrium,
@@ -683,6 +688,92 @@ pub fn evaluate(screened: &Screened, conditions: &ProcessConditions) -> Result<C
         estimated_species,
         notes,
         caution: CAUTION,
+    })
+}
+
+/// UN Recommendations on the Transport of Dangerous Goods, Manual of Tests and Criteria (Rev. 6,
+/// 2015), Appendix 6 (screening procedures): a substance whose exothermic decomposition energy
+/// is below 500 J/g (with an onset below 500 °C) need not be tested for explosive properties.
+/// At or above it, the screening does not clear the mass.
+pub const EXPLOSIVE_SCREENING_KJ_PER_KG: f64 = 500.0;
+/// The same Appendix: below 300 J/g a substance is screened out as a self-reactive candidate.
+pub const SELF_REACTIVE_SCREENING_KJ_PER_KG: f64 = 300.0;
+
+/// The reaction mass after reaction, as a decomposition hazard.
+#[derive(Clone, Debug, PartialEq)]
+pub struct MassDecomposition {
+    /// The most heat a decomposition of the mass could release, kJ per kg of reaction mass: the
+    /// products' maximum heats of decomposition; for a semi-batch step the larger of that and the
+    /// mix of (1 − X_acc) products and X_acc unreacted reagents. Solvent in the mass dilutes it;
+    /// its own decomposition is not counted, nor is the charge before reaction (each reagent's
+    /// own figure is in the species table).
+    pub heat_kj_per_kg: f64,
+    /// σ of the heat from the species' ΔfH° σ, kJ/kg; None where a σ is unknown.
+    pub sigma_kj_per_kg: Option<f64>,
+    /// Adiabatic temperature rise of that decomposition: heat / c_p, K.
+    pub adiabatic_rise_k: f64,
+    /// Energetic groups of the species in the mass (UN Table A6.1), each once.
+    pub energetic_groups: Vec<&'static str>,
+    /// Screening limits reached, with their source.
+    pub flags: Vec<String>,
+}
+
+fn mass_decomposition(screened: &Screened, c: &EffectiveConditions) -> Result<MassDecomposition, String> {
+    // After a batch step the mass is its products; a semi-batch step may still hold the
+    // accumulated fraction of its reagents unreacted, so the larger of the two mixtures counts.
+    let reagents_count = c.operation == Operation::SemiBatch && c.accumulation_fraction > 0.0;
+    let (mut products, mut reagents, mut var) = (0.0, 0.0, 0.0f64);
+    let mut sigma_known = true;
+    let mut groups: Vec<&'static str> = Vec::new();
+    for t in &screened.species {
+        let p = &t.species;
+        let nu = t.nu.to_f64();
+        if nu < 0.0 && !reagents_count {
+            continue;
+        }
+        let d = p
+            .decomposition
+            .as_ref()
+            .map_err(|e| format!("{}: no decomposition heat ({e})", p.resolved.label))?;
+        if nu > 0.0 {
+            products += nu * d.heat_kj_per_mol;
+        } else {
+            reagents += -nu * d.heat_kj_per_mol;
+        }
+        match d.sigma_kj_per_mol {
+            Some(s) => var += (nu * s).powi(2),
+            None => sigma_known = false,
+        }
+        for g in p.energetic_groups.iter().flatten() {
+            if !groups.contains(&g.name()) {
+                groups.push(g.name());
+            }
+        }
+    }
+    let per_mol = if reagents_count {
+        let x = c.accumulation_fraction;
+        products.max((1.0 - x) * products + x * reagents)
+    } else {
+        products
+    };
+    let kg_per_mol = c.reaction_mass_kg / c.reaction_mol;
+    let heat = per_mol / kg_per_mol;
+    let mut flags = Vec::new();
+    if heat >= EXPLOSIVE_SCREENING_KJ_PER_KG {
+        flags.push(format!(
+            "at or above {EXPLOSIVE_SCREENING_KJ_PER_KG} J/g: not cleared by the UN Manual of Tests and Criteria App. 6 screening for explosive properties"
+        ));
+    } else if heat >= SELF_REACTIVE_SCREENING_KJ_PER_KG {
+        flags.push(format!(
+            "at or above {SELF_REACTIVE_SCREENING_KJ_PER_KG} J/g: not cleared by the UN App. 6 screening for self-reactive substances"
+        ));
+    }
+    Ok(MassDecomposition {
+        heat_kj_per_kg: heat,
+        sigma_kj_per_kg: sigma_known.then(|| var.sqrt() / kg_per_mol),
+        adiabatic_rise_k: heat / c.cp_kj_per_kg_k,
+        energetic_groups: groups,
+        flags,
     })
 }
 

@@ -10,6 +10,7 @@
 //! merged by canonical structure, so `OCC` and `C(O)C` are one species.
 
 use crate::balance::{self, Balance, BalanceError, Column, Outcome, Side};
+use crate::decomposition::{self, Decomposition, DecompositionError, EnergeticGroup, ProductSet};
 use crate::equation;
 use crate::equation::{split_equation, Arrow, Notation, RawTerm};
 use crate::formula::{found_at, parse_species, tag_word, Phase, SpeciesSpec, SyntaxError};
@@ -71,6 +72,11 @@ pub struct Prepared {
     grid_note: Option<String>,
     /// `label: sources`, the data behind this species in one line (made once, shown per case).
     pub citation: String,
+    /// Its maximum heat of decomposition at 298.15 K, or why there is none.
+    pub decomposition: Result<Decomposition, DecompositionError>,
+    /// The energetic groups (UN Manual of Tests and Criteria, Table A6.1) of its structure; None
+    /// when no structure is known (a formula with no bundled structure).
+    pub energetic_groups: Option<Vec<EnergeticGroup>>,
 }
 
 /// One species of a screened reaction with its stoichiometric number (negative for reactants).
@@ -115,6 +121,8 @@ pub struct Screener<'t> {
     structures: &'static Structures,
     /// SMILES species by (canonical key, phase asked): one species however it is written.
     by_structure: HashMap<(String, DefaultPhase), Arc<Prepared>>,
+    /// Decomposition products from the table.
+    products: ProductSet,
 }
 
 impl<'t> Screener<'t> {
@@ -127,6 +135,7 @@ impl<'t> Screener<'t> {
             default_phase: DefaultPhase::Standard,
             structures: structures::bundled(),
             by_structure: HashMap::new(),
+            products: ProductSet::from_table(table),
         }
     }
 
@@ -191,7 +200,7 @@ impl<'t> Screener<'t> {
             return hit.clone().map_err(|error| ScreenError::Species { position, error });
         }
         let result = if let Some(v) = self.supplied.get(smiles) {
-            Ok(Arc::new(self.prepare(from_supplied(smiles, v))))
+            Ok(Arc::new(self.prepare(from_supplied(smiles, v), Some(smiles))))
         } else {
             match structures::resolve_smiles(self.table, self.structures, smiles, position, phase) {
                 Ok(s) => {
@@ -199,7 +208,7 @@ impl<'t> Screener<'t> {
                     match self.by_structure.get(&k) {
                         Some(p) => Ok(p.clone()),
                         None => {
-                            let p = Arc::new(self.prepare(s.resolved));
+                            let p = Arc::new(self.prepare(s.resolved, Some(smiles)));
                             self.by_structure.insert(k, p.clone());
                             Ok(p)
                         }
@@ -251,8 +260,26 @@ impl<'t> Screener<'t> {
         self.supplied.insert(key.to_string(), values);
     }
 
-    fn prepare(&self, resolved: Resolved) -> Prepared {
+    /// Precompute a species' states on the grid, its decomposition heat and, where its structure
+    /// is known (`smiles`, else the bundled structure of its tabulated record), its energetic groups.
+    fn prepare(&self, resolved: Resolved, smiles: Option<&str>) -> Prepared {
         let eval = |t: f64| resolved.state(t, t.ln());
+        let at_ref = eval(T_REF_K);
+        let decomposition = decomposition::maximum(
+            &resolved.formula,
+            at_ref.h_j_per_mol / 1000.0,
+            resolved.dhf_uncertainty_kj_per_mol,
+            &self.products,
+        );
+        let structure = smiles.or_else(|| {
+            resolved.origin.iter().find_map(|o| match o {
+                Origin::Tabulated { record, .. } => self.structures.smiles_of(record),
+                _ => None,
+            })
+        });
+        let energetic_groups = structure
+            .and_then(|s| crate::smiles::Molecule::parse(s, 0).ok())
+            .map(|m| decomposition::energetic_groups(&m));
         let (lo, hi) = resolved.range_k();
         let transition_k = resolved.transition_k(lo.max(T_REF_K), hi);
         let grid_max = self.grid.temperatures_k().iter().copied().fold(T_REF_K, f64::max);
@@ -266,8 +293,10 @@ impl<'t> Screener<'t> {
             citation: format!("{}: {}", resolved.label, resolved.source_line()),
             transition_k,
             grid_note,
-            at_ref: eval(T_REF_K),
+            at_ref,
             at_grid: self.grid.temperatures_k().iter().map(|&t| eval(t)).collect(),
+            decomposition,
+            energetic_groups,
             g_ladder: std::array::from_fn(|i| {
                 let t = LADDER.t(i);
                 eval(t).g_j_per_mol(t)
@@ -330,7 +359,7 @@ impl<'t> Screener<'t> {
                 resolved
             }
         };
-        let result = result.map(|r| Arc::new(self.prepare(r)));
+        let result = result.map(|r| Arc::new(self.prepare(r, None)));
         self.cache.insert(text.to_string(), result.clone());
         result.map_err(|error| ScreenError::Species { position, error })
     }

@@ -89,6 +89,13 @@ pub struct ProcessColumns {
     pub estimated_species_labels: Option<String>,
     /// A process input that could not be used (the thermodynamics above still stand).
     pub process_error: Option<String>,
+    /// Maximum decomposition heat of the mass after reaction, kJ per kg of reaction mass.
+    pub decomposition_heat_kj_per_kg: Option<f64>,
+    pub decomposition_heat_sigma_kj_per_kg: Option<f64>,
+    /// Its adiabatic temperature rise, K.
+    pub decomposition_adiabatic_rise_k: Option<f64>,
+    /// Energetic groups in the mass and the screening limits reached, or why no heat is given.
+    pub decomposition_notes: Option<String>,
 }
 
 /// The engine's process inputs from a case's conditions. A dosing time of 0 is how tables write
@@ -148,6 +155,17 @@ fn process_columns(p: &CaseProcess) -> ProcessColumns {
         in_valid_range_at_process: Some(p.heat.in_valid_range),
         estimated_species_labels: (!p.estimated_species.is_empty()).then(|| p.estimated_species.join(JOIN)),
         process_error: None,
+        decomposition_heat_kj_per_kg: p.decomposition.as_ref().ok().map(|d| d.heat_kj_per_kg),
+        decomposition_heat_sigma_kj_per_kg: p.decomposition.as_ref().ok().and_then(|d| d.sigma_kj_per_kg),
+        decomposition_adiabatic_rise_k: p.decomposition.as_ref().ok().map(|d| d.adiabatic_rise_k),
+        decomposition_notes: match &p.decomposition {
+            Ok(d) => {
+                let mut v: Vec<String> = d.energetic_groups.iter().map(|g| format!("energetic group: {g}")).collect();
+                v.extend(d.flags.iter().cloned());
+                (!v.is_empty()).then(|| v.join(JOIN))
+            }
+            Err(e) => Some(e.clone()),
+        },
     }
 }
 
@@ -342,6 +360,10 @@ pub fn cases_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
         ),
         col("estimated_species_labels", ps(|p| p.estimated_species_labels.as_deref())),
         col("process_error", ps(|p| p.process_error.as_deref())),
+        col("decomposition_heat_max_kj_per_kg", pn(|p| p.decomposition_heat_kj_per_kg)),
+        col("decomposition_heat_sigma_kj_per_kg", pn(|p| p.decomposition_heat_sigma_kj_per_kg)),
+        col("decomposition_adiabatic_rise_k", pn(|p| p.decomposition_adiabatic_rise_k)),
+        col("decomposition_notes", ps(|p| p.decomposition_notes.as_deref())),
     ]);
     columns.push(col("input_row", rows.iter().map(|r| r.input_row).collect::<Vec<u64>>()));
     DataFrame::new(rows.len(), columns)
@@ -434,6 +456,48 @@ pub fn species_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
             col(
                 "delta_fh_uncertainty_basis",
                 species.iter().map(|p| p.resolved.sigma_basis.as_str()).collect::<Vec<&str>>(),
+            ),
+            col(
+                "decomposition_heat_max_kj_per_mol",
+                species
+                    .iter()
+                    .map(|p| p.decomposition.as_ref().ok().map(|d| d.heat_kj_per_mol))
+                    .collect::<Vec<Option<f64>>>(),
+            ),
+            col(
+                "decomposition_heat_max_kj_per_kg",
+                species
+                    .iter()
+                    .map(|p| p.decomposition.as_ref().ok().map(|d| d.heat_kj_per_kg))
+                    .collect::<Vec<Option<f64>>>(),
+            ),
+            col(
+                "decomposition_heat_sigma_kj_per_mol",
+                species
+                    .iter()
+                    .map(|p| p.decomposition.as_ref().ok().and_then(|d| d.sigma_kj_per_mol))
+                    .collect::<Vec<Option<f64>>>(),
+            ),
+            col(
+                "decomposition_products",
+                species
+                    .iter()
+                    .map(|p| match &p.decomposition {
+                        Ok(d) => d.products.clone(),
+                        Err(e) => format!("not computed: {e}"),
+                    })
+                    .collect::<Vec<String>>(),
+            ),
+            col(
+                "energetic_groups",
+                species
+                    .iter()
+                    .map(|p| {
+                        p.energetic_groups
+                            .as_ref()
+                            .map(|g| g.iter().map(|g| g.name()).collect::<Vec<_>>().join(JOIN))
+                    })
+                    .collect::<Vec<Option<String>>>(),
             ),
             col(
                 "notes",

@@ -219,6 +219,8 @@ fn routes_are_the_engines_roll_up(routes: &DataFrame, input: &[thermosieve_queue
     let heat = floats(routes, "total_heat_kj_per_batch");
     let gas = floats(routes, "total_gas_mol_per_batch");
     let flagged = strings(routes, "flagged_steps");
+    let worst_decomposition = floats(routes, "worst_decomposition_heat_kj_per_kg");
+    let energetic = strings(routes, "energetic_steps");
     let close = |a: Option<f64>, b: Option<f64>| match (a, b) {
         (Some(a), Some(b)) => (a - b).abs() <= 1e-9 * a.abs().max(1.0),
         (a, b) => a == b,
@@ -237,7 +239,22 @@ fn routes_are_the_engines_roll_up(routes: &DataFrame, input: &[thermosieve_queue
         assert!(close(heat[i], w.total_heat_kj), "{id}: {:?} vs {:?}", heat[i], w.total_heat_kj);
         assert!(close(gas[i], w.total_gas_mol), "{id}");
         assert_eq!(flagged[i].is_some(), !w.flagged_steps.is_empty(), "{id}");
+        // The decomposition roll-up went through the cases parts and back (the finalizer reads
+        // it from `cases.parquet` columns, not from the engine's structs).
+        assert!(
+            close(
+                worst_decomposition[i],
+                w.worst_decomposition_heat_kj_per_kg.as_ref().map(|d| d.value)
+            ),
+            "{id}: {:?}",
+            worst_decomposition[i]
+        );
+        assert_eq!(energetic[i].is_some(), !w.energetic_steps.is_empty(), "{id}");
     }
+    assert!(
+        want.iter().any(|w| !w.energetic_steps.is_empty()),
+        "the demo's nitrations carry an energetic group"
+    );
     assert!(want.iter().any(|w| w.failed.is_some()), "the demo's bad rows fail their routes");
     assert!(want.iter().any(|w| w.worst_class.is_some()), "the demo has assessed classes");
 }

@@ -42,6 +42,10 @@ pub struct StepFacts {
     pub scale: Scale,
     /// Moles of reaction per batch.
     pub reaction_mol: f64,
+    /// Maximum decomposition heat of the mass after the step, kJ/kg; `None` when not computed.
+    pub decomposition_heat_kj_per_kg: Option<f64>,
+    /// Energetic groups (UN Table A6.1) of the species in that mass.
+    pub energetic_groups: Vec<String>,
 }
 
 impl From<&CaseProcess> for StepFacts {
@@ -56,6 +60,12 @@ impl From<&CaseProcess> for StepFacts {
             gas_m3_at_stp: p.gas.gas_m3_at_stp,
             scale: p.conditions.scale.clone(),
             reaction_mol: p.conditions.reaction_mol,
+            decomposition_heat_kj_per_kg: p.decomposition.as_ref().ok().map(|d| d.heat_kj_per_kg),
+            energetic_groups: p
+                .decomposition
+                .as_ref()
+                .map(|d| d.energetic_groups.iter().map(|g| g.to_string()).collect())
+                .unwrap_or_default(),
         }
     }
 }
@@ -117,6 +127,11 @@ pub struct RouteSummary {
     pub worst_adiabatic_rise_k: Option<StepValue<f64>>,
     /// Over the steps whose class was assessed.
     pub worst_class: Option<StepValue<CriticalityClass>>,
+    /// The largest maximum decomposition heat of a step's mass after reaction, kJ/kg, over the
+    /// steps that have one.
+    pub worst_decomposition_heat_kj_per_kg: Option<StepValue<f64>>,
+    /// Steps whose mass after reaction carries an energetic group (UN Table A6.1), with them.
+    pub energetic_steps: Vec<StepValue<Vec<String>>>,
     /// Steps whose class was not assessed (missing MTT or T_D24).
     pub class_not_assessed: Vec<String>,
     /// Steps with class ≥ 3, thermo data extrapolated (or a phase past its boiling or melting
@@ -228,7 +243,25 @@ fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> RouteSummary {
     let mut worst_class: Option<StepValue<CriticalityClass>> = None;
     let mut class_not_assessed = Vec::new();
     let mut flagged_steps = Vec::new();
+    let mut worst_decomposition: Option<StepValue<f64>> = None;
+    let mut energetic_steps = Vec::new();
     for (s, p) in &ok {
+        if let Some(q) = p.decomposition_heat_kj_per_kg {
+            if worst_decomposition.as_ref().is_none_or(|w| q > w.value) {
+                worst_decomposition = Some(StepValue {
+                    case_id: s.case_id.to_string(),
+                    step: s.step,
+                    value: q,
+                });
+            }
+        }
+        if !p.energetic_groups.is_empty() {
+            energetic_steps.push(StepValue {
+                case_id: s.case_id.to_string(),
+                step: s.step,
+                value: p.energetic_groups.clone(),
+            });
+        }
         let rise = p.adiabatic_rise_k;
         if worst_rise.as_ref().is_none_or(|w| rise > w.value) {
             worst_rise = Some(StepValue {
@@ -295,6 +328,8 @@ fn roll_up_route(route_id: &str, route: &[&RouteStep]) -> RouteSummary {
         total_gas_m3_at_stp,
         worst_adiabatic_rise_k: worst_rise,
         worst_class,
+        worst_decomposition_heat_kj_per_kg: worst_decomposition,
+        energetic_steps,
         class_not_assessed,
         flagged_steps,
         notes,

@@ -271,9 +271,19 @@ impl<'t> Screener<'t> {
             resolved.dhf_uncertainty_kj_per_mol,
             &self.products,
         );
+        // A tabulated record's structure is filed under its base name (`C6H5NO2` for
+        // `C6H5NO2(L)`).
         let structure = smiles.or_else(|| {
             resolved.origin.iter().find_map(|o| match o {
-                Origin::Tabulated { record, .. } => self.structures.smiles_of(record),
+                Origin::Tabulated { record, .. } => {
+                    let base = self
+                        .table
+                        .records
+                        .iter()
+                        .find(|r| &r.name == record)
+                        .map_or(record.as_str(), |r| r.base.as_str());
+                    self.structures.smiles_of(base)
+                }
                 _ => None,
             })
         });

@@ -188,3 +188,54 @@ fn ties_rank_by_rise_then_heat_then_id_and_duplicate_steps_are_noted() {
     assert_eq!(ids, ["Y", "Z", "X"]);
     assert!(routes[1].notes.iter().any(|n| n.contains("both step 1")), "{:?}", routes[1].notes);
 }
+
+/// The route names its worst decomposition heat and the steps whose mass carries an energetic
+/// group. Nitrobenzene's nitration product, as the mass after a step, carries N–O; the
+/// hydrogenation's products (aniline, water) carry none. Values are the engine's own (checked by
+/// hand in decomposition.rs and process_view's e2e); here only the roll-up's choice.
+#[test]
+fn routes_name_their_worst_decomposition_and_energetic_steps() {
+    let batch = |mass| ProcessConditions {
+        process_temperature_k: Some(313.15),
+        scale: Some(Scale::MolOfReaction(10.0)),
+        reaction_mass_kg: Some(mass),
+        ..Default::default()
+    };
+    let nitration = case("benzene(l) + nitric acid(l) -> nitrobenzene(l) + water(l)", batch(5.0));
+    let reduction = case("nitrobenzene(l) + 3 H2(g) -> aniline(l) + 2 water(l)", batch(5.0));
+    let q1 = nitration.decomposition.as_ref().unwrap().heat_kj_per_kg;
+    let q2 = reduction.decomposition.as_ref().unwrap().heat_kj_per_kg;
+    assert!(q1 > q2, "nitrobenzene's mass {q1} kJ/kg vs aniline's {q2}");
+    let steps = [
+        RouteStep {
+            case_id: "n1",
+            route_id: "N",
+            step: 1,
+            result: Ok((&nitration).into()),
+        },
+        RouteStep {
+            case_id: "n2",
+            route_id: "N",
+            step: 2,
+            result: Ok((&reduction).into()),
+        },
+    ];
+    let r = &roll_up(&steps)[0];
+    let w = r.worst_decomposition_heat_kj_per_kg.as_ref().unwrap();
+    assert_eq!((w.case_id.as_str(), w.value), ("n1", q1));
+    assert_eq!(r.energetic_steps.len(), 1, "{:?}", r.energetic_steps);
+    assert_eq!(r.energetic_steps[0].case_id, "n1");
+    assert!(r.energetic_steps[0].value[0].starts_with("N-O"));
+}
+
+/// A formula-written tabulated species takes the energetic groups of its record's bundled
+/// structure (hydrogen peroxide's record H2O2 → contiguous O).
+#[test]
+fn formula_species_take_their_records_structure() {
+    let mut s = Screener::new(species::bundled(), TemperatureGrid::default_process());
+    let r = s.screen("2 H2O2(g) -> 2 H2O(g) + O2(g)").unwrap();
+    let peroxide = r.species.iter().find(|t| t.species.resolved.formula.hill() == "H2O2").unwrap();
+    let groups = peroxide.species.energetic_groups.as_ref().expect("a bundled structure");
+    assert_eq!(groups.len(), 1);
+    assert!(groups[0].name().starts_with("contiguous O"), "{groups:?}");
+}

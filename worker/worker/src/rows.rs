@@ -24,6 +24,9 @@ pub const STATUS_ERROR: &str = "error";
 /// Joins several notes or sources in one cell.
 pub const JOIN: &str = " | ";
 
+/// How `decomposition_notes` names an energetic group (the route roll-up reads it back).
+const ENERGETIC_PREFIX: &str = "energetic group: ";
+
 /// One row of `cases.parquet`.
 #[derive(Clone, Debug)]
 pub struct CaseRow {
@@ -160,7 +163,7 @@ fn process_columns(p: &CaseProcess) -> ProcessColumns {
         decomposition_adiabatic_rise_k: p.decomposition.as_ref().ok().map(|d| d.adiabatic_rise_k),
         decomposition_notes: match &p.decomposition {
             Ok(d) => {
-                let mut v: Vec<String> = d.energetic_groups.iter().map(|g| format!("energetic group: {g}")).collect();
+                let mut v: Vec<String> = d.energetic_groups.iter().map(|g| format!("{ENERGETIC_PREFIX}{g}")).collect();
                 v.extend(d.flags.iter().cloned());
                 (!v.is_empty()).then(|| v.join(JOIN))
             }
@@ -508,7 +511,7 @@ pub fn species_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
 }
 
 /// The cases columns [`route_steps`] reads (the finalizer reads only these back from parts).
-pub const ROUTE_STEP_COLUMNS: [&str; 14] = [
+pub const ROUTE_STEP_COLUMNS: [&str; 16] = [
     "case_id",
     "route_id",
     "step",
@@ -523,6 +526,8 @@ pub const ROUTE_STEP_COLUMNS: [&str; 14] = [
     "gas_mol_per_batch",
     "gas_m3_at_0c_1atm",
     "reaction_mol_per_batch",
+    "decomposition_heat_max_kj_per_kg",
+    "decomposition_notes",
 ];
 
 /// The roll-up inputs of the route steps in a cases frame: `(case_id, route_id, step, result)`
@@ -544,13 +549,15 @@ pub fn route_steps(df: &DataFrame) -> PolarsResult<Vec<RouteStep<'_>>> {
     let step = df.column("step")?.u32()?;
     let class = df.column("criticality_class")?.u32()?;
     let in_range = df.column("in_valid_range_at_process")?.bool()?;
-    let (heat, rise, gas_mol, gas_m3, mol) = (
+    let (heat, rise, gas_mol, gas_m3, mol, decomposition) = (
         num("heat_kj_per_batch")?,
         num("adiabatic_rise_k")?,
         num("gas_mol_per_batch")?,
         num("gas_m3_at_0c_1atm")?,
         num("reaction_mol_per_batch")?,
+        num("decomposition_heat_max_kj_per_kg")?,
     );
+    let decomposition_notes = df.column("decomposition_notes")?.str()?;
     let mut out = Vec::new();
     for i in 0..df.height() {
         let Some(route_id) = route.get(i).filter(|r| !r.is_empty()) else {
@@ -573,6 +580,12 @@ pub fn route_steps(df: &DataFrame) -> PolarsResult<Vec<RouteStep<'_>>> {
                 gas_m3_at_stp: gas_m3.get(i).unwrap_or(f64::NAN),
                 scale: Scale::MolOfReaction(mol.get(i).unwrap_or(f64::NAN)),
                 reaction_mol: mol.get(i).unwrap_or(f64::NAN),
+                decomposition_heat_kj_per_kg: decomposition.get(i),
+                energetic_groups: decomposition_notes.get(i).map_or_else(Vec::new, |s| {
+                    s.split(JOIN)
+                        .filter_map(|n| n.strip_prefix(ENERGETIC_PREFIX).map(String::from))
+                        .collect()
+                }),
             })
         };
         out.push(RouteStep {
@@ -701,6 +714,25 @@ pub fn routes_frame(summaries: &[RouteSummary]) -> PolarsResult<DataFrame> {
             ),
             col("heat_kj_per_kg_final_product", n(&|r| per_kg(r).map(|p| p.1))),
             col("final_product", s(&|r| per_kg(r).map(|p| p.0))),
+            col(
+                "worst_decomposition_heat_kj_per_kg",
+                n(&|r| r.worst_decomposition_heat_kj_per_kg.as_ref().map(|w| w.value)),
+            ),
+            col(
+                "worst_decomposition_case_id",
+                s(&|r| r.worst_decomposition_heat_kj_per_kg.as_ref().map(|w| w.case_id.clone())),
+            ),
+            col(
+                "energetic_steps",
+                s(&|r| {
+                    let f: Vec<String> = r
+                        .energetic_steps
+                        .iter()
+                        .map(|e| format!("step {} (case {}): {}", e.step, e.case_id, e.value.join("; ")))
+                        .collect();
+                    joined(&f)
+                }),
+            ),
             col("total_gas_mol_per_batch", n(&|r| r.total_gas_mol)),
             col("total_gas_m3_at_0c_1atm", n(&|r| r.total_gas_m3_at_stp)),
             col(

@@ -94,3 +94,23 @@ fn the_phase_option_sets_the_state_of_smiles_species() {
     let (code, _, err) = eval(&[burn, "--phase", "plasma"]);
     assert_eq!(code, 2, "{err}");
 }
+
+#[test]
+fn eval_shows_decomposition_heats_and_energetic_groups() {
+    // Nitrobenzene(l) in its bundled record (ChemSep v8.3: ΔfH°(g) 67.500 − ΔvapH 55.949 =
+    // 11.551 kJ/mol) decomposes at most to 2 H2O(l) (NASA −285.83) + 0.5 H2 + 0.5 N2 + 6 C(gr):
+    // 11.551 + 571.66 = 583.2 kJ/mol. The mass after the reduction is aniline and water:
+    // aniline(l) (ChemSep 87.100 − 55.107 = 31.993 kJ/mol) per 129.16 g of reactants = 248 kJ/kg.
+    let (code, out, err) = eval(&[
+        "nitrobenzene(l) + 3 H2(g) -> aniline(l) + 2 water(l)",
+        "--process-temperature-c",
+        "40",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    assert!(out.contains("maximum decomposition heat 583.2 kJ/mol"), "{out}");
+    assert!(out.contains("energetic groups: N-O"), "{out}");
+    assert!(
+        out.contains("decomposition of the mass after reaction (maximum): 248 kJ/kg"),
+        "{out}"
+    );
+}

@@ -10,6 +10,7 @@
 use polars::prelude::{Column, DataFrame, PolarsResult};
 use std::collections::HashSet;
 use std::sync::Arc;
+use thermosieve_engine::decomposition::Decomposition;
 use thermosieve_engine::process::{self, Assessment, CaseProcess, CriticalityClass, ProcessConditions, Scale};
 use thermosieve_engine::routes::{roll_up, HeatPerProduct, RouteScore, RouteStep, RouteSummary, StepFacts};
 use thermosieve_engine::screen::Prepared;
@@ -425,6 +426,13 @@ pub fn species_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
     let at_298 = |p: &Prepared| p.resolved.state(T_REF_K, T_REF_K.ln());
     let n = |f: &dyn Fn(&Prepared) -> f64| species.iter().map(|p| f(p)).collect::<Vec<f64>>();
     let joined = |v: &[String]| (!v.is_empty()).then(|| v.join(JOIN));
+    // A decomposition figure per species; null where the species has none.
+    let dn = |f: &dyn Fn(&Decomposition) -> Option<f64>| {
+        species
+            .iter()
+            .map(|p| p.decomposition.as_ref().ok().and_then(f))
+            .collect::<Vec<Option<f64>>>()
+    };
     DataFrame::new(
         species.len(),
         vec![
@@ -460,27 +468,9 @@ pub fn species_frame(rows: &[CaseRow]) -> PolarsResult<DataFrame> {
                 "delta_fh_uncertainty_basis",
                 species.iter().map(|p| p.resolved.sigma_basis.as_str()).collect::<Vec<&str>>(),
             ),
-            col(
-                "decomposition_heat_max_kj_per_mol",
-                species
-                    .iter()
-                    .map(|p| p.decomposition.as_ref().ok().map(|d| d.heat_kj_per_mol))
-                    .collect::<Vec<Option<f64>>>(),
-            ),
-            col(
-                "decomposition_heat_max_kj_per_kg",
-                species
-                    .iter()
-                    .map(|p| p.decomposition.as_ref().ok().map(|d| d.heat_kj_per_kg))
-                    .collect::<Vec<Option<f64>>>(),
-            ),
-            col(
-                "decomposition_heat_sigma_kj_per_mol",
-                species
-                    .iter()
-                    .map(|p| p.decomposition.as_ref().ok().and_then(|d| d.sigma_kj_per_mol))
-                    .collect::<Vec<Option<f64>>>(),
-            ),
+            col("decomposition_heat_max_kj_per_mol", dn(&|d| Some(d.heat_kj_per_mol))),
+            col("decomposition_heat_max_kj_per_kg", dn(&|d| Some(d.heat_kj_per_kg))),
+            col("decomposition_heat_sigma_kj_per_mol", dn(&|d| d.sigma_kj_per_mol)),
             col(
                 "decomposition_products",
                 species

@@ -143,6 +143,7 @@ fn stages(demo: &[CaseInput], n: usize, chunk_size: usize) -> anyhow::Result<()>
         chunk_size,
         label: "stages".into(),
         created_unix_ms: 0,
+        tenant: String::new(),
     };
     let all: Vec<CaseInput> = cases(demo, n).collect();
     let mut processor = ChunkProcessor::new();

@@ -53,8 +53,27 @@ def main():
     ap.add_argument("--front", required=True)
     ap.add_argument("--input", required=True)
     ap.add_argument("--out", required=True)
+    ap.add_argument("--tls-ca", help="CA certificate (PEM) of a front with TLS")
     a = ap.parse_args()
-    channel = grpc.insecure_channel(a.front)
+    # The token comes from the environment, never from the command line.
+    token = os.environ.get("THERMOSIEVE_TOKEN")
+    if a.tls_ca:
+        with open(a.tls_ca, "rb") as f:
+            creds = grpc.ssl_channel_credentials(root_certificates=f.read())
+        if token:
+            creds = grpc.composite_channel_credentials(creds, grpc.access_token_call_credentials(token))
+        channel = grpc.secure_channel(a.front, creds)
+    else:
+        channel = grpc.insecure_channel(a.front)
+    if a.tls_ca and token:
+        # Without the token the front refuses the call.
+        bare = grpc.secure_channel(a.front, grpc.ssl_channel_credentials(root_certificates=open(a.tls_ca, "rb").read()))
+        try:
+            rpc.ScreeningStub(bare).GetBatchStatus(pb.GetBatchStatusRequest(batch_id="0" * 32), timeout=30)
+            raise AssertionError("a call without a token was served")
+        except grpc.RpcError as e:
+            assert e.code() == grpc.StatusCode.UNAUTHENTICATED, e
+        print("python client: a call without the token is UNAUTHENTICATED")
     grpc.channel_ready_future(channel).result(timeout=30)
     stub = rpc.ScreeningStub(channel)
     all_cases = list(cases(a.input))

@@ -33,11 +33,41 @@ for _ in $(seq 100); do
     sleep 0.1
 done
 FPORT=$(free_port)
+# The front as it would be exposed: TLS (a CA and a certificate for localhost made here) and a
+# bearer token, read by the clients from the environment.
+openssl req -x509 -newkey rsa:2048 -nodes -days 1 -subj "/CN=thermosieve check CA" \
+    -keyout "$WORK/ca.key" -out "$WORK/ca.pem" 2>/dev/null
+openssl req -newkey rsa:2048 -nodes -subj "/CN=localhost" -keyout "$WORK/front.key" -out "$WORK/front.csr" 2>/dev/null
+printf 'subjectAltName=DNS:localhost\nbasicConstraints=CA:FALSE\n' > "$WORK/front.ext"
+openssl x509 -req -days 1 -in "$WORK/front.csr" -CA "$WORK/ca.pem" -CAkey "$WORK/ca.key" -CAcreateserial \
+    -extfile "$WORK/front.ext" -out "$WORK/front.pem" 2>/dev/null
+TOKEN=$(openssl rand -hex 24)
+printf '# tenant token\nnightly-check %s\n' "$TOKEN" > "$WORK/tokens"
 export THERMOSIEVE_REDIS_URL=redis://127.0.0.1:$RPORT/ THERMOSIEVE_RESULTS_DIR=$WORK/results THERMOSIEVE_LOG=warn
-"$BIN" serve --listen 127.0.0.1:"$FPORT" >/dev/null &
+"$BIN" serve --listen 127.0.0.1:"$FPORT" --tls-cert "$WORK/front.pem" --tls-key "$WORK/front.key" \
+    --tokens-file "$WORK/tokens" >/dev/null &
 PIDS+=($!)
 "$BIN" work --threads 2 >/dev/null &
 PIDS+=($!)
 
 "$VENV/bin/python" -m grpc_tools.protoc -I proto --python_out="$WORK" --grpc_python_out="$WORK" proto/thermosieve/v1/screening.proto
-PYTHONPATH=$WORK "$VENV/bin/python" scripts/python_client_check.py --front 127.0.0.1:"$FPORT" --input examples/nightly_screen.csv --out "$WORK/fetched"
+THERMOSIEVE_TOKEN=$TOKEN PYTHONPATH=$WORK "$VENV/bin/python" scripts/python_client_check.py \
+    --front localhost:"$FPORT" --tls-ca "$WORK/ca.pem" --input examples/nightly_screen.csv --out "$WORK/fetched"
+
+# The CLI's own client through the same front: submit, watch, fetch with TLS and the token.
+export THERMOSIEVE_FRONT=https://localhost:$FPORT THERMOSIEVE_TLS_CA=$WORK/ca.pem
+echo "$TOKEN" > "$WORK/token"
+ID=$(THERMOSIEVE_TOKEN_FILE=$WORK/token "$BIN" submit examples/nightly_screen.csv --label "cli check" 2>/dev/null)
+THERMOSIEVE_TOKEN=$TOKEN "$BIN" watch "$ID" >/dev/null
+THERMOSIEVE_TOKEN=$TOKEN "$BIN" fetch "$ID" --out "$WORK/cli-fetched" >/dev/null
+CASES=$(grep -A3 '"counts"' "$WORK/cli-fetched/manifest.json" | sed -n 's/.*"cases": \([0-9]*\).*/\1/p')
+ROWS=$(($(wc -l < examples/nightly_screen.csv) - 1))
+if [ "$CASES" != "$ROWS" ]; then
+    echo "cli check: the fetched manifest counts $CASES cases, the input has $ROWS" >&2
+    exit 1
+fi
+if THERMOSIEVE_TOKEN=not-the-token-at-all "$BIN" fetch "$ID" --out "$WORK/stranger" 2>/dev/null; then
+    echo "cli check: a wrong token fetched the batch" >&2
+    exit 1
+fi
+echo "cli client over TLS with a token: $CASES cases fetched; a wrong token is refused"

@@ -22,6 +22,7 @@ cargo test --workspace --locked
 
 if command -v python3 >/dev/null 2>&1; then
     scripts/python_client_check.sh
+    scripts/check_manifests.sh
 else
-    echo "python3 not found: skipping the Python client check"
+    echo "python3 not found: skipping the Python client check and the manifest check"
 fi

@@ -23,9 +23,11 @@ pub fn demo_csv() -> PathBuf {
 
 /// A redis-server of this test's own, killed on drop.
 pub struct RedisServer {
-    child: Child,
+    child: Option<Child>,
     pub port: u16,
-    _dir: tempfile::TempDir,
+    /// Append-only file on (fsync on every write), so a restart keeps the data.
+    aof: bool,
+    dir: tempfile::TempDir,
 }
 
 impl RedisServer {
@@ -35,20 +37,64 @@ impl RedisServer {
     /// When redis-server is not installed (with a message that says how to install it) or
     /// does not answer within 10 s.
     pub fn start() -> RedisServer {
-        let bin = std::env::var("THERMOSIEVE_TEST_REDIS_SERVER").unwrap_or_else(|_| "redis-server".into());
+        RedisServer::start_with(false)
+    }
+
+    /// Start `redis-server` on a free port with the append-only file on (`appendfsync always`).
+    ///
+    /// # Panics
+    /// As [`RedisServer::start`].
+    pub fn start_with_aof() -> RedisServer {
+        RedisServer::start_with(true)
+    }
+
+    fn start_with(aof: bool) -> RedisServer {
         let port = TcpListener::bind("127.0.0.1:0")
             .and_then(|l| l.local_addr())
             .map(|a| a.port())
             .expect("no free loopback port");
-        let dir = tempfile::tempdir().expect("temp dir");
+        let mut server = RedisServer {
+            child: None,
+            port,
+            aof,
+            dir: tempfile::tempdir().expect("temp dir"),
+        };
+        server.restart();
+        server
+    }
+
+    /// Kill the server at once (SIGKILL): no shutdown save.
+    pub fn kill(&mut self) {
+        if let Some(mut c) = self.child.take() {
+            let _ = c.kill();
+            let _ = c.wait();
+        }
+    }
+
+    /// Start the server again on the same port and folder (after [`RedisServer::kill`]); with
+    /// the append-only file on it comes back with its data.
+    ///
+    /// # Panics
+    /// As [`RedisServer::start`].
+    pub fn restart(&mut self) {
+        self.kill();
+        let bin = std::env::var("THERMOSIEVE_TEST_REDIS_SERVER").unwrap_or_else(|_| "redis-server".into());
+        let persistence: &[&str] = if self.aof {
+            &["--appendonly", "yes", "--appendfsync", "always"]
+        } else {
+            &["--appendonly", "no"]
+        };
         let child = Command::new(&bin)
-            .args(["--port", &port.to_string(), "--bind", "127.0.0.1", "--save", "", "--appendonly", "no", "--dir"])
-            .arg(dir.path())
+            .args(["--port", &self.port.to_string(), "--bind", "127.0.0.1", "--save", ""])
+            .args(persistence)
+            .arg("--dir")
+            .arg(self.dir.path())
             .stdout(Stdio::null())
             .stderr(Stdio::null())
             .spawn()
             .unwrap_or_else(|e| panic!("cannot start {bin:?} ({e}): these tests need a real redis-server (Redis 7+). Install it with `apt-get install -y redis-server` (or run scripts/test.sh, which does), or point THERMOSIEVE_TEST_REDIS_SERVER at the binary."));
-        let server = RedisServer { child, port, _dir: dir };
+        self.child = Some(child);
+        let port = self.port;
         let deadline = Instant::now() + Duration::from_secs(10);
         // Ready when it answers PING (a bare connect can succeed before it serves).
         while !pong(port) {
@@ -58,7 +104,6 @@ impl RedisServer {
             );
             std::thread::sleep(Duration::from_millis(20));
         }
-        server
     }
 
     pub fn url(&self) -> String {
@@ -68,8 +113,7 @@ impl RedisServer {
 
 impl Drop for RedisServer {
     fn drop(&mut self) {
-        let _ = self.child.kill();
-        let _ = self.child.wait();
+        self.kill();
     }
 }
 

@@ -17,6 +17,10 @@ use thermosieve_proto::v1::screening_client::ScreeningClient;
 use thermosieve_queue::{BatchState, Queue, RedisConfig, RedisQueue};
 use thermosieve_worker::WorkerConfig;
 
+mod access;
+mod faults;
+mod validation;
+
 fn demo_cases() -> Vec<thermosieve_queue::CaseInput> {
     input::open(&demo_csv(), None).expect("demo input").collect()
 }
@@ -323,7 +327,16 @@ fn worker_config(results: &Path, name: &str) -> WorkerConfig {
 
 impl Service {
     async fn start(workers: usize, tune: impl Fn(&mut WorkerConfig)) -> Service {
-        let redis = RedisServer::start();
+        Service::start_with(workers, tune, thermosieve_front::Access::default(), RedisServer::start()).await
+    }
+
+    /// A front with `access` (TLS, tokens) and `workers` workers on `redis`.
+    async fn start_with(
+        workers: usize,
+        tune: impl Fn(&mut WorkerConfig),
+        access: thermosieve_front::Access,
+        redis: RedisServer,
+    ) -> Service {
         let results = tempfile::tempdir().unwrap();
         let listener = tokio::net::TcpListener::bind("127.0.0.1:0").await.unwrap();
         let addr = listener.local_addr().unwrap();
@@ -338,7 +351,7 @@ impl Service {
         let (tx, rx) = tokio::sync::oneshot::channel::<()>();
         stop.push(tx);
         tasks.push(tokio::spawn(async move {
-            thermosieve_front::serve(listener, front, async move {
+            thermosieve_front::serve(listener, front, access, async move {
                 let _ = rx.await;
             })
             .await

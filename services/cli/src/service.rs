@@ -7,9 +7,10 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 use std::sync::Arc;
 use std::time::Duration;
+use thermosieve_front::auth::Tokens;
 use thermosieve_front::ingest::{BatchOptions, IngestLimits};
 use thermosieve_front::input::{self, Format};
-use thermosieve_front::{convert, Front, FrontConfig};
+use thermosieve_front::{convert, Access, Front, FrontConfig};
 use thermosieve_proto::v1 as pb;
 use thermosieve_proto::v1::screening_client::ScreeningClient;
 use thermosieve_queue::{Queue, RedisConfig, RedisQueue};
@@ -62,9 +63,23 @@ pub struct RedisArgs {
 
 #[derive(clap::Args, Debug)]
 pub struct ServeArgs {
-    /// Address to listen on.
-    #[arg(long, default_value = "0.0.0.0:50051", env = "THERMOSIEVE_LISTEN")]
+    /// Address to listen on. Loopback by default; to expose the front, give an address and
+    /// set --tls-cert/--tls-key and --tokens-file.
+    #[arg(long, default_value = "127.0.0.1:50051", env = "THERMOSIEVE_LISTEN")]
     pub listen: SocketAddr,
+    /// The front's TLS certificate chain (PEM); with --tls-key, the front speaks only TLS.
+    #[arg(long, env = "THERMOSIEVE_TLS_CERT", requires = "tls_key")]
+    pub tls_cert: Option<PathBuf>,
+    /// The private key of --tls-cert (PEM file).
+    #[arg(long, env = "THERMOSIEVE_TLS_KEY", requires = "tls_cert")]
+    pub tls_key: Option<PathBuf>,
+    /// CA certificate (PEM): clients must present a certificate it signed.
+    #[arg(long, env = "THERMOSIEVE_TLS_CLIENT_CA", requires = "tls_cert")]
+    pub tls_client_ca: Option<PathBuf>,
+    /// Bearer tokens: one `tenant token` pair per line; each tenant sees only its own batches.
+    /// Without it every caller is one anonymous tenant.
+    #[arg(long, env = "THERMOSIEVE_TOKENS_FILE")]
+    pub tokens_file: Option<PathBuf>,
     /// Results folder shared with the workers.
     #[arg(long, env = "THERMOSIEVE_RESULTS_DIR")]
     pub results_dir: PathBuf,
@@ -105,13 +120,33 @@ pub struct WorkArgs {
     pub keep_parts: bool,
 }
 
+/// How a client reaches the front.
+#[derive(clap::Args, Debug)]
+pub struct FrontArgs {
+    /// Front address; https://… for a front with TLS.
+    #[arg(long, default_value = "http://127.0.0.1:50051", env = "THERMOSIEVE_FRONT")]
+    pub front: String,
+    /// CA certificate (PEM) that signed the front's certificate (needed for https://).
+    #[arg(long, env = "THERMOSIEVE_TLS_CA")]
+    pub tls_ca: Option<PathBuf>,
+    /// This client's certificate (PEM), for a front that requires client certificates.
+    #[arg(long, env = "THERMOSIEVE_TLS_CLIENT_CERT", requires = "tls_client_key")]
+    pub tls_client_cert: Option<PathBuf>,
+    /// The private key of --tls-client-cert (PEM file).
+    #[arg(long, env = "THERMOSIEVE_TLS_CLIENT_KEY", requires = "tls_client_cert")]
+    pub tls_client_key: Option<PathBuf>,
+    /// File holding this client's bearer token. The token may instead be given in the
+    /// environment variable THERMOSIEVE_TOKEN; never on a command line.
+    #[arg(long, env = "THERMOSIEVE_TOKEN_FILE")]
+    pub token_file: Option<PathBuf>,
+}
+
 #[derive(clap::Args, Debug)]
 pub struct SubmitArgs {
     /// Input table: .csv, .tsv, .jsonl or .parquet.
     pub input: PathBuf,
-    /// Front address.
-    #[arg(long, default_value = "http://127.0.0.1:50051", env = "THERMOSIEVE_FRONT")]
-    pub front: String,
+    #[command(flatten)]
+    pub front: FrontArgs,
     /// Grid temperatures in K, comma-separated.
     #[arg(long, value_delimiter = ',', env = "THERMOSIEVE_TEMPERATURES_K")]
     pub temperatures_k: Option<Vec<f64>>,
@@ -130,8 +165,8 @@ pub struct SubmitArgs {
 pub struct WatchArgs {
     /// The batch id printed by submit.
     pub batch_id: String,
-    #[arg(long, default_value = "http://127.0.0.1:50051", env = "THERMOSIEVE_FRONT")]
-    pub front: String,
+    #[command(flatten)]
+    pub front: FrontArgs,
 }
 
 #[derive(clap::Args, Debug)]
@@ -141,8 +176,8 @@ pub struct FetchArgs {
     /// Folder to write cases.parquet, trends.parquet, routes.parquet, species.parquet and manifest.json into.
     #[arg(long, env = "THERMOSIEVE_OUT")]
     pub out: PathBuf,
-    #[arg(long, default_value = "http://127.0.0.1:50051", env = "THERMOSIEVE_FRONT")]
-    pub front: String,
+    #[command(flatten)]
+    pub front: FrontArgs,
 }
 
 pub enum Cmd {
@@ -323,11 +358,24 @@ async fn serve(a: ServeArgs) -> anyhow::Result<()> {
         },
         watch_interval: Duration::from_millis(250),
     };
+    let access = Access {
+        tls: match (&a.tls_cert, &a.tls_key) {
+            (Some(cert), Some(key)) => Some(Access::tls_from_files(cert, key, a.tls_client_ca.as_deref())?),
+            _ => None,
+        },
+        tokens: a.tokens_file.as_deref().map(Tokens::from_file).transpose()?,
+    };
+    if !a.listen.ip().is_loopback() && (access.tls.is_none() || access.tokens.is_none()) {
+        tracing::warn!(
+            listen = %a.listen,
+            "the front listens beyond loopback without TLS and tokens: anyone who reaches the port can submit, and read a batch given its id"
+        );
+    }
     let listener = tokio::net::TcpListener::bind(a.listen)
         .await
         .with_context(|| format!("binding {}", a.listen))?;
     println!("listening on {}", listener.local_addr()?);
-    thermosieve_front::serve(listener, Arc::new(Front::new(queue, cfg)), shutdown_signal()).await?;
+    thermosieve_front::serve(listener, Arc::new(Front::new(queue, cfg)), access, shutdown_signal()).await?;
     Ok(())
 }
 
@@ -355,16 +403,81 @@ async fn work(a: WorkArgs) -> anyhow::Result<()> {
     Ok(())
 }
 
-async fn client(front: &str) -> anyhow::Result<ScreeningClient<tonic::transport::Channel>> {
-    let c = ScreeningClient::connect(front.to_string())
+/// Adds this client's bearer token to every call. The value is marked sensitive, so it never
+/// appears in debug output.
+#[derive(Clone)]
+struct Bearer(Option<tonic::metadata::MetadataValue<tonic::metadata::Ascii>>);
+
+impl tonic::service::Interceptor for Bearer {
+    fn call(&mut self, mut request: tonic::Request<()>) -> Result<tonic::Request<()>, tonic::Status> {
+        if let Some(v) = &self.0 {
+            request.metadata_mut().insert("authorization", v.clone());
+        }
+        Ok(request)
+    }
+}
+
+type Client = ScreeningClient<tonic::service::interceptor::InterceptedService<tonic::transport::Channel, Bearer>>;
+
+fn read_pem(path: &std::path::Path, what: &str) -> anyhow::Result<Vec<u8>> {
+    std::fs::read(path).with_context(|| format!("reading {what} {}", path.display()))
+}
+
+/// The token from --token-file, else from THERMOSIEVE_TOKEN; none when neither is set.
+fn bearer(a: &FrontArgs) -> anyhow::Result<Bearer> {
+    let token = match &a.token_file {
+        Some(p) => Some(
+            std::fs::read_to_string(p)
+                .with_context(|| format!("reading the token file {}", p.display()))?
+                .trim()
+                .to_string(),
+        ),
+        None => std::env::var("THERMOSIEVE_TOKEN").ok().map(|t| t.trim().to_string()),
+    };
+    let Some(token) = token.filter(|t| !t.is_empty()) else {
+        return Ok(Bearer(None));
+    };
+    let mut v: tonic::metadata::MetadataValue<tonic::metadata::Ascii> = format!("Bearer {token}")
+        .parse()
+        .map_err(|_| Usage("the bearer token holds characters a header cannot carry".into()))?;
+    v.set_sensitive(true);
+    Ok(Bearer(Some(v)))
+}
+
+async fn client(a: &FrontArgs) -> anyhow::Result<Client> {
+    let front = &a.front;
+    let mut endpoint = tonic::transport::Endpoint::from_shared(front.clone()).map_err(|e| Usage(format!("--front {front:?}: {e}")))?;
+    if front.starts_with("https://") {
+        let Some(ca) = &a.tls_ca else {
+            return Err(Usage(format!(
+                "--front {front}: https needs --tls-ca (THERMOSIEVE_TLS_CA), the CA that signed the front's certificate"
+            ))
+            .into());
+        };
+        let mut tls = tonic::transport::ClientTlsConfig::new()
+            .ca_certificate(tonic::transport::Certificate::from_pem(read_pem(ca, "the CA certificate")?));
+        if let (Some(cert), Some(key)) = (&a.tls_client_cert, &a.tls_client_key) {
+            tls = tls.identity(tonic::transport::Identity::from_pem(
+                read_pem(cert, "the client certificate")?,
+                read_pem(key, "the client key")?,
+            ));
+        }
+        endpoint = endpoint.tls_config(tls).context("TLS settings")?;
+    } else if a.tls_ca.is_some() || a.tls_client_cert.is_some() {
+        return Err(Usage(format!("--front {front}: TLS settings given, but the address is not https://")).into());
+    }
+    let channel = endpoint
+        .connect()
         .await
         .with_context(|| format!("connecting to the front at {front} (THERMOSIEVE_FRONT)"))?;
-    Ok(c.max_decoding_message_size(64 << 20))
+    Ok(ScreeningClient::with_interceptor(channel, bearer(a)?).max_decoding_message_size(64 << 20))
 }
 
 fn status_error(what: &str, s: tonic::Status) -> anyhow::Error {
     match s.code() {
-        tonic::Code::InvalidArgument | tonic::Code::NotFound => Usage(format!("{what}: {}", s.message())).into(),
+        tonic::Code::InvalidArgument | tonic::Code::NotFound | tonic::Code::Unauthenticated => {
+            Usage(format!("{what}: {}", s.message())).into()
+        }
         _ => anyhow::anyhow!("{what}: {} ({:?})", s.message(), s.code()),
     }
 }
@@ -405,6 +518,7 @@ async fn submit(a: SubmitArgs) -> anyhow::Result<()> {
         "submitted {} cases ({} input errors) in {} chunks",
         r.cases_received, r.input_errors, r.chunks
     );
+    eprintln!("caution: {}", thermosieve_engine::CAUTION);
     println!("{}", r.batch_id);
     Ok(())
 }
@@ -421,15 +535,11 @@ fn state_name(s: i32) -> &'static str {
     }
 }
 
+/// How long `watch` keeps trying while the front or its queue is unavailable.
+const WATCH_OUTAGE_LIMIT: Duration = Duration::from_secs(600);
+
 async fn watch(a: WatchArgs) -> anyhow::Result<()> {
     let mut c = client(&a.front).await?;
-    let mut stream = c
-        .watch_batch(pb::WatchBatchRequest {
-            batch_id: a.batch_id.clone(),
-        })
-        .await
-        .map_err(|s| status_error("watch", s))?
-        .into_inner();
     let bar = ProgressBar::new(0);
     bar.set_style(
         ProgressStyle::with_template("{spinner} {msg:>10} [{bar:40}] {pos}/{len} cases  {per_sec}  eta {eta}")
@@ -437,11 +547,42 @@ async fn watch(a: WatchArgs) -> anyhow::Result<()> {
             .progress_chars("=> "),
     );
     let mut last: Option<pb::BatchStatus> = None;
-    while let Some(s) = stream.message().await.map_err(|s| status_error("watch", s))? {
-        bar.set_length(s.cases_total);
-        bar.set_position(s.cases_done);
-        bar.set_message(state_name(s.state));
-        last = Some(s);
+    // A front restarting or a queue briefly gone (UNAVAILABLE) is waited out with backoff, up
+    // to WATCH_OUTAGE_LIMIT; any other error ends the watch.
+    let mut outage: Option<std::time::Instant> = None;
+    let mut backoff = Duration::from_millis(250);
+    loop {
+        let r = async {
+            let mut stream = c
+                .watch_batch(pb::WatchBatchRequest {
+                    batch_id: a.batch_id.clone(),
+                })
+                .await?
+                .into_inner();
+            while let Some(s) = stream.message().await? {
+                outage = None;
+                bar.set_length(s.cases_total);
+                bar.set_position(s.cases_done);
+                bar.set_message(state_name(s.state));
+                last = Some(s);
+            }
+            Ok::<(), tonic::Status>(())
+        }
+        .await;
+        match r {
+            Ok(()) => break,
+            Err(s) if s.code() == tonic::Code::Unavailable => {
+                let since = *outage.get_or_insert_with(std::time::Instant::now);
+                if since.elapsed() > WATCH_OUTAGE_LIMIT {
+                    return Err(status_error("watch", s));
+                }
+                bar.set_message("waiting");
+                tracing::warn!(error = s.message(), "the front is unavailable; watching again shortly");
+                tokio::time::sleep(backoff).await;
+                backoff = (backoff * 2).min(Duration::from_secs(5));
+            }
+            Err(s) => return Err(status_error("watch", s)),
+        }
     }
     bar.finish();
     let Some(s) = last else {
@@ -461,21 +602,32 @@ async fn watch(a: WatchArgs) -> anyhow::Result<()> {
             format!(" ({})", s.message)
         }
     );
+    println!("caution: {}", thermosieve_engine::CAUTION);
     if s.state != pb::BatchState::Done as i32 {
         return Err(BatchEnded(format!("batch {} ended {}", s.batch_id, state_name(s.state))).into());
     }
     Ok(())
 }
 
+/// A file being fetched: removed when dropped unless it was completed.
+struct Partial(PathBuf);
+
+impl Drop for Partial {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_file(&self.0);
+    }
+}
+
 async fn fetch(a: FetchArgs) -> anyhow::Result<()> {
     let mut c = client(&a.front).await?;
     std::fs::create_dir_all(&a.out).with_context(|| format!("creating {}", a.out.display()))?;
-    for table in [
-        pb::Table::Cases,
-        pb::Table::Trends,
-        pb::Table::Routes,
-        pb::Table::Species,
-        pb::Table::Manifest,
+    // Only these names are written, only inside --out: the name the front sends is checked, never used.
+    for (table, name) in [
+        (pb::Table::Cases, thermosieve_worker::CASES_FILE),
+        (pb::Table::Trends, thermosieve_worker::TRENDS_FILE),
+        (pb::Table::Routes, thermosieve_worker::ROUTES_FILE),
+        (pb::Table::Species, thermosieve_worker::SPECIES_FILE),
+        (pb::Table::Manifest, thermosieve_worker::MANIFEST_FILE),
     ] {
         let mut stream = c
             .fetch_table(pb::FetchTableRequest {
@@ -486,24 +638,37 @@ async fn fetch(a: FetchArgs) -> anyhow::Result<()> {
             .map_err(|s| status_error("fetch", s))?
             .into_inner();
         // Streamed to a temp file, renamed when complete: memory stays at one message.
-        let tmp = a.out.join(format!(".fetch-{}-{}.part", table as i32, std::process::id()));
-        let mut file = std::io::BufWriter::new(std::fs::File::create(&tmp).with_context(|| format!("writing {}", tmp.display()))?);
-        let mut name = String::new();
+        let tmp = Partial(a.out.join(format!(".fetch-{name}-{}.part", std::process::id())));
+        let mut file = std::io::BufWriter::new(std::fs::File::create(&tmp.0).with_context(|| format!("writing {}", tmp.0.display()))?);
         let mut written = 0u64;
+        let mut total = None;
         while let Some(chunk) = stream.message().await.map_err(|s| status_error("fetch", s))? {
-            name = chunk.file_name;
-            std::io::Write::write_all(&mut file, &chunk.data).with_context(|| format!("writing {}", tmp.display()))?;
+            if chunk.file_name != name {
+                bail!("fetch {name}: the front sent the file name {:?}; refusing it", chunk.file_name);
+            }
+            if chunk.offset != written || total.is_some_and(|t| t != chunk.total_bytes) {
+                bail!(
+                    "fetch {name}: the front sent bytes at offset {} of {} when {written} of {} had arrived",
+                    chunk.offset,
+                    chunk.total_bytes,
+                    total.unwrap_or(chunk.total_bytes)
+                );
+            }
+            total = Some(chunk.total_bytes);
+            std::io::Write::write_all(&mut file, &chunk.data).with_context(|| format!("writing {}", tmp.0.display()))?;
             written += chunk.data.len() as u64;
         }
-        std::io::Write::flush(&mut file).with_context(|| format!("writing {}", tmp.display()))?;
+        std::io::Write::flush(&mut file).with_context(|| format!("writing {}", tmp.0.display()))?;
         drop(file);
-        if name.is_empty() {
-            let _ = std::fs::remove_file(&tmp);
-            bail!("the front sent no data for {table:?}");
+        match total {
+            None => bail!("the front sent no data for {name}"),
+            Some(t) if t != written => bail!("fetch {name}: {written} bytes arrived of the {t} announced"),
+            Some(_) => {}
         }
-        let path = a.out.join(&name);
-        std::fs::rename(&tmp, &path).with_context(|| format!("writing {}", path.display()))?;
+        let path = a.out.join(name);
+        std::fs::rename(&tmp.0, &path).with_context(|| format!("writing {}", path.display()))?;
         println!("{} ({written} bytes)", path.display());
     }
+    println!("caution: {}", thermosieve_engine::CAUTION);
     Ok(())
 }

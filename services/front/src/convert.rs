@@ -49,22 +49,12 @@ fn non_empty(s: String) -> Option<String> {
 
 /// A wire case as the queue carries it. Nothing is rejected here: checks that make a case an
 /// error row happen in the ingest.
+/// A wire case as the model's; the checks come after, in [`crate::ingest::validate_case`], the
+/// same for every path.
 pub fn case_from_pb(c: pb::Case) -> CaseInput {
-    let mut input_error = non_empty(c.input_error);
+    let input_error = non_empty(c.input_error);
     let phase = non_empty(c.phase).map(|p| p.to_ascii_lowercase());
-    if let Some(p) = &phase {
-        if input_error.is_none() && !crate::input::PHASES.contains(&p.as_str()) {
-            input_error = Some(format!("column phase: expected one of gas, liquid, solid, standard, got {p:?}"));
-        }
-    }
     let conditions = conditions_from_pb(c.conditions);
-    for (name, v) in thermosieve_queue::CONDITION_FIELDS.iter().zip(conditions.values()) {
-        if let Some(v) = v {
-            if !v.is_finite() && input_error.is_none() {
-                input_error = Some(format!("column {name}: expected a finite number, got {v}"));
-            }
-        }
-    }
     CaseInput {
         case_id: c.case_id,
         reaction: c.reaction,

@@ -15,15 +15,28 @@ use std::hash::{Hash, Hasher};
 use std::sync::Arc;
 use std::time::{Duration, Instant};
 use thermosieve_engine::thermo::TemperatureGrid;
-use thermosieve_queue::{now_unix_ms, BatchSpec, BatchState, CaseInput, Chunk, Conditions, Queue};
+use thermosieve_queue::{now_unix_ms, BatchSpec, BatchState, CaseInput, Chunk, Conditions, Queue, QueueError};
 
 /// Most steps in one route.
 pub const MAX_ROUTE_STEPS: usize = 1000;
 /// Longest case id and reaction text accepted, bytes.
 pub const MAX_CASE_ID_BYTES: usize = 256;
 pub const MAX_REACTION_BYTES: usize = 4096;
+pub const MAX_ROUTE_ID_BYTES: usize = 256;
 /// Chunk size bounds.
 pub const MAX_CHUNK_SIZE: usize = 10_000;
+/// A chunk is closed at the next route boundary once its cases hold this many bytes, whatever
+/// their count: it bounds a worker's chunk in memory and a queue entry in Redis.
+pub const MAX_CHUNK_BYTES: usize = 8 << 20;
+/// Free-form columns (`extra`) of one case: at most this many, and this many bytes in all.
+pub const MAX_EXTRA_KEYS: usize = 32;
+pub const MAX_EXTRA_BYTES: usize = 4096;
+
+/// The bytes a case holds, roughly (texts plus a fixed part for the numbers).
+fn case_bytes(c: &CaseInput) -> usize {
+    let extra: usize = c.conditions.extra.iter().map(|(k, v)| k.len() + v.len()).sum();
+    256 + c.case_id.len() + c.reaction.len() + c.route_id.as_ref().map_or(0, String::len) + extra
+}
 
 /// Limits of the front.
 #[derive(Clone, Debug)]
@@ -101,15 +114,8 @@ pub fn batch_spec(options: BatchOptions, limits: &IngestLimits) -> Result<BatchS
         }
         n => n,
     };
-    for (name, v) in thermosieve_queue::CONDITION_FIELDS.iter().zip(options.default_conditions.values()) {
-        if let Some(v) = v {
-            if !v.is_finite() || v < 0.0 {
-                return Err(FrontError::invalid(
-                    &format!("header.default_conditions.{name}"),
-                    format!("expected a finite number ≥ 0, got {v}"),
-                ));
-            }
-        }
+    if let Some(e) = options.default_conditions.range_errors().into_iter().next() {
+        return Err(FrontError::invalid("header.default_conditions", e));
     }
     if options.label.len() > 1024 {
         return Err(FrontError::invalid("header.label", "longer than 1024 bytes"));
@@ -121,6 +127,7 @@ pub fn batch_spec(options: BatchOptions, limits: &IngestLimits) -> Result<BatchS
         chunk_size,
         label: options.label,
         created_unix_ms: now_unix_ms(),
+        tenant: String::new(),
     })
 }
 
@@ -140,6 +147,8 @@ pub struct Ingest {
     route: Option<String>,
     route_steps: usize,
     closed_routes: HashSet<u64>,
+    /// Approximate bytes of the chunk being filled (see [`case_bytes`]).
+    chunk_bytes: usize,
     cases: u64,
     input_errors: u64,
 }
@@ -158,7 +167,7 @@ impl Ingest {
             });
         }
         queue.create_batch(&spec).await?;
-        tracing::info!(batch_id = %spec.batch_id, chunk_size = spec.chunk_size, grid_points = spec.temperatures_k.len(), "batch created");
+        tracing::info!(batch = crate::auth::batch_ref(&spec.batch_id), tenant = %spec.tenant, chunk_size = spec.chunk_size, grid_points = spec.temperatures_k.len(), "batch created");
         Ok(Ingest {
             queue,
             limits,
@@ -168,6 +177,7 @@ impl Ingest {
             route: None,
             route_steps: 0,
             closed_routes: HashSet::new(),
+            chunk_bytes: 0,
             cases: 0,
             input_errors: 0,
         })
@@ -204,7 +214,7 @@ impl Ingest {
             if let Some(r) = self.route.take() {
                 self.closed_routes.insert(route_hash(&r));
             }
-            if self.chunk.len() >= self.spec.chunk_size {
+            if self.chunk.len() >= self.spec.chunk_size || self.chunk_bytes >= MAX_CHUNK_BYTES {
                 self.flush().await?;
             }
             if let Some(r) = &case.route_id {
@@ -221,6 +231,7 @@ impl Ingest {
         if case.input_error.is_some() {
             self.input_errors += 1;
         }
+        self.chunk_bytes += case_bytes(&case);
         self.chunk.push(case);
         Ok(())
     }
@@ -229,42 +240,42 @@ impl Ingest {
         if self.chunk.is_empty() {
             return Ok(());
         }
-        self.wait_for_room().await?;
         let chunk = Chunk {
             batch_id: self.spec.batch_id.clone(),
             seq: self.seq,
             cases: std::mem::take(&mut self.chunk),
         };
-        self.queue.enqueue(&chunk).await?;
-        self.seq += 1;
-        Ok(())
-    }
-
-    async fn wait_for_room(&self) -> Result<(), FrontError> {
+        // The queue checks its depth and adds in one step; a full queue is waited on up to
+        // `enqueue_wait`, then the submission is refused.
         let deadline = Instant::now() + self.limits.enqueue_wait;
         loop {
-            let depth = self.queue.depth().await?;
-            if depth <= self.limits.max_queue_depth {
-                return Ok(());
+            match self.queue.enqueue(&chunk, self.limits.max_queue_depth).await {
+                Ok(()) => break,
+                Err(QueueError::Full { .. }) if Instant::now() < deadline => {
+                    tokio::time::sleep(Duration::from_millis(100)).await;
+                }
+                Err(QueueError::Full { depth }) => {
+                    return Err(FrontError::QueueFull {
+                        depth,
+                        limit: self.limits.max_queue_depth,
+                    })
+                }
+                Err(e) => return Err(e.into()),
             }
-            if Instant::now() >= deadline {
-                return Err(FrontError::QueueFull {
-                    depth,
-                    limit: self.limits.max_queue_depth,
-                });
-            }
-            tokio::time::sleep(Duration::from_millis(100)).await;
         }
+        self.chunk_bytes = 0;
+        self.seq += 1;
+        Ok(())
     }
 
     /// Enqueue the last chunk and seal the batch.
     ///
     /// # Errors
     /// As [`Ingest::push`].
-    pub async fn finish(mut self) -> Result<Submitted, FrontError> {
+    pub async fn finish(&mut self) -> Result<Submitted, FrontError> {
         self.flush().await?;
         self.queue.seal(&self.spec.batch_id).await?;
-        tracing::info!(batch_id = %self.spec.batch_id, cases = self.cases, chunks = self.seq, input_errors = self.input_errors, "batch sealed");
+        tracing::info!(batch = crate::auth::batch_ref(&self.spec.batch_id), tenant = %self.spec.tenant, cases = self.cases, chunks = self.seq, input_errors = self.input_errors, "batch sealed");
         Ok(Submitted {
             batch_id: self.spec.batch_id.clone(),
             cases: self.cases,
@@ -275,19 +286,28 @@ impl Ingest {
 
     /// The submission broke off: fail the batch so nobody waits for it.
     pub async fn abort(self, reason: &str) {
-        tracing::warn!(batch_id = %self.spec.batch_id, reason, "submission aborted");
+        tracing::warn!(batch = crate::auth::batch_ref(&self.spec.batch_id), reason, "submission aborted");
         if let Err(e) = self.queue.stop_batch(&self.spec.batch_id, BatchState::Failed, reason).await {
-            tracing::error!(batch_id = %self.spec.batch_id, error = %e, "could not mark the batch failed");
+            tracing::error!(batch = crate::auth::batch_ref(&self.spec.batch_id), error = %e, "could not mark the batch failed");
         }
     }
 }
 
-/// Mark a case that cannot be screened as an error (it keeps its row).
-fn validate_case(case: &mut CaseInput) {
+/// The checks every case gets on every path (table rows, gRPC cases, ScreenInline): a failing
+/// case becomes an error row naming its row and field.
+pub fn validate_case(case: &mut CaseInput) {
+    let extra_bytes: usize = case.conditions.extra.iter().map(|(k, v)| k.len() + v.len()).sum();
+    let n = case.conditions.extra.len();
+    let extra_error = (n > MAX_EXTRA_KEYS || extra_bytes > MAX_EXTRA_BYTES).then(|| {
+        // Not kept, even on a row that is already an error: memory stays bounded.
+        case.conditions.extra.clear();
+        format!("extra columns: {n} columns of {extra_bytes} bytes; at most {MAX_EXTRA_KEYS} columns and {MAX_EXTRA_BYTES} bytes per case")
+    });
     if case.input_error.is_some() {
         return;
     }
     let row = case.row;
+    let ranges = case.conditions.range_errors();
     let err = if case.case_id.trim().is_empty() {
         case.case_id = format!("row-{row}");
         Some("column case_id: missing (every case needs an id; this row is reported as row-N)".to_string())
@@ -300,6 +320,16 @@ fn validate_case(case: &mut CaseInput) {
         Some("column reaction: missing (expected a reaction equation such as \"CO(g) + H2O(g) -> CO2(g) + H2(g)\")".to_string())
     } else if case.reaction.len() > MAX_REACTION_BYTES {
         Some(format!("column reaction: longer than {MAX_REACTION_BYTES} bytes"))
+    } else if case.route_id.as_ref().is_some_and(|r| r.len() > MAX_ROUTE_ID_BYTES) {
+        Some(format!("column route_id: longer than {MAX_ROUTE_ID_BYTES} bytes"))
+    } else if let Some(e) = extra_error {
+        Some(e)
+    } else if case.step == Some(0) {
+        Some("column step: expected a whole number ≥ 1, got 0".to_string())
+    } else if let Some(p) = case.phase.as_deref().filter(|p| !crate::input::PHASES.contains(p)) {
+        Some(format!("column phase: expected one of gas, liquid, solid, standard, got {p:?}"))
+    } else if !ranges.is_empty() {
+        Some(format!("conditions: {}", ranges.join("; ")))
     } else {
         None
     };

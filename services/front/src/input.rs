@@ -92,21 +92,6 @@ pub enum Unit {
     CelsiusToKelvin,
 }
 
-/// Valid span of each condition field (in its field unit), with what it means.
-fn condition_range(field: &str) -> (f64, f64, &'static str) {
-    match field {
-        "accumulation_fraction" => (0.0, 1.0, "a fraction from 0 to 1"),
-        "pressure_bar" | "scale_mol" | "reaction_mass_kg" | "cp_kj_per_kg_k" => (f64::MIN_POSITIVE, f64::MAX, "a positive number"),
-        "dosing_time_h" | "ua_w_per_k" => (0.0, f64::MAX, "a number ≥ 0"),
-        // Temperatures, K.
-        _ => (
-            f64::MIN_POSITIVE,
-            20_000.0,
-            "a temperature above 0 K (−273.15 °C) and below 20000 K",
-        ),
-    }
-}
-
 /// Phases accepted in the `phase` column.
 pub const PHASES: [&str; 4] = ["gas", "liquid", "solid", "standard"];
 
@@ -156,7 +141,7 @@ pub fn case_from_cells<'a>(row: u64, columns: impl Iterator<Item = &'a str>, get
             Unit::Same => v,
             Unit::CelsiusToKelvin => v + 273.15,
         };
-        let (lo, hi, what) = condition_range(field);
+        let (lo, hi, what) = thermosieve_queue::condition_range(field);
         if !(v.is_finite() && v >= lo && v <= hi) {
             errors.push(format!("column {column}: expected {what}, got {text}"));
             continue;

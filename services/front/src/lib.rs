@@ -12,9 +12,11 @@
 //! - [`ingest`]: batch options, ids, chunking by route, backpressure, sealing.
 //! - [`convert`]: wire types ↔ model and rows.
 //! - [`service`]: the tonic service, health and reflection, [`service::serve`].
+//! - [`auth`]: bearer tokens and tenants (constant-time comparison, never logged).
 //! - [`embedded`]: the whole pipeline in one process (no Redis).
 //! - [`error`]: [`FrontError`] and its one mapping to `tonic::Code`.
 
+pub mod auth;
 pub mod convert;
 pub mod embedded;
 pub mod error;
@@ -23,4 +25,4 @@ pub mod input;
 pub mod service;
 
 pub use error::FrontError;
-pub use service::{serve, Front, FrontConfig};
+pub use service::{serve, Access, Front, FrontConfig};

@@ -1,11 +1,12 @@
 //! The `thermosieve.v1.Screening` service and the server around it (health and reflection on).
 
+use crate::auth::{batch_ref, tenant_of, Authenticator, Tenant, Tokens};
 use crate::convert::{case_from_pb, case_row_to_pb, conditions_from_pb, status_to_pb, trend_rows_to_pb};
 use crate::error::FrontError;
 use crate::ingest::{batch_spec, is_batch_id, BatchOptions, Ingest, IngestLimits};
 use std::collections::HashMap;
 use std::future::Future;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::pin::Pin;
 use std::sync::{Arc, Mutex};
 use std::time::Duration;
@@ -19,6 +20,7 @@ use thermosieve_worker::process::ChunkProcessor;
 use tokio::io::AsyncReadExt;
 use tokio::net::TcpListener;
 use tokio_stream::wrappers::{ReceiverStream, TcpListenerStream};
+use tonic::transport::{Certificate, Identity, ServerTlsConfig};
 use tonic::{Request, Response, Status, Streaming};
 
 /// Most cases of one ScreenInline call, and species of one ResolveSpecies call.
@@ -42,9 +44,12 @@ pub struct FrontConfig {
 pub struct Front {
     queue: Arc<dyn Queue>,
     cfg: FrontConfig,
-    /// A `std::sync::Mutex`: held only to insert or look up, never across an await.
-    known: Mutex<HashMap<String, u64>>,
+    /// Batches this front created: when, and for which tenant. A `std::sync::Mutex`: held only
+    /// to insert or look up, never across an await.
+    known: Mutex<HashMap<String, (u64, String)>>,
     inline: Arc<Mutex<ChunkProcessor>>,
+    /// Set when the server shuts down: open WatchBatch streams end at once.
+    stopping: tokio::sync::watch::Sender<bool>,
 }
 
 impl Front {
@@ -54,15 +59,16 @@ impl Front {
             cfg,
             known: Mutex::new(HashMap::new()),
             inline: Arc::new(Mutex::new(ChunkProcessor::new())),
+            stopping: tokio::sync::watch::channel(false).0,
         }
     }
 
-    fn remember(&self, id: &str) {
+    fn remember(&self, id: &str, tenant: &str) {
         let mut k = self.known.lock().unwrap_or_else(|e| e.into_inner());
         if k.len() >= KNOWN_BATCHES {
             k.clear();
         }
-        k.insert(id.to_string(), thermosieve_queue::now_unix_ms());
+        k.insert(id.to_string(), (thermosieve_queue::now_unix_ms(), tenant.to_string()));
     }
 
     fn check_id(id: &str) -> Result<(), FrontError> {
@@ -76,6 +82,26 @@ impl Front {
         }
     }
 
+    /// Refuse a batch of another tenant exactly as one that does not exist (NOT_FOUND), so a
+    /// caller learns nothing about other tenants' batches.
+    async fn authorize(&self, id: &str, tenant: &Tenant) -> Result<(), FrontError> {
+        Self::check_id(id)?;
+        let owner = match self.queue.batch_spec(id).await? {
+            Some(spec) => Some(spec.tenant),
+            None => self.known.lock().unwrap_or_else(|e| e.into_inner()).get(id).map(|(_, t)| t.clone()),
+        };
+        match owner {
+            Some(owner) if owner == tenant.as_str() => Ok(()),
+            _ => Err(FrontError::NotFound(id.to_string())),
+        }
+    }
+
+    /// Progress of a batch the caller owns; see [`Front::progress`].
+    async fn progress_for(&self, id: &str, tenant: &Tenant) -> Result<Progress, FrontError> {
+        self.authorize(id, tenant).await?;
+        self.progress(id).await
+    }
+
     /// Progress of a batch; a batch this front created that the queue no longer knows is
     /// reported FAILED (the queue lost its state), never silently gone.
     async fn progress(&self, id: &str) -> Result<Progress, FrontError> {
@@ -83,7 +109,7 @@ impl Front {
         if let Some(p) = self.queue.progress(id).await? {
             return Ok(p);
         }
-        let created = self.known.lock().unwrap_or_else(|e| e.into_inner()).get(id).copied();
+        let created = self.known.lock().unwrap_or_else(|e| e.into_inner()).get(id).map(|(t, _)| *t);
         match created {
             Some(created_unix_ms) => Ok(Progress {
                 state: BatchState::Failed,
@@ -101,7 +127,7 @@ impl Front {
         }
     }
 
-    async fn submit(&self, mut stream: Streaming<pb::SubmitBatchRequest>) -> Result<pb::SubmitBatchResponse, FrontError> {
+    async fn submit(&self, mut stream: Streaming<pb::SubmitBatchRequest>, tenant: &Tenant) -> Result<pb::SubmitBatchResponse, FrontError> {
         let first = stream
             .message()
             .await
@@ -116,15 +142,23 @@ impl Front {
             chunk_size: header.chunk_size as usize,
             label: header.label,
         };
-        let spec = batch_spec(options, &self.cfg.limits)?;
+        let mut spec = batch_spec(options, &self.cfg.limits)?;
+        spec.tenant = tenant.as_str().to_string();
         let mut ingest = Ingest::start(self.queue.clone(), spec, self.cfg.limits.clone()).await?;
-        self.remember(ingest.batch_id());
+        self.remember(ingest.batch_id(), &ingest.spec().tenant);
+        // If this future is dropped before the end (the client went away, the front stops),
+        // the guard fails the batch: no batch stays RECEIVING with nobody to finish it.
+        let mut guard = Unfinished {
+            queue: Some(self.queue.clone()),
+            batch_id: ingest.batch_id().to_string(),
+        };
         loop {
             let msg = match stream.message().await {
                 Ok(Some(m)) => m,
                 Ok(None) => break,
                 Err(s) => {
                     ingest.abort(&format!("the submission stream broke off: {}", s.message())).await;
+                    guard.queue = None;
                     return Err(FrontError::invalid("item", format!("stream broke off: {}", s.message())));
                 }
             };
@@ -147,16 +181,51 @@ impl Front {
             };
             if let Err(e) = r {
                 ingest.abort(&e.to_string()).await;
+                guard.queue = None;
                 return Err(e);
             }
         }
-        let s = ingest.finish().await?;
+        let s = match ingest.finish().await {
+            Ok(s) => s,
+            Err(e) => {
+                ingest.abort(&e.to_string()).await;
+                guard.queue = None;
+                return Err(e);
+            }
+        };
+        guard.queue = None;
         Ok(pb::SubmitBatchResponse {
             batch_id: s.batch_id,
             cases_received: s.cases,
             input_errors: s.input_errors,
             chunks: s.chunks,
         })
+    }
+}
+
+/// Fails a batch whose submission did not run to its end (see [`Front::submit`]).
+struct Unfinished {
+    /// `None` once the submission ended either way.
+    queue: Option<Arc<dyn Queue>>,
+    batch_id: String,
+}
+
+impl Drop for Unfinished {
+    fn drop(&mut self) {
+        let (Some(queue), Ok(rt)) = (self.queue.take(), tokio::runtime::Handle::try_current()) else {
+            return;
+        };
+        let id = std::mem::take(&mut self.batch_id);
+        tracing::warn!(
+            batch = batch_ref(&id),
+            "submission ended before its last message; failing the batch"
+        );
+        rt.spawn(async move {
+            let reason = "the submission ended before it was complete (client gone or front stopped); resubmit it";
+            if let Err(e) = queue.stop_batch(&id, BatchState::Failed, reason).await {
+                tracing::error!(batch = batch_ref(&id), error = %e, "could not mark the batch failed");
+            }
+        });
     }
 }
 
@@ -169,29 +238,39 @@ pub struct ScreeningService(pub Arc<Front>);
 #[tonic::async_trait]
 impl Screening for ScreeningService {
     async fn submit_batch(&self, request: Request<Streaming<pb::SubmitBatchRequest>>) -> Result<Response<pb::SubmitBatchResponse>, Status> {
-        Ok(Response::new(self.0.submit(request.into_inner()).await?))
+        let tenant = tenant_of(&request);
+        Ok(Response::new(self.0.submit(request.into_inner(), &tenant).await?))
     }
 
     async fn get_batch_status(&self, request: Request<pb::GetBatchStatusRequest>) -> Result<Response<pb::BatchStatus>, Status> {
+        let tenant = tenant_of(&request);
         let id = request.into_inner().batch_id;
-        let p = self.0.progress(&id).await?;
+        let p = self.0.progress_for(&id, &tenant).await?;
         Ok(Response::new(status_to_pb(&id, &p)))
     }
 
     type WatchBatchStream = BoxStream<pb::BatchStatus>;
 
     async fn watch_batch(&self, request: Request<pb::WatchBatchRequest>) -> Result<Response<Self::WatchBatchStream>, Status> {
+        let tenant = tenant_of(&request);
         let id = request.into_inner().batch_id;
-        let first = self.0.progress(&id).await?;
+        let first = self.0.progress_for(&id, &tenant).await?;
         let (tx, rx) = tokio::sync::mpsc::channel(4);
         let front = self.0.clone();
+        let mut stopping = front.stopping.subscribe();
         tokio::spawn(async move {
             let mut last = first;
             if tx.send(Ok(status_to_pb(&id, &last))).await.is_err() {
                 return;
             }
             while !last.state.is_final() {
-                tokio::time::sleep(front.cfg.watch_interval).await;
+                tokio::select! {
+                    _ = tokio::time::sleep(front.cfg.watch_interval) => {}
+                    _ = async { drop(stopping.wait_for(|s| *s).await) } => {
+                        let _ = tx.send(Err(Status::unavailable("the front is shutting down; watch the batch again"))).await;
+                        return;
+                    }
+                }
                 let p = match front.progress(&id).await {
                     Ok(p) => p,
                     Err(e) => {
@@ -211,14 +290,15 @@ impl Screening for ScreeningService {
     }
 
     async fn cancel_batch(&self, request: Request<pb::CancelBatchRequest>) -> Result<Response<pb::BatchStatus>, Status> {
+        let tenant = tenant_of(&request);
         let id = request.into_inner().batch_id;
-        Front::check_id(&id)?;
+        self.0.authorize(&id, &tenant).await?;
         self.0
             .queue
             .stop_batch(&id, BatchState::Cancelled, "cancelled by a caller")
             .await
             .map_err(FrontError::from)?;
-        tracing::info!(batch_id = %id, "batch cancelled");
+        tracing::info!(batch = batch_ref(&id), tenant = tenant.as_str(), "batch cancelled");
         let p = self.0.progress(&id).await?;
         Ok(Response::new(status_to_pb(&id, &p)))
     }
@@ -226,8 +306,9 @@ impl Screening for ScreeningService {
     type FetchTableStream = BoxStream<pb::TableChunk>;
 
     async fn fetch_table(&self, request: Request<pb::FetchTableRequest>) -> Result<Response<Self::FetchTableStream>, Status> {
+        let tenant = tenant_of(&request);
         let r = request.into_inner();
-        let p = self.0.progress(&r.batch_id).await?;
+        let p = self.0.progress_for(&r.batch_id, &tenant).await?;
         if p.state != BatchState::Done {
             return Err(FrontError::FailedPrecondition(format!("batch {} is {}, not done", r.batch_id, p.state.as_str())).into());
         }
@@ -314,9 +395,7 @@ impl Screening for ScreeningService {
                 if c.row == 0 {
                     c.row = i as u64 + 1;
                 }
-                if c.case_id.trim().is_empty() && c.input_error.is_none() {
-                    c.input_error = Some(format!("row {}, column case_id: missing", c.row));
-                }
+                crate::ingest::validate_case(&mut c);
                 c
             })
             .collect();
@@ -387,11 +466,48 @@ pub fn resolve_one(query: &str) -> pb::SpeciesInfo {
     info
 }
 
-/// Serve the API, health and reflection on `listener` until `shutdown` completes.
+/// Who may reach the front, and how: TLS and bearer tokens. Both off by default, which suits a
+/// front bound to loopback only.
+#[derive(Default)]
+pub struct Access {
+    pub tls: Option<ServerTlsConfig>,
+    pub tokens: Option<Tokens>,
+}
+
+impl Access {
+    /// TLS from PEM files: the front's certificate chain and key, and optionally the CA whose
+    /// client certificates are required.
+    ///
+    /// # Errors
+    /// A file that cannot be read.
+    pub fn tls_from_files(cert: &Path, key: &Path, client_ca: Option<&Path>) -> Result<ServerTlsConfig, FrontError> {
+        let read = |p: &Path| {
+            std::fs::read(p).map_err(|source| FrontError::Io {
+                path: p.display().to_string(),
+                source,
+            })
+        };
+        let mut tls = ServerTlsConfig::new().identity(Identity::from_pem(read(cert)?, read(key)?));
+        if let Some(ca) = client_ca {
+            tls = tls.client_ca_root(Certificate::from_pem(read(ca)?));
+        }
+        Ok(tls)
+    }
+}
+
+/// Serve the API, health and reflection on `listener` until `shutdown` completes. Health and
+/// reflection answer without a token (probes, tools listing the API); every Screening call
+/// needs one when `access.tokens` is set. On shutdown, open WatchBatch streams end at once.
 ///
 /// # Errors
-/// Transport errors, or a reflection service that cannot read the descriptors.
-pub async fn serve(listener: TcpListener, front: Arc<Front>, shutdown: impl Future<Output = ()> + Send) -> Result<(), FrontError> {
+/// Transport errors, a TLS configuration rustls refuses, or a reflection service that cannot
+/// read the descriptors.
+pub async fn serve(
+    listener: TcpListener,
+    front: Arc<Front>,
+    access: Access,
+    shutdown: impl Future<Output = ()> + Send,
+) -> Result<(), FrontError> {
     let (health, health_service) = tonic_health::server::health_reporter();
     health.set_serving::<ScreeningServer<ScreeningService>>().await;
     let reflection = tonic_reflection::server::Builder::configure()
@@ -403,12 +519,61 @@ pub async fn serve(listener: TcpListener, front: Arc<Front>, shutdown: impl Futu
         path: "listener".into(),
         source,
     })?;
-    tracing::info!(%addr, "front listening");
-    tonic::transport::Server::builder()
+    tracing::info!(
+        %addr,
+        tls = access.tls.is_some(),
+        tenants = access.tokens.as_ref().map_or(0, Tokens::len),
+        "front listening"
+    );
+    let mut builder = tonic::transport::Server::builder();
+    if let Some(tls) = access.tls {
+        builder = builder.tls_config(tls).map_err(|e| FrontError::Internal(format!("TLS: {e}")))?;
+    }
+    let monitor = tokio::spawn(watch_queue_health(front.queue.clone(), health));
+    let stopping = front.stopping.clone();
+    let shutdown = async move {
+        shutdown.await;
+        stopping.send_replace(true);
+    };
+    let served = builder
         .add_service(health_service)
         .add_service(reflection)
-        .add_service(ScreeningServer::new(ScreeningService(front)))
+        .add_service(ScreeningServer::with_interceptor(
+            ScreeningService(front),
+            Authenticator::new(access.tokens),
+        ))
         .serve_with_incoming_shutdown(TcpListenerStream::new(listener), shutdown)
         .await
-        .map_err(|e| FrontError::Internal(format!("server: {e}")))
+        .map_err(|e| FrontError::Internal(format!("server: {e}")));
+    monitor.abort();
+    served
+}
+
+/// How often the front checks that it can reach the queue.
+const HEALTH_EVERY: Duration = Duration::from_secs(1);
+
+/// Health follows the queue: NOT_SERVING (for the whole server and for the Screening service)
+/// while the queue does not answer, SERVING again when it does.
+async fn watch_queue_health(queue: Arc<dyn Queue>, health: tonic_health::server::HealthReporter) {
+    use tonic::server::NamedService;
+    use tonic_health::ServingStatus;
+    let names = ["", <ScreeningServer<ScreeningService> as NamedService>::NAME];
+    let mut serving = true;
+    loop {
+        let reachable = matches!(tokio::time::timeout(Duration::from_secs(5), queue.depth()).await, Ok(Ok(_)));
+        if reachable != serving {
+            serving = reachable;
+            let status = if serving {
+                tracing::info!("the queue answers again: serving");
+                ServingStatus::Serving
+            } else {
+                tracing::warn!("the queue does not answer: health reports NOT_SERVING");
+                ServingStatus::NotServing
+            };
+            for name in names {
+                health.set_service_status(name, status).await;
+            }
+        }
+        tokio::time::sleep(HEALTH_EVERY).await;
+    }
 }

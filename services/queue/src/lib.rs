@@ -39,6 +39,8 @@ pub enum QueueError {
         state: &'static str,
         what: &'static str,
     },
+    #[error("the queue holds {depth} entries, at its limit")]
+    Full { depth: u64 },
     #[error("encoding a task: {0}")]
     Encode(#[from] serde_json::Error),
 }
@@ -73,11 +75,14 @@ pub trait Queue: Send + Sync {
     /// Backend errors.
     async fn batch_spec(&self, batch_id: &str) -> Result<Option<BatchSpec>, QueueError>;
 
-    /// Add one chunk; counts its chunk and cases into the batch totals.
+    /// Add one chunk, unless the queue already holds `max_depth` entries or more (checked and
+    /// added in one atomic step, so concurrent submitters cannot overshoot the limit); counts
+    /// its chunk and cases into the batch totals.
     ///
     /// # Errors
-    /// `UnknownBatch`, `WrongState` (the batch is not receiving), backend errors.
-    async fn enqueue(&self, chunk: &Chunk) -> Result<(), QueueError>;
+    /// `Full` (nothing added; retry later), `UnknownBatch`, `WrongState` (the batch is not
+    /// receiving), backend errors.
+    async fn enqueue(&self, chunk: &Chunk, max_depth: u64) -> Result<(), QueueError>;
 
     /// The batch has received all its chunks: move it to `running` (or straight to finalizing
     /// when every chunk is already done, e.g. an empty batch).

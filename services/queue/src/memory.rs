@@ -107,9 +107,13 @@ impl Queue for MemoryQueue {
         Ok(self.lock().batches.get(batch_id).map(|b| b.spec.clone()))
     }
 
-    async fn enqueue(&self, chunk: &Chunk) -> Result<(), QueueError> {
+    async fn enqueue(&self, chunk: &Chunk, max_depth: u64) -> Result<(), QueueError> {
         {
             let mut g = self.lock();
+            let depth = (g.ready.len() + g.pending.len()) as u64;
+            if depth >= max_depth {
+                return Err(QueueError::Full { depth });
+            }
             let b = g
                 .batches
                 .get_mut(&chunk.batch_id)
@@ -295,6 +299,7 @@ mod tests {
             chunk_size: 2,
             label: String::new(),
             created_unix_ms: 0,
+            tenant: String::new(),
         }
     }
 
@@ -315,8 +320,8 @@ mod tests {
     async fn a_batch_finalizes_once_every_chunk_is_done_even_when_one_is_completed_twice() {
         let q = MemoryQueue::new();
         q.create_batch(&spec("b")).await.unwrap();
-        q.enqueue(&chunk("b", 0, 2)).await.unwrap();
-        q.enqueue(&chunk("b", 1, 1)).await.unwrap();
+        q.enqueue(&chunk("b", 0, 2), u64::MAX).await.unwrap();
+        q.enqueue(&chunk("b", 1, 1), u64::MAX).await.unwrap();
         q.seal("b").await.unwrap();
         let d0 = q.poll("w", Duration::from_millis(10)).await.unwrap().unwrap();
         // Nobody acks d0 in time: it is reclaimed with a second delivery.
@@ -362,7 +367,10 @@ mod tests {
         q.create_batch(&spec("e")).await.unwrap();
         q.seal("e").await.unwrap();
         assert_eq!(q.progress("e").await.unwrap().unwrap().state, BatchState::Finalizing);
-        assert!(matches!(q.enqueue(&chunk("e", 0, 1)).await, Err(QueueError::WrongState { .. })));
+        assert!(matches!(
+            q.enqueue(&chunk("e", 0, 1), u64::MAX).await,
+            Err(QueueError::WrongState { .. })
+        ));
     }
 
     #[test]

@@ -56,7 +56,42 @@ pub const CONDITION_FIELDS: [&str; 12] = [
     "ua_w_per_k",
 ];
 
+/// Valid span of each condition field (in its field unit, inclusive), with what it means. One
+/// rule for every path: input tables, gRPC cases, batch defaults and ScreenInline. The upper
+/// bounds are plausibility limits, wide of any plant (common practice, no source): a value past
+/// them is a unit or typing error, and would make results overflow.
+pub fn condition_range(field: &str) -> (f64, f64, &'static str) {
+    match field {
+        "accumulation_fraction" => (0.0, 1.0, "a fraction from 0 to 1"),
+        "pressure_bar" => (1e-9, 1e5, "a pressure above 0 and up to 100000 bar"),
+        "scale_mol" => (1e-9, 1e12, "an amount above 0 and up to 1e12 mol"),
+        "reaction_mass_kg" => (1e-9, 1e9, "a mass above 0 and up to 1e9 kg"),
+        "cp_kj_per_kg_k" => (0.01, 100.0, "a heat capacity from 0.01 to 100 kJ/(kg·K)"),
+        "dosing_time_h" => (0.0, 1e5, "a time from 0 to 100000 h"),
+        "ua_w_per_k" => (0.0, 1e9, "a number from 0 to 1e9 W/K"),
+        // Temperatures, K.
+        _ => (
+            f64::MIN_POSITIVE,
+            20_000.0,
+            "a temperature above 0 K (−273.15 °C) and below 20000 K",
+        ),
+    }
+}
+
 impl Conditions {
+    /// The typed fields out of their [`condition_range`], as `field: expected …, got …`.
+    pub fn range_errors(&self) -> Vec<String> {
+        CONDITION_FIELDS
+            .iter()
+            .zip(self.values())
+            .filter_map(|(field, v)| {
+                let v = v?;
+                let (lo, hi, what) = condition_range(field);
+                (!(v.is_finite() && v >= lo && v <= hi)).then(|| format!("{field}: expected {what}, got {v}"))
+            })
+            .collect()
+    }
+
     /// The typed fields in [`CONDITION_FIELDS`] order.
     pub fn values(&self) -> [Option<f64>; 12] {
         [
@@ -145,6 +180,10 @@ pub struct BatchSpec {
     pub chunk_size: usize,
     pub label: String,
     pub created_unix_ms: u64,
+    /// The tenant that submitted the batch (the bearer token's; `""` when the front has no
+    /// tokens). Only that tenant sees, fetches or cancels it.
+    #[serde(default)]
+    pub tenant: String,
 }
 
 /// A run of cases of one batch, the unit of work. `seq` numbers chunks from 0 in submission

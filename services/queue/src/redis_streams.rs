@@ -18,7 +18,7 @@
 
 use crate::model::*;
 use crate::{Queue, QueueError};
-use redis::aio::MultiplexedConnection;
+use redis::aio::{ConnectionManager, ConnectionManagerConfig, MultiplexedConnection};
 use redis::streams::{StreamAutoClaimReply, StreamId, StreamPendingCountReply, StreamReadReply};
 use redis::{AsyncConnectionConfig, Script, Value};
 use std::collections::HashMap;
@@ -66,7 +66,7 @@ impl RedisConfig {
 pub struct RedisQueue {
     client: redis::Client,
     cfg: RedisConfig,
-    conn: MultiplexedConnection,
+    conn: ConnectionManager,
     /// Idle connections for blocking reads, keyed by their response timeout in ms. A
     /// `std::sync::Mutex`: it is held only to push or pop, never across an await.
     blocking: Mutex<HashMap<u64, Vec<MultiplexedConnection>>>,
@@ -81,9 +81,13 @@ struct Scripts {
     stop: Script,
 }
 
+// Returns 1 when added, -1 for an unknown batch, 0 for a batch past receiving, and -2 - depth
+// when the stream already holds ARGV[3] entries or more (nothing added).
 const ENQUEUE_LUA: &str = r#"
 if redis.call('EXISTS', KEYS[2]) == 0 then return -1 end
 if redis.call('HGET', KEYS[2], 'state') ~= 'receiving' then return 0 end
+local depth = redis.call('XLEN', KEYS[1])
+if depth >= tonumber(ARGV[3]) then return -2 - depth end
 redis.call('XADD', KEYS[1], '*', 'task', ARGV[1])
 redis.call('HINCRBY', KEYS[2], 'chunks_total', 1)
 redis.call('HINCRBY', KEYS[2], 'cases_total', ARGV[2])
@@ -155,11 +159,15 @@ impl RedisQueue {
     /// Connection errors.
     pub async fn connect(cfg: RedisConfig) -> Result<RedisQueue, QueueError> {
         let client = redis::Client::open(cfg.url.as_str())?;
+        // A connection manager reconnects by itself (with backoff) after Redis restarts or the
+        // link drops; a plain multiplexed connection would stay broken.
         let conn = client
-            .get_multiplexed_async_connection_with_config(
-                &AsyncConnectionConfig::new()
+            .get_connection_manager_with_config(
+                ConnectionManagerConfig::new()
                     .set_response_timeout(Some(cfg.response_timeout))
-                    .set_connection_timeout(Some(Duration::from_secs(5))),
+                    .set_connection_timeout(Some(Duration::from_secs(5)))
+                    .set_max_delay(Duration::from_secs(2))
+                    .set_number_of_retries(4),
             )
             .await?;
         let with_finalize = |body: &str| format!("{MAYBE_FINALIZE_LUA}\n{body}");
@@ -340,7 +348,7 @@ impl Queue for RedisQueue {
         })
     }
 
-    async fn enqueue(&self, chunk: &Chunk) -> Result<(), QueueError> {
+    async fn enqueue(&self, chunk: &Chunk, max_depth: u64) -> Result<(), QueueError> {
         let payload = chunk_payload(chunk)?;
         let mut c = self.conn.clone();
         let r: i64 = self
@@ -350,8 +358,14 @@ impl Queue for RedisQueue {
             .key(self.batch_key(&chunk.batch_id))
             .arg(payload)
             .arg(chunk.cases.len())
+            .arg(max_depth.min(i64::MAX as u64))
             .invoke_async(&mut c)
             .await?;
+        if r <= -2 {
+            return Err(QueueError::Full {
+                depth: (-2 - r).unsigned_abs(),
+            });
+        }
         self.check(r, &chunk.batch_id, "chunks")
     }
 

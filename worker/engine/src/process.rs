@@ -200,6 +200,9 @@ pub enum ProcessError {
         value: f64,
         expected: &'static str,
     },
+    /// A result that is not a finite number: inputs (scale, mass, c_p, U·A) beyond any plant's.
+    #[error("{quantity} came out {value}: the process inputs (scale, reaction mass, c_p, U·A) lie outside any physical range")]
+    NonFinite { quantity: &'static str, value: f64 },
     #[error("scale product {species} is not a product of {equation} (products: {})", products.join(", "))]
     UnknownProduct {
         species: String,
@@ -675,6 +678,24 @@ pub fn evaluate(screened: &Screened, conditions: &ProcessConditions) -> Result<C
         .map(|s| s.species.resolved.label.clone())
         .collect();
     let decomposition = mass_decomposition(screened, &effective);
+    let decomposition_figures = decomposition.as_ref().map_or([0.0; 2], |d| [d.heat_kj_per_kg, d.adiabatic_rise_k]);
+    for (quantity, value) in [
+        ("reaction_mol", effective.reaction_mol),
+        ("reaction_mass_kg", effective.reaction_mass_kg),
+        ("heat_kj_per_kg", heat.heat_kj_per_kg),
+        ("heat_kj_per_batch", heat.heat_kj_per_batch),
+        ("adiabatic_rise_k", heat.adiabatic_rise_k),
+        ("mtsr_k", heat.mtsr_k),
+        ("gas_mol_per_batch", gas.gas_mol_per_batch),
+        ("gas_m3_at_0c_1atm", gas.gas_m3_at_stp),
+        ("cooling_margin_kw", cooling.value().map_or(0.0, |c| c.margin_kw)),
+        ("decomposition_heat_kj_per_kg", decomposition_figures[0]),
+        ("decomposition_adiabatic_rise_k", decomposition_figures[1]),
+    ] {
+        if !value.is_finite() {
+            return Err(ProcessError::NonFinite { quantity, value });
+        }
+    }
     Ok(CaseProcess {
         decomposition,
         conditions: effective,

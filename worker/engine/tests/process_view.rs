@@ -422,3 +422,29 @@ fn extrapolation_and_phase_changes_are_flagged() {
     assert!(ok.heat.in_valid_range, "{:?}", ok.notes);
     assert!(ok.equilibrium.conversion.value().is_some_and(|c| c.conversion > 0.999_999));
 }
+
+#[test]
+fn inputs_beyond_any_plant_give_an_error_never_an_infinite_result() {
+    // No physical data needed: any finite input that overflows a result must be refused by name.
+    let s = screen("CO(g) + 0.5 O2(g) -> CO2(g)");
+    // m·c_p underflows to 0: ΔT_ad = Q/(m·c_p) would be infinite.
+    let tiny_cp = ProcessConditions {
+        cp_kj_per_kg_k: Some(1e-300),
+        reaction_mass_kg: Some(1e-300),
+        ..ProcessConditions::default()
+    };
+    match evaluate(&s, &tiny_cp) {
+        Err(ProcessError::NonFinite { quantity, value }) => {
+            assert_eq!(quantity, "adiabatic_rise_k");
+            assert!(value.is_infinite());
+        }
+        other => panic!("{other:?}"),
+    }
+    let huge_scale = ProcessConditions {
+        scale: Some(Scale::MolOfReaction(1e308)),
+        ..ProcessConditions::default()
+    };
+    let e = evaluate(&s, &huge_scale).unwrap_err();
+    assert!(matches!(e, ProcessError::NonFinite { .. }), "{e:?}");
+    assert!(e.to_string().contains("outside any physical range"), "{e}");
+}

@@ -11,7 +11,7 @@ use crate::route_table::RouteTable;
 use crate::rows::{self, STATUS_OK};
 use crate::WorkerError;
 use polars::prelude::*;
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 use std::path::Path;
 use thermosieve_engine::routes::RANK_NOTE;
 use thermosieve_engine::{elements, species, CAUTION, VERSION};
@@ -49,7 +49,7 @@ pub fn table_metadata(spec: &BatchSpec, table: &str) -> Vec<(String, String)> {
 }
 
 /// One file of the manifest.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct FileEntry {
     pub name: String,
     pub rows: u64,
@@ -57,7 +57,7 @@ pub struct FileEntry {
 }
 
 /// `manifest.json`.
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct Manifest {
     pub batch_id: String,
     pub label: String,
@@ -71,7 +71,7 @@ pub struct Manifest {
     pub timings: Timings,
 }
 
-#[derive(Clone, Debug, Default, Serialize)]
+#[derive(Clone, Debug, Default, Serialize, Deserialize)]
 pub struct Counts {
     pub cases: u64,
     pub cases_ok: u64,
@@ -83,7 +83,7 @@ pub struct Counts {
     pub chunks_dead_lettered: u64,
 }
 
-#[derive(Clone, Debug, Serialize)]
+#[derive(Clone, Debug, Serialize, Deserialize)]
 pub struct Timings {
     pub created_unix_ms: u64,
     pub finalize_started_unix_ms: u64,
@@ -162,14 +162,32 @@ fn species_table(results_dir: &Path, spec: &BatchSpec, chunks: u64) -> Result<(u
     Ok((rows, std::fs::metadata(&path).map_or(0, |m| m.len())))
 }
 
-/// Write the batch tables and the manifest from the committed parts.
+/// The manifest of an earlier, complete run of this finalization: written last (atomically),
+/// so its presence with every table it lists means the tables are whole.
+fn finished_before(dir: &Path, spec: &BatchSpec, progress: &Progress) -> Option<Manifest> {
+    let m: Manifest = serde_json::from_slice(&std::fs::read(dir.join(MANIFEST_FILE)).ok()?).ok()?;
+    let whole = m.batch_id == spec.batch_id
+        && m.counts.chunks == progress.chunks_total
+        && m.files
+            .iter()
+            .all(|f| std::fs::metadata(dir.join(&f.name)).is_ok_and(|md| md.len() == f.bytes));
+    whole.then_some(m)
+}
+
+/// Write the batch tables and the manifest from the committed parts. Safe to run again after
+/// a crash at any point: it never deletes the parts (the caller does, with [`remove_parts`],
+/// once the batch is durably done), it replaces each table atomically, and a run after a
+/// complete earlier one returns that run's manifest.
 ///
 /// # Errors
 /// `MissingPart` when a chunk has no committed part, I/O and Polars errors.
-pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_parts: bool) -> Result<Manifest, WorkerError> {
+pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress) -> Result<Manifest, WorkerError> {
     let started = now_unix_ms();
     let t0 = std::time::Instant::now();
     let dir = batch_dir(results_dir, &spec.batch_id)?;
+    if let Some(m) = finished_before(&dir, spec, progress) {
+        return Ok(m);
+    }
     std::fs::create_dir_all(&dir).map_err(|source| WorkerError::Io { path: dir.clone(), source })?;
     let chunks = progress.chunks_total;
 
@@ -259,11 +277,17 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress, keep_
             source,
         })
     })?;
-    if !keep_parts {
-        let parts = dir.join("parts");
-        if let Err(e) = std::fs::remove_dir_all(&parts) {
-            tracing::warn!(path = %parts.display(), error = %e, "could not remove part files");
-        }
-    }
     Ok(manifest)
+}
+
+/// Delete a finished batch's part files: only after its DONE state is durable, so that a
+/// finalization redelivered after a crash still finds them.
+pub fn remove_parts(results_dir: &Path, batch_id: &str) {
+    let Ok(dir) = batch_dir(results_dir, batch_id) else { return };
+    let parts = dir.join("parts");
+    match std::fs::remove_dir_all(&parts) {
+        Ok(()) => {}
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => {}
+        Err(e) => tracing::warn!(path = %parts.display(), error = %e, "could not remove part files"),
+    }
 }

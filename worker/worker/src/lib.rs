@@ -51,3 +51,10 @@ pub enum WorkerError {
     #[error("engine thread stopped")]
     EngineGone,
 }
+
+impl WorkerError {
+    /// Whether the same task may succeed if tried again soon (the queue was unreachable).
+    pub fn retryable(&self) -> bool {
+        matches!(self, WorkerError::Queue(q) if q.retryable())
+    }
+}

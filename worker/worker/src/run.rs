@@ -8,7 +8,7 @@
 //! hand, commits it, and stops polling; a chunk read but not finished by a killed worker is
 //! reclaimed by another after `reclaim_idle`.
 
-use crate::finalize::{finalize, Manifest};
+use crate::finalize::{finalize, remove_parts, Manifest};
 use crate::parts::{part_path, write_part};
 use crate::process::ChunkProcessor;
 use crate::rows::{self, build_row};
@@ -125,7 +125,7 @@ fn write_parts(results_dir: &Path, spec: &BatchSpec, seq: u64, cases: &[rows::Ca
     })
 }
 
-fn engine_thread(results_dir: PathBuf, keep_parts: bool, jobs: std::sync::mpsc::Receiver<Job>) {
+fn engine_thread(results_dir: PathBuf, jobs: std::sync::mpsc::Receiver<Job>) {
     let mut processor = ChunkProcessor::new();
     while let Ok(job) = jobs.recv() {
         match job {
@@ -142,7 +142,7 @@ fn engine_thread(results_dir: PathBuf, keep_parts: bool, jobs: std::sync::mpsc::
                 let _ = reply.send(r);
             }
             Job::Finalize { spec, progress, reply } => {
-                let _ = reply.send(finalize(&results_dir, &spec, &progress, keep_parts));
+                let _ = reply.send(finalize(&results_dir, &spec, &progress));
             }
         }
     }
@@ -167,10 +167,10 @@ pub async fn run(
     let mut threads = Vec::new();
     for i in 0..cfg.threads.max(1) {
         let (tx, rx) = std::sync::mpsc::channel::<Job>();
-        let (dir, keep) = (cfg.results_dir.clone(), cfg.keep_parts);
+        let dir = cfg.results_dir.clone();
         let t = std::thread::Builder::new()
             .name(format!("engine-{i}"))
-            .spawn(move || engine_thread(dir, keep, rx))
+            .spawn(move || engine_thread(dir, rx))
             .map_err(WorkerError::Spawn)?;
         threads.push(t);
         let slot = Slot {
@@ -241,8 +241,26 @@ impl Slot {
             match next {
                 Ok(Some(d)) => {
                     backoff = Duration::from_millis(200);
-                    if let Err(e) = self.handle(d).await {
-                        tracing::error!(consumer = %self.consumer, error = %e, "task failed; it stays pending and will be retried");
+                    // While the queue is unreachable the task in hand is retried here, with
+                    // backoff, rather than left pending: polling on would pull the backlog
+                    // into this consumer's pending list, to be reclaimed one by one later.
+                    let mut retry = Duration::from_millis(200);
+                    loop {
+                        match self.handle(d.clone()).await {
+                            Ok(()) => break,
+                            Err(e) if e.retryable() && !*stop.borrow() => {
+                                tracing::warn!(consumer = %self.consumer, error = %e, "queue unreachable; retrying the task in hand");
+                                tokio::select! {
+                                    _ = tokio::time::sleep(retry) => {}
+                                    _ = stopping.wait_for(|s| *s) => break,
+                                }
+                                retry = (retry * 2).min(Duration::from_secs(5));
+                            }
+                            Err(e) => {
+                                tracing::error!(consumer = %self.consumer, error = %e, "task failed; it stays pending and will be retried");
+                                break;
+                            }
+                        }
                     }
                 }
                 Ok(None) => {}
@@ -283,13 +301,22 @@ impl Slot {
         let progress = self.queue.progress(&batch_id).await?;
         let spec = self.spec(&batch_id).await?;
         let (Some(progress), Some(spec)) = (progress, spec) else {
-            tracing::error!(batch_id = %batch_id, entry_id = %d.entry_id, "task of a batch the queue does not know (expired or lost in a redis restart); discarding it");
+            tracing::error!(batch = batch_ref(&batch_id), entry_id = %d.entry_id, "task of a batch the queue does not know (expired or lost in a redis restart); discarding it");
             self.queue.discard(&d).await?;
             return Ok(());
         };
         if matches!(progress.state, BatchState::Cancelled | BatchState::Failed | BatchState::Done) {
-            tracing::info!(batch_id = %batch_id, state = progress.state.as_str(), "skipping a task of a finished batch");
+            tracing::info!(
+                batch = batch_ref(&batch_id),
+                state = progress.state.as_str(),
+                "skipping a task of a finished batch"
+            );
             self.queue.discard(&d).await?;
+            // A failed or cancelled batch gets no tables: the parts its chunks left are waste.
+            if progress.state != BatchState::Done && !self.cfg.keep_parts {
+                let (dir, id) = (self.cfg.results_dir.clone(), batch_id.clone());
+                let _ = tokio::task::spawn_blocking(move || remove_parts(&dir, &id)).await;
+            }
             return Ok(());
         }
         match &d.task {
@@ -301,7 +328,12 @@ impl Slot {
                     )
                 });
                 if let Some(reason) = &dead_reason {
-                    tracing::error!(batch_id = %batch_id, seq = chunk.seq, deliveries = d.deliveries, "dead-lettering a chunk");
+                    tracing::error!(
+                        batch = batch_ref(&batch_id),
+                        seq = chunk.seq,
+                        deliveries = d.deliveries,
+                        "dead-lettering a chunk"
+                    );
                     self.queue.dead_letter(&d, reason).await?;
                 }
                 let (reply, rx) = oneshot::channel();
@@ -319,7 +351,13 @@ impl Slot {
                 self.stats.chunks += 1;
                 self.stats.cases += report.cases;
                 self.stats.dead_lettered += u64::from(report.dead_lettered);
-                tracing::debug!(batch_id = %batch_id, seq, cases = report.cases, errors = report.errors, "chunk committed");
+                tracing::debug!(
+                    batch = batch_ref(&batch_id),
+                    seq,
+                    cases = report.cases,
+                    errors = report.errors,
+                    "chunk committed"
+                );
             }
             Task::Finalize { .. } => {
                 let (reply, rx) = oneshot::channel();
@@ -328,18 +366,38 @@ impl Slot {
                     .map_err(|_| WorkerError::EngineGone)?;
                 let outcome = match rx.await.map_err(|_| WorkerError::EngineGone)? {
                     Ok(m) => {
-                        tracing::info!(batch_id = %batch_id, cases = m.counts.cases, errors = m.counts.cases_error, routes = m.counts.routes, seconds = m.timings.elapsed_seconds, "batch tables written");
+                        tracing::info!(
+                            batch = batch_ref(&batch_id),
+                            cases = m.counts.cases,
+                            errors = m.counts.cases_error,
+                            routes = m.counts.routes,
+                            seconds = m.timings.elapsed_seconds,
+                            "batch tables written"
+                        );
                         Ok(())
                     }
                     Err(e) => {
-                        tracing::error!(batch_id = %batch_id, error = %e, "finalizing failed; the batch is failed");
+                        tracing::error!(batch = batch_ref(&batch_id), error = %e, "finalizing failed; the batch is failed");
                         Err(format!("writing the tables failed: {e}"))
                     }
                 };
+                let done = outcome.is_ok();
                 self.queue.complete_finalize(&d, outcome).await?;
+                // Parts go only once DONE is recorded: a crash before this line leaves a
+                // redelivered finalize everything it needs.
+                if done && !self.cfg.keep_parts {
+                    let (dir, id) = (self.cfg.results_dir.clone(), batch_id.clone());
+                    let _ = tokio::task::spawn_blocking(move || remove_parts(&dir, &id)).await;
+                }
                 self.stats.finalized += 1;
             }
         }
         Ok(())
     }
+}
+
+/// A short, non-secret reference to a batch for logs: its first 8 hex digits (the full id is a
+/// capability and stays out of logs).
+fn batch_ref(batch_id: &str) -> &str {
+    batch_id.get(..8).unwrap_or(batch_id)
 }

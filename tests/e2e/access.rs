@@ -94,7 +94,7 @@ async fn a_tls_front_with_tokens_serves_each_tenant_only_its_own_batches() {
         tls: Some(tls),
         tokens: Some(Tokens::parse(TOKENS, "test tokens").unwrap()),
     };
-    let svc = Service::start_with(1, |_| {}, access, RedisServer::start()).await;
+    let svc = Service::start_with(1, |_| {}, access, RedisServer::start(), |_| {}).await;
 
     // Plain HTTP/2 to a TLS front gets nowhere.
     let mut plain = ScreeningClient::connect(format!("http://{}", svc.addr)).await.unwrap();

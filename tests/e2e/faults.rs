@@ -65,6 +65,7 @@ async fn a_redis_restart_with_its_data_mid_batch_is_ridden_out_and_the_batch_com
         |c| c.reclaim_idle = Duration::from_secs(30),
         thermosieve_front::Access::default(),
         RedisServer::start_with_aof(),
+        |_| {},
     )
     .await;
     let mut client = svc.client().await;
@@ -206,5 +207,169 @@ async fn a_submission_that_breaks_off_fails_its_batch_and_leaves_no_parts() {
         tokio::time::sleep(Duration::from_millis(100)).await;
     }
     assert!(!svc.results.path().join(&id).join("cases.parquet").exists());
+    svc.stop().await;
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_healthy_slow_chunk_keeps_its_lease_and_is_computed_once() {
+    // Reclaim after 300 ms of silence, dead-letter on the second delivery: without a lease, the
+    // second worker would take over the one long chunk and it would come back as error rows.
+    let svc = Service::start(2, |c| {
+        c.reclaim_idle = Duration::from_millis(300);
+        c.max_deliveries = 1;
+    })
+    .await;
+    let mut client = svc.client().await;
+    let cases = many_cases(2);
+    let t0 = std::time::Instant::now();
+    let id = submit(&mut client, &cases, 10_000).await;
+    let done = wait_done(&mut client, &id).await;
+    let secs = t0.elapsed().as_secs_f64();
+    assert!(
+        secs > 1.0,
+        "the chunk took {secs:.2} s: too short to prove a lease (must outlast the 300 ms reclaim time)"
+    );
+    assert_eq!(done.chunks_total, 1);
+    assert_eq!(done.chunks_dead_lettered, 0, "{done:?}");
+    let table = read_table_bytes(fetch(&mut client, &id, pb::Table::Cases).await);
+    each_case_once(&table, &cases);
+    // The demo's 5 deliberate error rows per copy, no more.
+    assert_eq!(done.cases_error, 10, "{done:?}");
+    svc.stop().await;
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn a_batch_left_receiving_is_failed_as_abandoned_on_both_backends() {
+    let redis = RedisServer::start();
+    let backends: [(&str, Arc<dyn Queue>); 2] = [
+        ("memory", Arc::new(thermosieve_queue::MemoryQueue::new())),
+        ("redis", redis_queue(&redis.url()).await),
+    ];
+    for (name, q) in backends {
+        let limits = IngestLimits::default();
+        let start = |q: Arc<dyn Queue>| {
+            let spec = batch_spec(
+                BatchOptions {
+                    chunk_size: 2,
+                    ..Default::default()
+                },
+                &limits,
+            )
+            .unwrap();
+            Ingest::start(q, spec, limits.clone())
+        };
+        // A front took five cases, then went away without sealing.
+        let mut gone = start(q.clone()).await.unwrap();
+        for c in demo_cases().into_iter().take(5) {
+            gone.push(c).await.unwrap();
+        }
+        let gone_id = gone.batch_id().to_string();
+        drop(gone);
+        let mut sealed = start(q.clone()).await.unwrap();
+        for c in demo_cases().into_iter().take(3) {
+            sealed.push(c).await.unwrap();
+        }
+        let sealed_id = sealed.finish().await.unwrap().batch_id;
+        assert!(
+            q.expire_receiving(Duration::from_secs(3600)).await.unwrap().is_empty(),
+            "{name}: too early"
+        );
+        tokio::time::sleep(Duration::from_millis(50)).await;
+        assert_eq!(
+            q.expire_receiving(Duration::from_millis(10)).await.unwrap(),
+            vec![gone_id.clone()],
+            "{name}"
+        );
+        let p = q.progress(&gone_id).await.unwrap().unwrap();
+        assert_eq!(
+            (p.state, p.message.as_str()),
+            (BatchState::Failed, thermosieve_queue::ABANDONED),
+            "{name}"
+        );
+        assert_ne!(q.progress(&sealed_id).await.unwrap().unwrap().state, BatchState::Failed, "{name}");
+        assert!(
+            q.expire_receiving(Duration::from_millis(10)).await.unwrap().is_empty(),
+            "{name}: twice"
+        );
+    }
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn the_front_fails_a_submission_its_owner_abandoned() {
+    let svc = Service::start_with(
+        1,
+        |_| {},
+        thermosieve_front::Access::default(),
+        RedisServer::start(),
+        |f| f.receiving_timeout = Duration::from_millis(400),
+    )
+    .await;
+    // Another front, sharing the queue, took some cases and crashed.
+    let q = redis_queue(&svc.redis.url()).await;
+    let limits = IngestLimits::default();
+    let spec = batch_spec(BatchOptions::default(), &limits).unwrap();
+    let mut gone = Ingest::start(q, spec, limits).await.unwrap();
+    gone.push(demo_cases().remove(0)).await.unwrap();
+    let id = gone.batch_id().to_string();
+    drop(gone);
+    let mut client = svc.client().await;
+    let deadline = tokio::time::Instant::now() + Duration::from_secs(20);
+    loop {
+        let s = client
+            .get_batch_status(pb::GetBatchStatusRequest { batch_id: id.clone() })
+            .await
+            .expect("status")
+            .into_inner();
+        if s.state == pb::BatchState::Failed as i32 {
+            assert_eq!(s.message, thermosieve_queue::ABANDONED);
+            break;
+        }
+        assert!(tokio::time::Instant::now() < deadline, "{s:?}");
+        tokio::time::sleep(Duration::from_millis(100)).await;
+    }
+    svc.stop().await;
+}
+
+#[tokio::test(flavor = "multi_thread", worker_threads = 2)]
+async fn submissions_past_the_tenants_limit_are_refused_with_a_retry_hint() {
+    let svc = Service::start_with(
+        1,
+        |_| {},
+        thermosieve_front::Access::default(),
+        RedisServer::start(),
+        |f| f.limits.max_submissions_per_tenant = 2,
+    )
+    .await;
+    // Two submissions stay open (header sent, stream not closed); a third is refused.
+    let mut open = Vec::new();
+    for _ in 0..2 {
+        let mut c = svc.client().await;
+        let (tx, rx) = tokio::sync::mpsc::channel::<pb::SubmitBatchRequest>(4);
+        tx.send(pb::SubmitBatchRequest {
+            item: Some(pb::submit_batch_request::Item::Header(pb::BatchHeader::default())),
+        })
+        .await
+        .unwrap();
+        let call = tokio::spawn(async move { c.submit_batch(tokio_stream::wrappers::ReceiverStream::new(rx)).await });
+        open.push((tx, call));
+    }
+    tokio::time::sleep(Duration::from_millis(300)).await;
+    let mut client = svc.client().await;
+    let e = client
+        .submit_batch(tokio_stream::iter(vec![pb::SubmitBatchRequest {
+            item: Some(pb::submit_batch_request::Item::Header(pb::BatchHeader::default())),
+        }]))
+        .await
+        .unwrap_err();
+    assert_eq!(e.code(), tonic::Code::ResourceExhausted, "{e}");
+    assert!(e.message().contains("retry in"), "{e}");
+    assert!(e.metadata().get("retry-after").is_some(), "{e:?}");
+    // Closing one frees its place.
+    let (tx, call) = open.pop().unwrap();
+    drop(tx);
+    call.await.unwrap().expect("the open submission completes");
+    let id = submit(&mut client, &demo_cases()[..3], 0).await;
+    wait_done(&mut client, &id).await;
+    drop(open);
     svc.stop().await;
 }

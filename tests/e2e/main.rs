@@ -327,7 +327,7 @@ fn worker_config(results: &Path, name: &str) -> WorkerConfig {
 
 impl Service {
     async fn start(workers: usize, tune: impl Fn(&mut WorkerConfig)) -> Service {
-        Service::start_with(workers, tune, thermosieve_front::Access::default(), RedisServer::start()).await
+        Service::start_with(workers, tune, thermosieve_front::Access::default(), RedisServer::start(), |_| {}).await
     }
 
     /// A front with `access` (TLS, tokens) and `workers` workers on `redis`.
@@ -336,6 +336,7 @@ impl Service {
         tune: impl Fn(&mut WorkerConfig),
         access: thermosieve_front::Access,
         redis: RedisServer,
+        tune_front: impl Fn(&mut FrontConfig),
     ) -> Service {
         let results = tempfile::tempdir().unwrap();
         let listener = tokio::net::TcpListener::bind("127.0.0.1:0").await.unwrap();
@@ -344,7 +345,10 @@ impl Service {
             results_dir: results.path().to_path_buf(),
             limits: IngestLimits::default(),
             watch_interval: Duration::from_millis(50),
+            receiving_timeout: Duration::from_secs(600),
         };
+        let mut cfg = cfg;
+        tune_front(&mut cfg);
         let front = Arc::new(Front::new(redis_queue(&redis.url()).await, cfg));
         let mut stop = Vec::new();
         let mut tasks = Vec::new();

@@ -94,6 +94,15 @@ pub struct ServeArgs {
     /// Seconds a submission waits for queue room before RESOURCE_EXHAUSTED.
     #[arg(long, default_value_t = 30, env = "THERMOSIEVE_ENQUEUE_WAIT_S")]
     pub enqueue_wait_s: u64,
+    /// Submissions streaming at once, in all; more get RESOURCE_EXHAUSTED.
+    #[arg(long, default_value_t = 64, env = "THERMOSIEVE_MAX_SUBMISSIONS")]
+    pub max_submissions: usize,
+    /// Submissions streaming at once per tenant (token).
+    #[arg(long, default_value_t = 8, env = "THERMOSIEVE_MAX_SUBMISSIONS_PER_TENANT")]
+    pub max_submissions_per_tenant: usize,
+    /// Seconds a batch may stay receiving without a new chunk before it is failed as abandoned.
+    #[arg(long, default_value_t = 600, env = "THERMOSIEVE_RECEIVING_TIMEOUT_S")]
+    pub receiving_timeout_s: u64,
 }
 
 #[derive(clap::Args, Debug)]
@@ -355,8 +364,11 @@ async fn serve(a: ServeArgs) -> anyhow::Result<()> {
             default_chunk_size: a.chunk_size,
             max_queue_depth: a.max_queue_depth,
             enqueue_wait: Duration::from_secs(a.enqueue_wait_s),
+            max_submissions: a.max_submissions.max(1),
+            max_submissions_per_tenant: a.max_submissions_per_tenant.max(1),
         },
         watch_interval: Duration::from_millis(250),
+        receiving_timeout: Duration::from_secs(a.receiving_timeout_s.max(1)),
     };
     let access = Access {
         tls: match (&a.tls_cert, &a.tls_key) {

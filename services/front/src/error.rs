@@ -2,6 +2,9 @@
 
 use thermosieve_queue::QueueError;
 
+/// Seconds a refused submission is told to wait (message text and `retry-after` metadata).
+pub const RETRY_AFTER_S: u64 = 5;
+
 /// Why a front request failed.
 #[derive(Debug, thiserror::Error)]
 pub enum FrontError {
@@ -10,8 +13,11 @@ pub enum FrontError {
     InvalidArgument { field: String, reason: String },
     #[error("no batch {0}")]
     NotFound(String),
-    #[error("the queue holds {depth} chunks, more than the limit of {limit}; retry later")]
+    #[error("the queue holds {depth} chunks, at its limit of {limit}; retry in {RETRY_AFTER_S} s or later")]
     QueueFull { depth: u64, limit: u64 },
+    /// Too many submissions at once (in all, or of one tenant).
+    #[error("{0}; retry in {RETRY_AFTER_S} s or later")]
+    Busy(String),
     #[error("{0}")]
     FailedPrecondition(String),
     #[error("queue: {0}")]
@@ -36,7 +42,7 @@ impl From<FrontError> for tonic::Status {
         let code = match &e {
             FrontError::InvalidArgument { .. } => tonic::Code::InvalidArgument,
             FrontError::NotFound(_) => tonic::Code::NotFound,
-            FrontError::QueueFull { .. } => tonic::Code::ResourceExhausted,
+            FrontError::QueueFull { .. } | FrontError::Busy(_) => tonic::Code::ResourceExhausted,
             FrontError::FailedPrecondition(_) => tonic::Code::FailedPrecondition,
             FrontError::Queue(q) if q.retryable() => tonic::Code::Unavailable,
             FrontError::Queue(QueueError::UnknownBatch(_)) => tonic::Code::NotFound,
@@ -45,6 +51,10 @@ impl From<FrontError> for tonic::Status {
         if code == tonic::Code::Internal {
             tracing::error!(error = %e, "internal error");
         }
-        tonic::Status::new(code, e.to_string())
+        let mut status = tonic::Status::new(code, e.to_string());
+        if code == tonic::Code::ResourceExhausted {
+            status.metadata_mut().insert("retry-after", RETRY_AFTER_S.into());
+        }
+        status
     }
 }

@@ -47,6 +47,9 @@ pub struct IngestLimits {
     pub max_queue_depth: u64,
     /// How long a submission waits for the queue to drain below the limit before failing.
     pub enqueue_wait: Duration,
+    /// Submissions streaming at once, in all and per tenant; more are RESOURCE_EXHAUSTED.
+    pub max_submissions: usize,
+    pub max_submissions_per_tenant: usize,
 }
 
 impl Default for IngestLimits {
@@ -55,6 +58,8 @@ impl Default for IngestLimits {
             default_chunk_size: 2000,
             max_queue_depth: 10_000,
             enqueue_wait: Duration::from_secs(30),
+            max_submissions: 64,
+            max_submissions_per_tenant: 8,
         }
     }
 }

@@ -38,6 +38,9 @@ pub struct FrontConfig {
     pub limits: IngestLimits,
     /// How often WatchBatch looks at the counters.
     pub watch_interval: Duration,
+    /// A batch still receiving with no chunk for this long is failed as abandoned (its
+    /// submitter, or the front that took it, went away).
+    pub receiving_timeout: Duration,
 }
 
 /// State shared by all requests.
@@ -48,6 +51,8 @@ pub struct Front {
     /// to insert or look up, never across an await.
     known: Mutex<HashMap<String, (u64, String)>>,
     inline: Arc<Mutex<ChunkProcessor>>,
+    /// Submissions streaming now, per tenant (a `std::sync::Mutex`, never held across an await).
+    submitting: Arc<Mutex<HashMap<String, usize>>>,
     /// Set when the server shuts down: open WatchBatch streams end at once.
     stopping: tokio::sync::watch::Sender<bool>,
 }
@@ -60,6 +65,7 @@ impl Front {
             known: Mutex::new(HashMap::new()),
             inline: Arc::new(Mutex::new(ChunkProcessor::new())),
             stopping: tokio::sync::watch::channel(false).0,
+            submitting: Arc::new(Mutex::new(HashMap::new())),
         }
     }
 
@@ -127,7 +133,37 @@ impl Front {
         }
     }
 
+    /// Remove the parts of a batch that failed while receiving (chunks still queued are skipped
+    /// by the workers, which remove what a chunk in flight leaves).
+    fn clean(&self, batch_id: &str) {
+        let (dir, id) = (self.cfg.results_dir.clone(), batch_id.to_string());
+        tokio::task::spawn_blocking(move || thermosieve_worker::finalize::remove_parts(&dir, &id));
+    }
+
+    /// A place among the submissions streaming now, or `Busy` when the front (or the tenant) is
+    /// at its limit. Memory held by open submissions is bounded by these counts times one chunk.
+    fn admit(&self, tenant: &Tenant) -> Result<Admitted, FrontError> {
+        let limits = &self.cfg.limits;
+        let mut m = self.submitting.lock().unwrap_or_else(|e| e.into_inner());
+        let total: usize = m.values().sum();
+        if total >= limits.max_submissions {
+            return Err(FrontError::Busy(format!("{total} submissions are streaming, the front's limit")));
+        }
+        let mine = m.entry(tenant.as_str().to_string()).or_default();
+        if *mine >= limits.max_submissions_per_tenant {
+            return Err(FrontError::Busy(format!(
+                "{mine} submissions of this tenant are streaming, its limit"
+            )));
+        }
+        *mine += 1;
+        Ok(Admitted {
+            submitting: self.submitting.clone(),
+            tenant: tenant.as_str().to_string(),
+        })
+    }
+
     async fn submit(&self, mut stream: Streaming<pb::SubmitBatchRequest>, tenant: &Tenant) -> Result<pb::SubmitBatchResponse, FrontError> {
+        let _admitted = self.admit(tenant)?;
         let first = stream
             .message()
             .await
@@ -151,6 +187,7 @@ impl Front {
         let mut guard = Unfinished {
             queue: Some(self.queue.clone()),
             batch_id: ingest.batch_id().to_string(),
+            results_dir: self.cfg.results_dir.clone(),
         };
         loop {
             let msg = match stream.message().await {
@@ -158,6 +195,7 @@ impl Front {
                 Ok(None) => break,
                 Err(s) => {
                     ingest.abort(&format!("the submission stream broke off: {}", s.message())).await;
+                    self.clean(&guard.batch_id);
                     guard.queue = None;
                     return Err(FrontError::invalid("item", format!("stream broke off: {}", s.message())));
                 }
@@ -181,6 +219,7 @@ impl Front {
             };
             if let Err(e) = r {
                 ingest.abort(&e.to_string()).await;
+                self.clean(&guard.batch_id);
                 guard.queue = None;
                 return Err(e);
             }
@@ -189,6 +228,7 @@ impl Front {
             Ok(s) => s,
             Err(e) => {
                 ingest.abort(&e.to_string()).await;
+                self.clean(&guard.batch_id);
                 guard.queue = None;
                 return Err(e);
             }
@@ -203,11 +243,30 @@ impl Front {
     }
 }
 
+/// A submission's place among those streaming now; given back when dropped.
+struct Admitted {
+    submitting: Arc<Mutex<HashMap<String, usize>>>,
+    tenant: String,
+}
+
+impl Drop for Admitted {
+    fn drop(&mut self) {
+        let mut m = self.submitting.lock().unwrap_or_else(|e| e.into_inner());
+        if let Some(n) = m.get_mut(&self.tenant) {
+            *n -= 1;
+            if *n == 0 {
+                m.remove(&self.tenant);
+            }
+        }
+    }
+}
+
 /// Fails a batch whose submission did not run to its end (see [`Front::submit`]).
 struct Unfinished {
     /// `None` once the submission ended either way.
     queue: Option<Arc<dyn Queue>>,
     batch_id: String,
+    results_dir: PathBuf,
 }
 
 impl Drop for Unfinished {
@@ -216,6 +275,7 @@ impl Drop for Unfinished {
             return;
         };
         let id = std::mem::take(&mut self.batch_id);
+        let dir = std::mem::take(&mut self.results_dir);
         tracing::warn!(
             batch = batch_ref(&id),
             "submission ended before its last message; failing the batch"
@@ -225,6 +285,7 @@ impl Drop for Unfinished {
             if let Err(e) = queue.stop_batch(&id, BatchState::Failed, reason).await {
                 tracing::error!(batch = batch_ref(&id), error = %e, "could not mark the batch failed");
             }
+            let _ = tokio::task::spawn_blocking(move || thermosieve_worker::finalize::remove_parts(&dir, &id)).await;
         });
     }
 }
@@ -530,6 +591,11 @@ pub async fn serve(
         builder = builder.tls_config(tls).map_err(|e| FrontError::Internal(format!("TLS: {e}")))?;
     }
     let monitor = tokio::spawn(watch_queue_health(front.queue.clone(), health));
+    let sweeper = tokio::spawn(expire_abandoned(
+        front.queue.clone(),
+        front.cfg.results_dir.clone(),
+        front.cfg.receiving_timeout,
+    ));
     let stopping = front.stopping.clone();
     let shutdown = async move {
         shutdown.await;
@@ -546,7 +612,27 @@ pub async fn serve(
         .await
         .map_err(|e| FrontError::Internal(format!("server: {e}")));
     monitor.abort();
+    sweeper.abort();
     served
+}
+
+/// Fail batches left receiving by a submitter (or a front) that went away. Every front may run
+/// this: failing a batch twice is harmless.
+async fn expire_abandoned(queue: Arc<dyn Queue>, results_dir: PathBuf, timeout: Duration) {
+    let every = (timeout / 4).clamp(Duration::from_millis(100), Duration::from_secs(30));
+    loop {
+        tokio::time::sleep(every).await;
+        match queue.expire_receiving(timeout).await {
+            Ok(ids) => {
+                for id in ids {
+                    tracing::warn!(batch = batch_ref(&id), "abandoned submission: batch failed");
+                    let dir = results_dir.clone();
+                    let _ = tokio::task::spawn_blocking(move || thermosieve_worker::finalize::remove_parts(&dir, &id)).await;
+                }
+            }
+            Err(e) => tracing::debug!(error = %e, "could not look for abandoned submissions"),
+        }
+    }
 }
 
 /// How often the front checks that it can reach the queue.

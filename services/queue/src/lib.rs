@@ -56,6 +56,9 @@ impl QueueError {
     }
 }
 
+/// The message of a batch failed by [`Queue::expire_receiving`].
+pub const ABANDONED: &str = "the submission was abandoned (no cases arrived for longer than the front's receiving timeout; the front or client went away); resubmit it";
+
 /// The queue between the front and the workers.
 ///
 /// Delivery is at least once: a task stays pending from [`Queue::poll`] until it is completed,
@@ -111,6 +114,13 @@ pub trait Queue: Send + Sync {
     /// As for `poll`.
     async fn reclaim(&self, consumer: &str, min_idle: Duration, max: usize) -> Result<Vec<Delivery>, QueueError>;
 
+    /// Renew `consumer`'s hold on a task it is still working on (a lease): its idle time starts
+    /// again, so [`Queue::reclaim`] does not hand a healthy slow task to another consumer.
+    ///
+    /// # Errors
+    /// Backend errors.
+    async fn keep(&self, delivery: &Delivery, consumer: &str) -> Result<(), QueueError>;
+
     /// Record a chunk task as done (its parts are durable) and acknowledge it. When it was the
     /// batch's last chunk and the batch is sealed, a finalize task is enqueued.
     ///
@@ -150,6 +160,13 @@ pub trait Queue: Send + Sync {
     /// # Errors
     /// `UnknownBatch`, backend errors.
     async fn stop_batch(&self, batch_id: &str, state: BatchState, message: &str) -> Result<BatchState, QueueError>;
+
+    /// Fail every batch still `receiving` that took no chunk for `idle` (its submitter is gone:
+    /// a front that crashed mid-submit). Returns their ids.
+    ///
+    /// # Errors
+    /// Backend errors.
+    async fn expire_receiving(&self, idle: Duration) -> Result<Vec<String>, QueueError>;
 
     /// Recreate backend structures after `GroupMissing` so new batches can run.
     ///

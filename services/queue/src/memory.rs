@@ -19,6 +19,8 @@ struct BatchRecord {
     spec: BatchSpec,
     progress: Progress,
     done: HashSet<u64>,
+    /// When it was created or last took a chunk.
+    last_activity: Instant,
 }
 
 #[derive(Default)]
@@ -98,6 +100,7 @@ impl Queue for MemoryQueue {
                 spec: spec.clone(),
                 progress,
                 done: HashSet::new(),
+                last_activity: Instant::now(),
             },
         );
         Ok(())
@@ -125,6 +128,7 @@ impl Queue for MemoryQueue {
                     what: "chunks",
                 });
             }
+            b.last_activity = Instant::now();
             b.progress.chunks_total += 1;
             b.progress.cases_total += chunk.cases.len() as u64;
             g.push(Task::Chunk(chunk.clone()));
@@ -213,6 +217,30 @@ impl Queue for MemoryQueue {
             }
         }
         Ok(out)
+    }
+
+    async fn expire_receiving(&self, idle: Duration) -> Result<Vec<String>, QueueError> {
+        let mut g = self.lock();
+        let now = Instant::now();
+        let mut out = Vec::new();
+        for (id, b) in g.batches.iter_mut() {
+            if b.progress.state == BatchState::Receiving && now.duration_since(b.last_activity) >= idle {
+                b.progress.state = BatchState::Failed;
+                b.progress.message = crate::ABANDONED.to_string();
+                b.progress.finished_unix_ms = Some(now_unix_ms());
+                out.push(id.clone());
+            }
+        }
+        Ok(out)
+    }
+
+    async fn keep(&self, delivery: &Delivery, _consumer: &str) -> Result<(), QueueError> {
+        if let Ok(id) = delivery.entry_id.parse::<u64>() {
+            if let Some(p) = self.lock().pending.get_mut(&id) {
+                p.delivered_at = Instant::now();
+            }
+        }
+        Ok(())
     }
 
     async fn complete_chunk(&self, delivery: &Delivery, seq: u64, report: ChunkReport) -> Result<(), QueueError> {

@@ -89,6 +89,7 @@ if redis.call('HGET', KEYS[2], 'state') ~= 'receiving' then return 0 end
 local depth = redis.call('XLEN', KEYS[1])
 if depth >= tonumber(ARGV[3]) then return -2 - depth end
 redis.call('XADD', KEYS[1], '*', 'task', ARGV[1])
+redis.call('HSET', KEYS[2], 'last_activity_unix_ms', ARGV[4])
 redis.call('HINCRBY', KEYS[2], 'chunks_total', 1)
 redis.call('HINCRBY', KEYS[2], 'cases_total', ARGV[2])
 return 1
@@ -191,6 +192,9 @@ impl RedisQueue {
 
     fn tasks_key(&self) -> String {
         format!("{}:tasks", self.cfg.prefix)
+    }
+    fn receiving_key(&self) -> String {
+        format!("{}:receiving", self.cfg.prefix)
     }
     fn dead_key(&self) -> String {
         format!("{}:dead", self.cfg.prefix)
@@ -330,6 +334,9 @@ impl Queue for RedisQueue {
             // A batch whose submitter vanishes must not live forever either.
             .expire(&key, self.cfg.retention.as_secs() as i64)
             .ignore()
+            // The batches receiving, for `expire_receiving`.
+            .sadd(self.receiving_key(), &spec.batch_id)
+            .ignore()
             .query_async(&mut c)
             .await?;
         Ok(())
@@ -359,6 +366,7 @@ impl Queue for RedisQueue {
             .arg(payload)
             .arg(chunk.cases.len())
             .arg(max_depth.min(i64::MAX as u64))
+            .arg(now_unix_ms())
             .invoke_async(&mut c)
             .await?;
         if r <= -2 {
@@ -465,6 +473,49 @@ impl Queue for RedisQueue {
             }
         }
         Ok(out)
+    }
+
+    async fn expire_receiving(&self, idle: Duration) -> Result<Vec<String>, QueueError> {
+        let mut c = self.conn.clone();
+        let ids: Vec<String> = redis::cmd("SMEMBERS").arg(self.receiving_key()).query_async(&mut c).await?;
+        let cutoff = now_unix_ms().saturating_sub(idle.as_millis() as u64);
+        let mut out = Vec::new();
+        for id in ids {
+            let (state, created, active): (Option<String>, Option<u64>, Option<u64>) = redis::cmd("HMGET")
+                .arg(self.batch_key(&id))
+                .arg("state")
+                .arg("created_unix_ms")
+                .arg("last_activity_unix_ms")
+                .query_async(&mut c)
+                .await?;
+            let receiving = state.as_deref() == Some(BatchState::Receiving.as_str());
+            if receiving && active.or(created).unwrap_or(0) > cutoff {
+                continue;
+            }
+            if receiving {
+                self.stop_batch(&id, BatchState::Failed, crate::ABANDONED).await?;
+                out.push(id.clone());
+            }
+            let _: () = redis::cmd("SREM").arg(self.receiving_key()).arg(&id).query_async(&mut c).await?;
+        }
+        Ok(out)
+    }
+
+    async fn keep(&self, delivery: &Delivery, consumer: &str) -> Result<(), QueueError> {
+        // XCLAIM to the holder itself resets the entry's idle time; JUSTID leaves the delivery
+        // count alone (a lease renewal is not a redelivery).
+        let mut c = self.conn.clone();
+        let _: Value = redis::cmd("XCLAIM")
+            .arg(self.tasks_key())
+            .arg(GROUP)
+            .arg(consumer)
+            .arg(0)
+            .arg(&delivery.entry_id)
+            .arg("JUSTID")
+            .query_async(&mut c)
+            .await
+            .map_err(|e| self.map_group_error(e))?;
+        Ok(())
     }
 
     async fn complete_chunk(&self, delivery: &Delivery, seq: u64, report: ChunkReport) -> Result<(), QueueError> {

@@ -296,6 +296,22 @@ impl Slot {
         Ok(Some(spec))
     }
 
+    /// Wait for the engine thread's answer on `d`, renewing the lease on `d` every third of the
+    /// reclaim time meanwhile: a healthy slow chunk is never taken over by another worker.
+    async fn hold<T>(&self, d: &Delivery, mut rx: oneshot::Receiver<T>) -> Result<T, WorkerError> {
+        let every = (self.cfg.reclaim_idle / 3).max(Duration::from_millis(50));
+        loop {
+            tokio::select! {
+                r = &mut rx => return r.map_err(|_| WorkerError::EngineGone),
+                _ = tokio::time::sleep(every) => {
+                    if let Err(e) = self.queue.keep(d, &self.consumer).await {
+                        tracing::warn!(consumer = %self.consumer, error = %e, "could not renew the lease on the task in hand");
+                    }
+                }
+            }
+        }
+    }
+
     async fn handle(&mut self, d: Delivery) -> Result<(), WorkerError> {
         let batch_id = d.task.batch_id().to_string();
         let progress = self.queue.progress(&batch_id).await?;
@@ -346,8 +362,18 @@ impl Slot {
                         reply,
                     })
                     .map_err(|_| WorkerError::EngineGone)?;
-                let report = rx.await.map_err(|_| WorkerError::EngineGone)??;
+                let report = self.hold(&d, rx).await??;
                 self.queue.complete_chunk(&d, seq, report).await?;
+                // The batch may have failed (or been cancelled) while this chunk ran: its parts
+                // then go now, as nobody will finalize them.
+                if !self.cfg.keep_parts {
+                    if let Ok(Some(p)) = self.queue.progress(&batch_id).await {
+                        if matches!(p.state, BatchState::Failed | BatchState::Cancelled) {
+                            let (dir, id) = (self.cfg.results_dir.clone(), batch_id.clone());
+                            let _ = tokio::task::spawn_blocking(move || remove_parts(&dir, &id)).await;
+                        }
+                    }
+                }
                 self.stats.chunks += 1;
                 self.stats.cases += report.cases;
                 self.stats.dead_lettered += u64::from(report.dead_lettered);
@@ -364,7 +390,7 @@ impl Slot {
                 self.jobs
                     .send(Job::Finalize { spec, progress, reply })
                     .map_err(|_| WorkerError::EngineGone)?;
-                let outcome = match rx.await.map_err(|_| WorkerError::EngineGone)? {
+                let outcome = match self.hold(&d, rx).await? {
                     Ok(m) => {
                         tracing::info!(
                             batch = batch_ref(&batch_id),

@@ -70,6 +70,11 @@ async fn a_redis_restart_with_its_data_mid_batch_is_ridden_out_and_the_batch_com
     .await;
     let mut client = svc.client().await;
     let cases = many_cases(3);
+    // The same batch without a fault first, for the time it takes (printed, not asserted).
+    let t0 = std::time::Instant::now();
+    let calm = submit(&mut client, &cases, 50).await;
+    wait_done(&mut client, &calm).await;
+    let calm_s = t0.elapsed().as_secs_f64();
     let t0 = std::time::Instant::now();
     let id = submit(&mut client, &cases, 50).await;
     wait_chunks_done(&mut client, &id, 3).await;
@@ -93,7 +98,7 @@ async fn a_redis_restart_with_its_data_mid_batch_is_ridden_out_and_the_batch_com
     let table = read_table_bytes(fetch(&mut client, &id, pb::Table::Cases).await);
     each_case_once(&table, &cases);
     eprintln!(
-        "batch of {} cases with a redis restart: {:.1} s",
+        "batch of {} cases: {calm_s:.1} s without a fault, {:.1} s with a redis restart",
         cases.len(),
         faulted.as_secs_f64()
     );

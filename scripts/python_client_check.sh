@@ -44,10 +44,12 @@ openssl x509 -req -days 1 -in "$WORK/front.csr" -CA "$WORK/ca.pem" -CAkey "$WORK
 TOKEN=$(openssl rand -hex 24)
 printf '# tenant token\nnightly-check %s\n' "$TOKEN" > "$WORK/tokens"
 export THERMOSIEVE_REDIS_URL=redis://127.0.0.1:$RPORT/ THERMOSIEVE_RESULTS_DIR=$WORK/results THERMOSIEVE_LOG=warn
+FMETRICS=$(free_port)
+WMETRICS=$(free_port)
 "$BIN" serve --listen 127.0.0.1:"$FPORT" --tls-cert "$WORK/front.pem" --tls-key "$WORK/front.key" \
-    --tokens-file "$WORK/tokens" >/dev/null &
+    --tokens-file "$WORK/tokens" --metrics-listen 127.0.0.1:"$FMETRICS" >/dev/null &
 PIDS+=($!)
-"$BIN" work --threads 2 >/dev/null &
+"$BIN" work --threads 2 --metrics-listen 127.0.0.1:"$WMETRICS" >/dev/null &
 PIDS+=($!)
 
 "$VENV/bin/python" -m grpc_tools.protoc -I proto --python_out="$WORK" --grpc_python_out="$WORK" proto/thermosieve/v1/screening.proto
@@ -71,3 +73,31 @@ if THERMOSIEVE_TOKEN=not-the-token-at-all "$BIN" fetch "$ID" --out "$WORK/strang
     exit 1
 fi
 echo "cli client over TLS with a token: $CASES cases fetched; a wrong token is refused"
+
+# /metrics of the front and the worker, read after the two batches: the counts must be theirs.
+"$VENV/bin/python" - "$FMETRICS" "$WMETRICS" "$ROWS" <<'PY'
+import sys
+import urllib.request
+
+front, worker, rows = sys.argv[1], sys.argv[2], int(sys.argv[3])
+
+
+def scrape(port):
+    text = urllib.request.urlopen(f"http://127.0.0.1:{port}/metrics", timeout=10).read().decode()
+    values = {}
+    for line in text.splitlines():
+        if line and not line.startswith("#"):
+            name, value = line.rsplit(" ", 1)
+            values[name] = float(value)
+    return values
+
+
+f, w = scrape(front), scrape(worker)
+cases = w['thermosieve_cases_total{outcome="ok"}'] + w['thermosieve_cases_total{outcome="error"}']
+assert cases == 2 * rows, (cases, rows)
+assert w['thermosieve_batches_finalized_total{outcome="done"}'] == 2, w
+assert w["thermosieve_chunk_seconds_count"] == w["thermosieve_chunks_total"] >= 2, w
+assert f['thermosieve_submissions_total{outcome="accepted"}'] == 2, f
+assert f["thermosieve_queue_up"] == 1 and f["thermosieve_queue_depth"] == 0, f
+print(f"metrics: worker {cases:.0f} cases in {w['thermosieve_chunks_total']:.0f} chunks, front 2 submissions, queue depth 0")
+PY

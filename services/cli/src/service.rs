@@ -76,6 +76,9 @@ pub struct ServeArgs {
     /// CA certificate (PEM): clients must present a certificate it signed.
     #[arg(long, env = "THERMOSIEVE_TLS_CLIENT_CA", requires = "tls_cert")]
     pub tls_client_ca: Option<PathBuf>,
+    /// Serve Prometheus metrics at http://ADDR/metrics (off when not given).
+    #[arg(long, env = "THERMOSIEVE_METRICS_LISTEN")]
+    pub metrics_listen: Option<SocketAddr>,
     /// Bearer tokens: one `tenant token` pair per line; each tenant sees only its own batches.
     /// Without it every caller is one anonymous tenant.
     #[arg(long, env = "THERMOSIEVE_TOKENS_FILE")]
@@ -127,6 +130,9 @@ pub struct WorkArgs {
     /// Keep part files after finalizing.
     #[arg(long, env = "THERMOSIEVE_KEEP_PARTS")]
     pub keep_parts: bool,
+    /// Serve Prometheus metrics at http://ADDR/metrics (off when not given).
+    #[arg(long, env = "THERMOSIEVE_METRICS_LISTEN")]
+    pub metrics_listen: Option<SocketAddr>,
 }
 
 /// How a client reaches the front.
@@ -223,12 +229,17 @@ impl std::fmt::Display for BatchEnded {
 impl std::error::Error for BatchEnded {}
 
 pub fn main(cmd: Cmd) -> ExitCode {
-    tracing_subscriber::fmt()
+    let logs = tracing_subscriber::fmt()
         .with_env_filter(
             tracing_subscriber::EnvFilter::try_from_env("THERMOSIEVE_LOG").unwrap_or_else(|_| tracing_subscriber::EnvFilter::new("info")),
         )
-        .with_writer(std::io::stderr)
-        .init();
+        .with_writer(std::io::stderr);
+    // THERMOSIEVE_LOG_FORMAT=json: one JSON object per line, for log collectors.
+    if std::env::var("THERMOSIEVE_LOG_FORMAT").is_ok_and(|f| f.eq_ignore_ascii_case("json")) {
+        logs.json().init();
+    } else {
+        logs.init();
+    }
     let rt = match tokio::runtime::Builder::new_multi_thread().enable_all().build() {
         Ok(rt) => rt,
         Err(e) => {
@@ -344,6 +355,20 @@ async fn run(a: RunArgs) -> anyhow::Result<()> {
     Ok(())
 }
 
+/// Start the `/metrics` listener on `addr`.
+async fn spawn_metrics<F, Fut>(addr: SocketAddr, body: F) -> anyhow::Result<()>
+where
+    F: Fn() -> Fut + Clone + Send + 'static,
+    Fut: std::future::Future<Output = String> + Send + 'static,
+{
+    let listener = tokio::net::TcpListener::bind(addr)
+        .await
+        .with_context(|| format!("binding the metrics listener {addr}"))?;
+    tracing::info!(%addr, "metrics at /metrics");
+    tokio::spawn(thermosieve_worker::metrics::serve(listener, body));
+    Ok(())
+}
+
 async fn redis_queue(r: &RedisArgs) -> anyhow::Result<Arc<dyn Queue>> {
     let mut cfg = RedisConfig::new(r.redis_url.clone());
     cfg.prefix = r.redis_prefix.clone();
@@ -383,6 +408,10 @@ async fn serve(a: ServeArgs) -> anyhow::Result<()> {
             "the front listens beyond loopback without TLS and tokens: anyone who reaches the port can submit, and read a batch given its id"
         );
     }
+    if let Some(addr) = a.metrics_listen {
+        let q = queue.clone();
+        spawn_metrics(addr, move || thermosieve_front::service::metrics_text(q.clone())).await?;
+    }
     let listener = tokio::net::TcpListener::bind(a.listen)
         .await
         .with_context(|| format!("binding {}", a.listen))?;
@@ -406,6 +435,12 @@ async fn work(a: WorkArgs) -> anyhow::Result<()> {
     cfg.reclaim_idle = Duration::from_secs(a.reclaim_idle_s.max(1));
     cfg.max_deliveries = a.max_deliveries.max(1);
     cfg.keep_parts = a.keep_parts;
+    if let Some(addr) = a.metrics_listen {
+        spawn_metrics(addr, || async {
+            thermosieve_worker::metrics::render(thermosieve_worker::metrics::registry(), None)
+        })
+        .await?;
+    }
     tracing::info!(consumer = %cfg.consumer, threads = cfg.threads, "worker starting");
     let stats = thermosieve_worker::run(queue, cfg, shutdown_signal()).await?;
     println!(

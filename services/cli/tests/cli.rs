@@ -67,3 +67,40 @@ fn bad_usage_exits_2_with_a_message() {
         String::from_utf8_lossy(&o.stderr)
     );
 }
+
+#[test]
+fn json_logs_are_one_object_per_line_without_batch_ids() {
+    let dir = tempfile::tempdir().unwrap();
+    let input = dir.path().join("cases.csv");
+    std::fs::write(&input, "case_id,reaction\nc1,2 H2(g) + O2(g) -> 2 H2O(l)\n").unwrap();
+    let o = bin()
+        .arg("run")
+        .arg(&input)
+        .arg("--out")
+        .arg(dir.path().join("out"))
+        .env("THERMOSIEVE_LOG", "info")
+        .env("THERMOSIEVE_LOG_FORMAT", "json")
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let stderr = String::from_utf8_lossy(&o.stderr);
+    let logs: Vec<serde_json::Value> = stderr
+        .lines()
+        .map(|l| serde_json::from_str(l).unwrap_or_else(|e| panic!("not JSON ({e}): {l}")))
+        .collect();
+    let written = logs
+        .iter()
+        .find(|v| v["fields"]["message"] == "batch tables written")
+        .unwrap_or_else(|| panic!("{stderr}"));
+    assert_eq!(written["level"], "INFO");
+    // The batch is named by its first 8 hex digits only: the full id is a capability.
+    let id = std::fs::read_dir(dir.path().join("out"))
+        .unwrap()
+        .next()
+        .unwrap()
+        .unwrap()
+        .file_name();
+    let id = id.to_string_lossy();
+    assert_eq!(written["fields"]["batch"], id[..8]);
+    assert!(!stderr.contains(id.as_ref()), "{stderr}");
+}

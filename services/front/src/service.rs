@@ -15,6 +15,7 @@ use thermosieve_engine::{Screener, TemperatureGrid};
 use thermosieve_proto::v1 as pb;
 use thermosieve_proto::v1::screening_server::{Screening, ScreeningServer};
 use thermosieve_queue::{BatchState, Progress, Queue};
+use thermosieve_worker::metrics;
 use thermosieve_worker::parts::batch_dir;
 use thermosieve_worker::process::ChunkProcessor;
 use tokio::io::AsyncReadExt;
@@ -163,7 +164,7 @@ impl Front {
     }
 
     async fn submit(&self, mut stream: Streaming<pb::SubmitBatchRequest>, tenant: &Tenant) -> Result<pb::SubmitBatchResponse, FrontError> {
-        let _admitted = self.admit(tenant)?;
+        let _admitted = self.admit(tenant).inspect_err(|_| metrics::registry().submissions_refused.add(1))?;
         let first = stream
             .message()
             .await
@@ -180,7 +181,9 @@ impl Front {
         };
         let mut spec = batch_spec(options, &self.cfg.limits)?;
         spec.tenant = tenant.as_str().to_string();
-        let mut ingest = Ingest::start(self.queue.clone(), spec, self.cfg.limits.clone()).await?;
+        let mut ingest = Ingest::start(self.queue.clone(), spec, self.cfg.limits.clone())
+            .await
+            .inspect_err(|_| metrics::registry().submissions_refused.add(1))?;
         self.remember(ingest.batch_id(), &ingest.spec().tenant);
         // If this future is dropped before the end (the client went away, the front stops),
         // the guard fails the batch: no batch stays RECEIVING with nobody to finish it.
@@ -194,6 +197,7 @@ impl Front {
                 Ok(Some(m)) => m,
                 Ok(None) => break,
                 Err(s) => {
+                    metrics::registry().submissions_failed.add(1);
                     ingest.abort(&format!("the submission stream broke off: {}", s.message())).await;
                     self.clean(&guard.batch_id);
                     guard.queue = None;
@@ -218,6 +222,7 @@ impl Front {
                 None => Err(FrontError::invalid("item", "empty message: set header, case or cases")),
             };
             if let Err(e) = r {
+                metrics::registry().submissions_failed.add(1);
                 ingest.abort(&e.to_string()).await;
                 self.clean(&guard.batch_id);
                 guard.queue = None;
@@ -225,8 +230,12 @@ impl Front {
             }
         }
         let s = match ingest.finish().await {
-            Ok(s) => s,
+            Ok(s) => {
+                metrics::registry().submissions_accepted.add(1);
+                s
+            }
             Err(e) => {
+                metrics::registry().submissions_failed.add(1);
                 ingest.abort(&e.to_string()).await;
                 self.clean(&guard.batch_id);
                 guard.queue = None;
@@ -280,6 +289,7 @@ impl Drop for Unfinished {
             batch = batch_ref(&id),
             "submission ended before its last message; failing the batch"
         );
+        metrics::registry().submissions_failed.add(1);
         rt.spawn(async move {
             let reason = "the submission ended before it was complete (client gone or front stopped); resubmit it";
             if let Err(e) = queue.stop_batch(&id, BatchState::Failed, reason).await {
@@ -360,6 +370,7 @@ impl Screening for ScreeningService {
             .await
             .map_err(FrontError::from)?;
         tracing::info!(batch = batch_ref(&id), tenant = tenant.as_str(), "batch cancelled");
+        metrics::registry().cancellations.add(1);
         let p = self.0.progress(&id).await?;
         Ok(Response::new(status_to_pb(&id, &p)))
     }
@@ -633,6 +644,21 @@ async fn expire_abandoned(queue: Arc<dyn Queue>, results_dir: PathBuf, timeout: 
             Err(e) => tracing::debug!(error = %e, "could not look for abandoned submissions"),
         }
     }
+}
+
+/// The front's metrics text: its counters and the queue's gauges, read now.
+pub async fn metrics_text(queue: Arc<dyn Queue>) -> String {
+    let depth = tokio::time::timeout(Duration::from_secs(2), queue.depth())
+        .await
+        .ok()
+        .and_then(Result::ok);
+    metrics::render(
+        metrics::registry(),
+        Some(metrics::Gauges {
+            queue_depth: depth,
+            queue_up: depth.is_some(),
+        }),
+    )
 }
 
 /// How often the front checks that it can reach the queue.

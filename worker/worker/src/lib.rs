@@ -18,6 +18,7 @@
 
 pub mod concat;
 pub mod finalize;
+pub mod metrics;
 pub mod parts;
 pub mod process;
 pub mod route_table;

@@ -88,6 +88,14 @@ pub fn commit_chunk(
     chunk: &Chunk,
 ) -> Result<ChunkReport, WorkerError> {
     let cases = processor.screen_cases(spec, &chunk.cases);
+    let m = crate::metrics::registry();
+    let input_errors = chunk.cases.iter().filter(|c| c.input_error.is_some()).count() as u64;
+    let errors = cases.iter().filter(|r| !r.ok).count() as u64;
+    m.cases_ok.add(cases.len() as u64 - errors);
+    m.errors_input.add(input_errors.min(errors));
+    m.errors_engine.add(errors.saturating_sub(input_errors));
+    m.process_errors
+        .add(cases.iter().filter(|r| r.ok && r.process.process_error.is_some()).count() as u64);
     write_parts(results_dir, spec, chunk.seq, &cases, false)
 }
 
@@ -101,6 +109,7 @@ pub fn commit_dead_chunk(results_dir: &Path, spec: &BatchSpec, chunk: &Chunk, re
         .iter()
         .map(|c| build_row(c, &c.conditions.or_defaults(&spec.default_conditions), Err(reason.to_string())))
         .collect();
+    crate::metrics::registry().errors_dead_letter.add(cases.len() as u64);
     write_parts(results_dir, spec, chunk.seq, &cases, true)
 }
 
@@ -362,8 +371,13 @@ impl Slot {
                         reply,
                     })
                     .map_err(|_| WorkerError::EngineGone)?;
+                let started = Instant::now();
                 let report = self.hold(&d, rx).await??;
                 self.queue.complete_chunk(&d, seq, report).await?;
+                let m = crate::metrics::registry();
+                m.chunks.add(1);
+                m.chunks_dead_lettered.add(u64::from(report.dead_lettered));
+                m.chunk_seconds.observe(started.elapsed().as_secs_f64());
                 // The batch may have failed (or been cancelled) while this chunk ran: its parts
                 // then go now, as nobody will finalize them.
                 if !self.cfg.keep_parts {
@@ -408,6 +422,12 @@ impl Slot {
                     }
                 };
                 let done = outcome.is_ok();
+                let m = crate::metrics::registry();
+                if done {
+                    m.finalized_done.add(1);
+                } else {
+                    m.finalized_failed.add(1);
+                }
                 self.queue.complete_finalize(&d, outcome).await?;
                 // Parts go only once DONE is recorded: a crash before this line leaves a
                 // redelivered finalize everything it needs.

@@ -19,6 +19,8 @@ use thermosieve_worker::WorkerConfig;
 
 mod access;
 mod faults;
+mod layering;
+mod queue_conformance;
 mod validation;
 
 fn demo_cases() -> Vec<thermosieve_queue::CaseInput> {

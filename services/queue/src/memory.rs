@@ -319,87 +319,8 @@ impl Queue for MemoryQueue {
 mod tests {
     use super::*;
 
-    fn spec(id: &str) -> BatchSpec {
-        BatchSpec {
-            batch_id: id.into(),
-            temperatures_k: vec![300.0],
-            default_conditions: Conditions::default(),
-            chunk_size: 2,
-            label: String::new(),
-            created_unix_ms: 0,
-            tenant: String::new(),
-        }
-    }
-
-    fn chunk(id: &str, seq: u64, n: usize) -> Chunk {
-        Chunk {
-            batch_id: id.into(),
-            seq,
-            cases: (0..n)
-                .map(|i| CaseInput {
-                    case_id: format!("c{i}"),
-                    ..Default::default()
-                })
-                .collect(),
-        }
-    }
-
-    #[tokio::test]
-    async fn a_batch_finalizes_once_every_chunk_is_done_even_when_one_is_completed_twice() {
-        let q = MemoryQueue::new();
-        q.create_batch(&spec("b")).await.unwrap();
-        q.enqueue(&chunk("b", 0, 2), u64::MAX).await.unwrap();
-        q.enqueue(&chunk("b", 1, 1), u64::MAX).await.unwrap();
-        q.seal("b").await.unwrap();
-        let d0 = q.poll("w", Duration::from_millis(10)).await.unwrap().unwrap();
-        // Nobody acks d0 in time: it is reclaimed with a second delivery.
-        let again = q.reclaim("w2", Duration::ZERO, 10).await.unwrap();
-        assert_eq!(again.len(), 1);
-        assert_eq!(again[0].deliveries, 2);
-        let report = ChunkReport {
-            cases: 2,
-            errors: 0,
-            dead_lettered: false,
-        };
-        q.complete_chunk(&d0, 0, report).await.unwrap();
-        q.complete_chunk(&again[0], 0, report).await.unwrap();
-        let p = q.progress("b").await.unwrap().unwrap();
-        assert_eq!((p.chunks_done, p.cases_done, p.state), (1, 2, BatchState::Running));
-        let d1 = q.poll("w", Duration::from_millis(10)).await.unwrap().unwrap();
-        q.complete_chunk(
-            &d1,
-            1,
-            ChunkReport {
-                cases: 1,
-                errors: 1,
-                dead_lettered: false,
-            },
-        )
-        .await
-        .unwrap();
-        let p = q.progress("b").await.unwrap().unwrap();
-        assert_eq!(
-            (p.chunks_done, p.cases_done, p.cases_error, p.state),
-            (2, 3, 1, BatchState::Finalizing)
-        );
-        let f = q.poll("w", Duration::from_millis(10)).await.unwrap().unwrap();
-        assert_eq!(f.task, Task::Finalize { batch_id: "b".into() });
-        q.complete_finalize(&f, Ok(())).await.unwrap();
-        assert_eq!(q.progress("b").await.unwrap().unwrap().state, BatchState::Done);
-        assert_eq!(q.depth().await.unwrap(), 0);
-    }
-
-    #[tokio::test]
-    async fn an_empty_batch_goes_straight_to_finalizing_and_a_sealed_batch_takes_no_chunks() {
-        let q = MemoryQueue::new();
-        q.create_batch(&spec("e")).await.unwrap();
-        q.seal("e").await.unwrap();
-        assert_eq!(q.progress("e").await.unwrap().unwrap().state, BatchState::Finalizing);
-        assert!(matches!(
-            q.enqueue(&chunk("e", 0, 1), u64::MAX).await,
-            Err(QueueError::WrongState { .. })
-        ));
-    }
+    // The state machine (chunks, reclaim, finalize, final states, depth limit, lease) is
+    // checked against both backends in tests/e2e/queue_conformance.rs.
 
     #[test]
     fn conditions_with_an_unknown_key_are_refused() {

@@ -53,8 +53,11 @@ async fn lifecycle(q: &Arc<dyn Queue>, b: &str) {
     assert_eq!(q.batch_spec(b).await.unwrap().unwrap().batch_id, b);
     q.enqueue(&chunk(b, 0, 2), u64::MAX).await.unwrap();
     q.enqueue(&chunk(b, 1, 1), u64::MAX).await.unwrap();
+    // A retry of an enqueue whose reply was lost adds nothing.
+    q.enqueue(&chunk(b, 1, 1), u64::MAX).await.unwrap();
     q.seal(b).await.unwrap();
     assert_eq!(state(q, b).await, BatchState::Running);
+    assert_eq!(q.progress(b).await.unwrap().unwrap().chunks_total, 2);
     let d0 = next(q, "w1").await;
     assert_eq!(d0.deliveries, 1);
     assert!(matches!(&d0.task, Task::Chunk(c) if c.seq == 0 && c.cases.len() == 2));

@@ -92,7 +92,8 @@ pub struct ServeArgs {
     #[arg(long, default_value_t = 2000, env = "THERMOSIEVE_CHUNK_SIZE")]
     pub chunk_size: usize,
     /// Queue depth (chunks) above which submissions get RESOURCE_EXHAUSTED.
-    #[arg(long, default_value_t = 10_000, env = "THERMOSIEVE_MAX_QUEUE_DEPTH")]
+    /// Redis holds about this many chunks' cases at most (a 2,000-case chunk is about 0.5 MB).
+    #[arg(long, default_value_t = 256, env = "THERMOSIEVE_MAX_QUEUE_DEPTH")]
     pub max_queue_depth: u64,
     /// Seconds a submission waits for queue room before RESOURCE_EXHAUSTED.
     #[arg(long, default_value_t = 30, env = "THERMOSIEVE_ENQUEUE_WAIT_S")]

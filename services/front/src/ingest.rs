@@ -56,7 +56,7 @@ impl Default for IngestLimits {
     fn default() -> Self {
         IngestLimits {
             default_chunk_size: 2000,
-            max_queue_depth: 10_000,
+            max_queue_depth: 256,
             enqueue_wait: Duration::from_secs(30),
             max_submissions: 64,
             max_submissions_per_tenant: 8,
@@ -258,6 +258,11 @@ impl Ingest {
                 Ok(()) => break,
                 Err(QueueError::Full { .. }) if Instant::now() < deadline => {
                     tokio::time::sleep(Duration::from_millis(100)).await;
+                }
+                // A slow or briefly unreachable Redis: try again (adding a chunk twice is a no-op).
+                Err(e) if e.retryable() && Instant::now() < deadline => {
+                    tracing::warn!(error = %e, "enqueueing a chunk failed; retrying");
+                    tokio::time::sleep(Duration::from_millis(500)).await;
                 }
                 Err(QueueError::Full { depth }) => {
                     return Err(FrontError::QueueFull {

@@ -80,7 +80,8 @@ pub trait Queue: Send + Sync {
 
     /// Add one chunk, unless the queue already holds `max_depth` entries or more (checked and
     /// added in one atomic step, so concurrent submitters cannot overshoot the limit); counts
-    /// its chunk and cases into the batch totals.
+    /// its chunk and cases into the batch totals. Adding a chunk again (same `seq`, after a
+    /// reply was lost) changes nothing, so a retry is safe.
     ///
     /// # Errors
     /// `Full` (nothing added; retry later), `UnknownBatch`, `WrongState` (the batch is not

@@ -21,6 +21,8 @@ struct BatchRecord {
     done: HashSet<u64>,
     /// When it was created or last took a chunk.
     last_activity: Instant,
+    /// Chunks below this seq were added already: adding one again is a retry, not a chunk.
+    next_seq: u64,
 }
 
 #[derive(Default)]
@@ -101,6 +103,7 @@ impl Queue for MemoryQueue {
                 progress,
                 done: HashSet::new(),
                 last_activity: Instant::now(),
+                next_seq: 0,
             },
         );
         Ok(())
@@ -128,6 +131,10 @@ impl Queue for MemoryQueue {
                     what: "chunks",
                 });
             }
+            if chunk.seq < b.next_seq {
+                return Ok(());
+            }
+            b.next_seq = chunk.seq + 1;
             b.last_activity = Instant::now();
             b.progress.chunks_total += 1;
             b.progress.cases_total += chunk.cases.len() as u64;

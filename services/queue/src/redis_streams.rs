@@ -81,15 +81,19 @@ struct Scripts {
     stop: Script,
 }
 
-// Returns 1 when added, -1 for an unknown batch, 0 for a batch past receiving, and -2 - depth
-// when the stream already holds ARGV[3] entries or more (nothing added).
+// Returns 1 when added (or added before: a chunk whose seq is below the batch's next_seq was
+// enqueued by an earlier try whose reply was lost, so a retry is safe), -1 for an unknown
+// batch, 0 for a batch past receiving, and -2 - depth when the stream already holds ARGV[3]
+// entries or more (nothing added).
 const ENQUEUE_LUA: &str = r#"
 if redis.call('EXISTS', KEYS[2]) == 0 then return -1 end
 if redis.call('HGET', KEYS[2], 'state') ~= 'receiving' then return 0 end
+local seq = tonumber(ARGV[5])
+if seq < tonumber(redis.call('HGET', KEYS[2], 'next_seq') or '0') then return 1 end
 local depth = redis.call('XLEN', KEYS[1])
 if depth >= tonumber(ARGV[3]) then return -2 - depth end
 redis.call('XADD', KEYS[1], '*', 'task', ARGV[1])
-redis.call('HSET', KEYS[2], 'last_activity_unix_ms', ARGV[4])
+redis.call('HSET', KEYS[2], 'last_activity_unix_ms', ARGV[4], 'next_seq', seq + 1)
 redis.call('HINCRBY', KEYS[2], 'chunks_total', 1)
 redis.call('HINCRBY', KEYS[2], 'cases_total', ARGV[2])
 return 1
@@ -367,6 +371,7 @@ impl Queue for RedisQueue {
             .arg(chunk.cases.len())
             .arg(max_depth.min(i64::MAX as u64))
             .arg(now_unix_ms())
+            .arg(chunk.seq)
             .invoke_async(&mut c)
             .await?;
         if r <= -2 {

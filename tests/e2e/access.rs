@@ -3,7 +3,7 @@
 
 use super::*;
 use rcgen::{BasicConstraints, CertificateParams, CertifiedIssuer, IsCa, KeyPair};
-use thermosieve_front::auth::Tokens;
+use thermosieve_front::auth::{Bearer, Tokens};
 use thermosieve_front::Access;
 use tonic::transport::{Certificate, Channel, ClientTlsConfig, Identity, ServerTlsConfig};
 
@@ -49,24 +49,10 @@ async fn channel(addr: std::net::SocketAddr, pki: &Pki, with_client_cert: bool) 
         .await
 }
 
-/// Sends `authorization: Bearer <token>` when it has a token.
-#[derive(Clone)]
-struct Bearer(Option<tonic::metadata::MetadataValue<tonic::metadata::Ascii>>);
-
-impl tonic::service::Interceptor for Bearer {
-    fn call(&mut self, mut r: tonic::Request<()>) -> Result<tonic::Request<()>, tonic::Status> {
-        if let Some(h) = &self.0 {
-            r.metadata_mut().insert("authorization", h.clone());
-        }
-        Ok(r)
-    }
-}
-
 type Authed = ScreeningClient<tonic::service::interceptor::InterceptedService<Channel, Bearer>>;
 
 fn with_token(channel: Channel, token: Option<&str>) -> Authed {
-    let header = token.map(|t| format!("Bearer {t}").parse().unwrap());
-    ScreeningClient::with_interceptor(channel, Bearer(header))
+    ScreeningClient::with_interceptor(channel, Bearer::new(token).unwrap())
 }
 
 fn water_request() -> Vec<pb::SubmitBatchRequest> {

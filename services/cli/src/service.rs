@@ -7,7 +7,7 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 use std::sync::Arc;
 use std::time::Duration;
-use thermosieve_front::auth::Tokens;
+use thermosieve_front::auth::{Bearer, Tokens};
 use thermosieve_front::ingest::{BatchOptions, IngestLimits};
 use thermosieve_front::input::{self, Format};
 use thermosieve_front::{convert, Access, Front, FrontConfig};
@@ -451,20 +451,6 @@ async fn work(a: WorkArgs) -> anyhow::Result<()> {
     Ok(())
 }
 
-/// Adds this client's bearer token to every call. The value is marked sensitive, so it never
-/// appears in debug output.
-#[derive(Clone)]
-struct Bearer(Option<tonic::metadata::MetadataValue<tonic::metadata::Ascii>>);
-
-impl tonic::service::Interceptor for Bearer {
-    fn call(&mut self, mut request: tonic::Request<()>) -> Result<tonic::Request<()>, tonic::Status> {
-        if let Some(v) = &self.0 {
-            request.metadata_mut().insert("authorization", v.clone());
-        }
-        Ok(request)
-    }
-}
-
 type Client = ScreeningClient<tonic::service::interceptor::InterceptedService<tonic::transport::Channel, Bearer>>;
 
 fn read_pem(path: &std::path::Path, what: &str) -> anyhow::Result<Vec<u8>> {
@@ -482,14 +468,7 @@ fn bearer(a: &FrontArgs) -> anyhow::Result<Bearer> {
         ),
         None => std::env::var("THERMOSIEVE_TOKEN").ok().map(|t| t.trim().to_string()),
     };
-    let Some(token) = token.filter(|t| !t.is_empty()) else {
-        return Ok(Bearer(None));
-    };
-    let mut v: tonic::metadata::MetadataValue<tonic::metadata::Ascii> = format!("Bearer {token}")
-        .parse()
-        .map_err(|_| Usage("the bearer token holds characters a header cannot carry".into()))?;
-    v.set_sensitive(true);
-    Ok(Bearer(Some(v)))
+    Bearer::new(token.as_deref().filter(|t| !t.is_empty())).map_err(|e| Usage(e.to_string()).into())
 }
 
 async fn client(a: &FrontArgs) -> anyhow::Result<Client> {

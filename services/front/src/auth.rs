@@ -147,6 +147,35 @@ impl tonic::service::Interceptor for Authenticator {
     }
 }
 
+/// The client side: adds `authorization: Bearer <token>` to every call when it has a token. The
+/// value is marked sensitive, so it never appears in debug output.
+#[derive(Clone, Debug, Default)]
+pub struct Bearer(Option<tonic::metadata::MetadataValue<tonic::metadata::Ascii>>);
+
+impl Bearer {
+    /// A bearer for `token` (none: calls go without one).
+    ///
+    /// # Errors
+    /// A token holding characters a header cannot carry.
+    pub fn new(token: Option<&str>) -> Result<Bearer, FrontError> {
+        let Some(t) = token else { return Ok(Bearer(None)) };
+        let mut v: tonic::metadata::MetadataValue<tonic::metadata::Ascii> = format!("Bearer {t}")
+            .parse()
+            .map_err(|_| FrontError::invalid("token", "holds characters a header cannot carry"))?;
+        v.set_sensitive(true);
+        Ok(Bearer(Some(v)))
+    }
+}
+
+impl tonic::service::Interceptor for Bearer {
+    fn call(&mut self, mut request: Request<()>) -> Result<Request<()>, Status> {
+        if let Some(v) = &self.0 {
+            request.metadata_mut().insert("authorization", v.clone());
+        }
+        Ok(request)
+    }
+}
+
 /// A short, non-secret reference to a batch for logs: its first 8 hex digits (the full id is a
 /// capability and stays out of logs).
 pub fn batch_ref(batch_id: &str) -> &str {

@@ -15,7 +15,7 @@ use std::hash::{Hash, Hasher};
 use std::sync::Arc;
 use std::time::{Duration, Instant};
 use thermosieve_engine::thermo::TemperatureGrid;
-use thermosieve_queue::{now_unix_ms, BatchSpec, BatchState, CaseInput, Chunk, Conditions, Queue, QueueError};
+use thermosieve_queue::{now_unix_ms, BatchSpec, CaseInput, Chunk, Conditions, Queue, QueueError};
 
 /// Most steps in one route.
 pub const MAX_ROUTE_STEPS: usize = 1000;
@@ -282,7 +282,7 @@ impl Ingest {
     ///
     /// # Errors
     /// As [`Ingest::push`].
-    pub async fn finish(&mut self) -> Result<Submitted, FrontError> {
+    pub async fn finish(mut self) -> Result<Submitted, FrontError> {
         self.flush().await?;
         self.queue.seal(&self.spec.batch_id).await?;
         tracing::info!(batch = crate::auth::batch_ref(&self.spec.batch_id), tenant = %self.spec.tenant, cases = self.cases, chunks = self.seq, input_errors = self.input_errors, "batch sealed");
@@ -292,14 +292,6 @@ impl Ingest {
             input_errors: self.input_errors,
             chunks: self.seq,
         })
-    }
-
-    /// The submission broke off: fail the batch so nobody waits for it.
-    pub async fn abort(self, reason: &str) {
-        tracing::warn!(batch = crate::auth::batch_ref(&self.spec.batch_id), reason, "submission aborted");
-        if let Err(e) = self.queue.stop_batch(&self.spec.batch_id, BatchState::Failed, reason).await {
-            tracing::error!(batch = crate::auth::batch_ref(&self.spec.batch_id), error = %e, "could not mark the batch failed");
-        }
     }
 }
 

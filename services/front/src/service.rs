@@ -134,13 +134,6 @@ impl Front {
         }
     }
 
-    /// Remove the parts of a batch that failed while receiving (chunks still queued are skipped
-    /// by the workers, which remove what a chunk in flight leaves).
-    fn clean(&self, batch_id: &str) {
-        let (dir, id) = (self.cfg.results_dir.clone(), batch_id.to_string());
-        tokio::task::spawn_blocking(move || thermosieve_worker::finalize::remove_parts(&dir, &id));
-    }
-
     /// A place among the submissions streaming now, or `Busy` when the front (or the tenant) is
     /// at its limit. Memory held by open submissions is bounded by these counts times one chunk.
     fn admit(&self, tenant: &Tenant) -> Result<Admitted, FrontError> {
@@ -185,9 +178,10 @@ impl Front {
             .await
             .inspect_err(|_| metrics::registry().submissions_refused.add(1))?;
         self.remember(ingest.batch_id(), &ingest.spec().tenant);
-        // If this future is dropped before the end (the client went away, the front stops),
-        // the guard fails the batch: no batch stays RECEIVING with nobody to finish it.
-        let mut guard = Unfinished {
+        // Every way out but success fails the batch through the guard, and so does dropping this
+        // future (the client went away, the front stops): no batch stays RECEIVING with nobody
+        // to finish it.
+        let guard = Unfinished {
             queue: Some(self.queue.clone()),
             batch_id: ingest.batch_id().to_string(),
             results_dir: self.cfg.results_dir.clone(),
@@ -197,10 +191,7 @@ impl Front {
                 Ok(Some(m)) => m,
                 Ok(None) => break,
                 Err(s) => {
-                    metrics::registry().submissions_failed.add(1);
-                    ingest.abort(&format!("the submission stream broke off: {}", s.message())).await;
-                    self.clean(&guard.batch_id);
-                    guard.queue = None;
+                    guard.fail(format!("the submission stream broke off: {}", s.message())).await;
                     return Err(FrontError::invalid("item", format!("stream broke off: {}", s.message())));
                 }
             };
@@ -222,27 +213,19 @@ impl Front {
                 None => Err(FrontError::invalid("item", "empty message: set header, case or cases")),
             };
             if let Err(e) = r {
-                metrics::registry().submissions_failed.add(1);
-                ingest.abort(&e.to_string()).await;
-                self.clean(&guard.batch_id);
-                guard.queue = None;
+                guard.fail(e.to_string()).await;
                 return Err(e);
             }
         }
         let s = match ingest.finish().await {
-            Ok(s) => {
-                metrics::registry().submissions_accepted.add(1);
-                s
-            }
+            Ok(s) => s,
             Err(e) => {
-                metrics::registry().submissions_failed.add(1);
-                ingest.abort(&e.to_string()).await;
-                self.clean(&guard.batch_id);
-                guard.queue = None;
+                guard.fail(e.to_string()).await;
                 return Err(e);
             }
         };
-        guard.queue = None;
+        guard.done();
+        metrics::registry().submissions_accepted.add(1);
         Ok(pb::SubmitBatchResponse {
             batch_id: s.batch_id,
             cases_received: s.cases,
@@ -270,7 +253,8 @@ impl Drop for Admitted {
     }
 }
 
-/// Fails a batch whose submission did not run to its end (see [`Front::submit`]).
+/// A submission not yet complete (see [`Front::submit`]): failed with a reason by
+/// [`Unfinished::fail`], or, when dropped unfinished, failed in a task of its own.
 struct Unfinished {
     /// `None` once the submission ended either way.
     queue: Option<Arc<dyn Queue>>,
@@ -278,26 +262,49 @@ struct Unfinished {
     results_dir: PathBuf,
 }
 
+impl Unfinished {
+    /// The submission completed: nothing to fail.
+    fn done(mut self) {
+        self.queue = None;
+    }
+
+    /// Fail the batch with `reason` and remove its parts (chunks still queued are skipped by the
+    /// workers, which also remove what a chunk in flight leaves).
+    async fn fail(mut self, reason: String) {
+        if let Some(queue) = self.queue.take() {
+            fail_submission(
+                queue,
+                std::mem::take(&mut self.batch_id),
+                std::mem::take(&mut self.results_dir),
+                reason,
+            )
+            .await;
+        }
+    }
+}
+
 impl Drop for Unfinished {
     fn drop(&mut self) {
         let (Some(queue), Ok(rt)) = (self.queue.take(), tokio::runtime::Handle::try_current()) else {
             return;
         };
-        let id = std::mem::take(&mut self.batch_id);
-        let dir = std::mem::take(&mut self.results_dir);
-        tracing::warn!(
-            batch = batch_ref(&id),
-            "submission ended before its last message; failing the batch"
-        );
-        metrics::registry().submissions_failed.add(1);
-        rt.spawn(async move {
-            let reason = "the submission ended before it was complete (client gone or front stopped); resubmit it";
-            if let Err(e) = queue.stop_batch(&id, BatchState::Failed, reason).await {
-                tracing::error!(batch = batch_ref(&id), error = %e, "could not mark the batch failed");
-            }
-            let _ = tokio::task::spawn_blocking(move || thermosieve_worker::finalize::remove_parts(&dir, &id)).await;
-        });
+        let reason = "the submission ended before it was complete (client gone or front stopped); resubmit it";
+        rt.spawn(fail_submission(
+            queue,
+            std::mem::take(&mut self.batch_id),
+            std::mem::take(&mut self.results_dir),
+            reason.to_string(),
+        ));
     }
+}
+
+async fn fail_submission(queue: Arc<dyn Queue>, id: String, results_dir: PathBuf, reason: String) {
+    tracing::warn!(batch = batch_ref(&id), reason = %reason, "submission failed; failing the batch");
+    metrics::registry().submissions_failed.add(1);
+    if let Err(e) = queue.stop_batch(&id, BatchState::Failed, &reason).await {
+        tracing::error!(batch = batch_ref(&id), error = %e, "could not mark the batch failed");
+    }
+    let _ = tokio::task::spawn_blocking(move || thermosieve_worker::finalize::remove_parts(&results_dir, &id)).await;
 }
 
 type BoxStream<T> = Pin<Box<dyn tokio_stream::Stream<Item = Result<T, Status>> + Send + 'static>>;

@@ -39,6 +39,14 @@ struct Args {
     /// process (screening with rows, frames, Parquet encoding of each part).
     #[arg(long)]
     stages: bool,
+    /// Instead of the service run: the embedded run (`thermosieve run`'s path, in this
+    /// process, every table written) against the engine with the process view on the same
+    /// threads, and the ratio.
+    #[arg(long)]
+    embedded: bool,
+    /// Engine threads for `--embedded` (default: every core).
+    #[arg(long)]
+    threads: Option<usize>,
     /// Demo input to repeat.
     #[arg(long, default_value = "examples/nightly_screen.csv")]
     input: PathBuf,
@@ -203,6 +211,49 @@ fn stages(demo: &[CaseInput], n: usize, chunk_size: usize) -> anyhow::Result<()>
     Ok(())
 }
 
+/// The embedded run against the engine alone, same threads, same process: the ratio the
+/// pipeline keeps of the engine's rate.
+async fn embedded(demo: &[CaseInput], n: usize, threads: usize, chunk_size: usize) -> anyhow::Result<()> {
+    let dir = std::env::temp_dir().join(format!("thermosieve-embedded-{}", std::process::id()));
+    std::fs::create_dir_all(&dir)?;
+    let ticks = clock_ticks_per_second();
+    let cpu0 = cpu_seconds("self", ticks);
+    let t0 = Instant::now();
+    let options = thermosieve_front::ingest::BatchOptions {
+        label: "bench embedded".into(),
+        chunk_size,
+        ..Default::default()
+    };
+    let out = thermosieve_front::embedded::run_cases(cases(demo, n), options, &dir, threads).await?;
+    let run_s = t0.elapsed().as_secs_f64();
+    let run_cpu = cpu_seconds("self", ticks) - cpu0;
+    let rss_mb = vm_hwm_kb(std::process::id()) / 1024;
+    let manifest: serde_json::Value = serde_json::from_slice(&std::fs::read(out.batch_dir.join("manifest.json"))?)?;
+    let finalize_s = manifest["timings"]["finalize_seconds"].as_f64().unwrap_or(f64::NAN);
+    let bytes: u64 = manifest["files"]
+        .as_array()
+        .map(|f| f.iter().filter_map(|e| e["bytes"].as_u64()).sum())
+        .unwrap_or(0);
+    let _ = std::fs::remove_dir_all(&dir);
+    let cpu1 = cpu_seconds("self", ticks);
+    let engine_rate = engine_only(demo, n, threads, true);
+    let engine_cpu = cpu_seconds("self", ticks) - cpu1;
+    let run_rate = n as f64 / run_s;
+    println!(
+        "embedded run: {n} cases ({} errors), {threads} engine threads on {} cores",
+        out.progress.cases_error,
+        std::thread::available_parallelism().map_or(1, |c| c.get())
+    );
+    println!(
+        "  {run_s:.2} s, {run_rate:.0} cases/s, {run_cpu:.1} CPU s, finalizer {finalize_s:.2} s, tables {:.1} MB",
+        bytes as f64 / 1e6
+    );
+    println!("  peak RSS (VmHWM, this process): {rss_mb} MB");
+    println!("engine with the process view, {threads} threads: {engine_rate:.0} cases/s, {engine_cpu:.1} CPU s");
+    println!("ratio embedded / engine: {:.2} (target >= 0.50)", run_rate / engine_rate);
+    Ok(())
+}
+
 #[tokio::main]
 async fn main() -> anyhow::Result<()> {
     let a = Args::parse();
@@ -210,6 +261,13 @@ async fn main() -> anyhow::Result<()> {
         let demo: Vec<CaseInput> = input::open(&a.input, None)?.collect();
         let size = if a.chunk_size == 0 { 2000 } else { a.chunk_size as usize };
         return stages(&demo, a.cases, size);
+    }
+    if a.embedded {
+        let demo: Vec<CaseInput> = input::open(&a.input, None)?.collect();
+        let threads = a
+            .threads
+            .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()));
+        return embedded(&demo, a.cases, threads, a.chunk_size as usize).await;
     }
     let bin = match a.thermosieve {
         Some(b) => b,

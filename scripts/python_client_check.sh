@@ -98,6 +98,8 @@ assert cases == 2 * rows, (cases, rows)
 assert w['thermosieve_batches_finalized_total{outcome="done"}'] == 2, w
 assert w["thermosieve_chunk_seconds_count"] == w["thermosieve_chunks_total"] >= 2, w
 assert f['thermosieve_submissions_total{outcome="accepted"}'] == 2, f
-assert f["thermosieve_queue_up"] == 1 and f["thermosieve_queue_depth"] == 0, f
-print(f"metrics: worker {cases:.0f} cases in {w['thermosieve_chunks_total']:.0f} chunks, front 2 submissions, queue depth 0")
+assert f["thermosieve_queue_up"] == 1, f
+assert f['thermosieve_queue_tasks{stage="waiting"}'] == 0 and f['thermosieve_queue_tasks{stage="in_flight"}'] == 0, f
+assert f['thermosieve_batches{state="done"}'] == 2 and f['thermosieve_batches{state="running"}'] == 0, f
+print(f"metrics: worker {cases:.0f} cases in {w['thermosieve_chunks_total']:.0f} chunks, front 2 submissions, 2 batches done, queue empty")
 PY

@@ -58,8 +58,13 @@ async fn lifecycle(q: &Arc<dyn Queue>, b: &str) {
     q.seal(b).await.unwrap();
     assert_eq!(state(q, b).await, BatchState::Running);
     assert_eq!(q.progress(b).await.unwrap().unwrap().chunks_total, 2);
+    let s = q.stats().await.unwrap();
+    assert_eq!((s.waiting, s.in_flight), (2, 0));
+    assert!(s.batches.contains(&(BatchState::Running, 1)), "{s:?}");
     let d0 = next(q, "w1").await;
     assert_eq!(d0.deliveries, 1);
+    let s = q.stats().await.unwrap();
+    assert_eq!((s.waiting, s.in_flight), (1, 1));
     assert!(matches!(&d0.task, Task::Chunk(c) if c.seq == 0 && c.cases.len() == 2));
     // Nobody completes d0 in time: it is reclaimed with a second delivery.
     let again = q.reclaim("w2", Duration::ZERO, 10).await.unwrap();
@@ -173,5 +178,19 @@ async fn both_queue_backends_keep_the_same_state_machine() {
         depth_and_cancel(&q, &format!("{name}-depth")).await;
         lease(&q, &format!("{name}-lease")).await;
         assert_eq!(q.depth().await.unwrap(), 0, "{name}");
+        let s = q.stats().await.unwrap();
+        assert_eq!((s.waiting, s.in_flight, s.dead_letters), (0, 0, 1), "{name}");
+        assert_eq!(
+            s.batches,
+            [
+                (BatchState::Receiving, 0),
+                (BatchState::Running, 0),
+                (BatchState::Finalizing, 0),
+                (BatchState::Done, 2),
+                (BatchState::Failed, 1),
+                (BatchState::Cancelled, 1),
+            ],
+            "{name}"
+        );
     }
 }

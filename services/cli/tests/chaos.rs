@@ -1,7 +1,13 @@
-//! Chaos on real processes: a redis-server, `thermosieve serve` and two `thermosieve work`
-//! processes on loopback; one worker is killed with SIGKILL every 0.3–1 s and started again
-//! while batches run. Every case must come back exactly once and the batch DONE, three runs in
-//! a row. Times are printed against a run without faults (never asserted).
+//! Chaos on real processes: a redis-server, `thermosieve serve` and `thermosieve work`
+//! processes on loopback.
+//! - One of two workers is killed with SIGKILL every 0.3–1 s and started again while batches
+//!   run: every case must come back exactly once and the batch DONE, three runs in a row.
+//! - The finalizing worker is stopped dead at each step of finalization (the worker's
+//!   `fault-points`, which test builds turn on): a fresh worker finishes the batch.
+//! - Redis is killed and restarted from its append-only file while the finalizer is between
+//!   steps: the batch ends DONE without restarting any other process.
+//!
+//! Times are printed against a run without faults (never asserted).
 
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
@@ -67,8 +73,8 @@ impl Plant {
             .stderr(Stdio::null());
     }
 
-    fn start() -> Plant {
-        let redis = RedisServer::start();
+    /// A front and `workers` workers on `redis`.
+    fn start(redis: RedisServer, workers: usize) -> Plant {
         let results = tempfile::tempdir().unwrap();
         let port = free_port();
         let mut plant = Plant {
@@ -89,7 +95,7 @@ impl Plant {
             assert!(Instant::now() < deadline, "the front did not listen");
             std::thread::sleep(Duration::from_millis(50));
         }
-        for _ in 0..2 {
+        for _ in 0..workers {
             let w = plant.worker();
             plant.workers.push(w);
         }
@@ -97,12 +103,58 @@ impl Plant {
     }
 
     fn worker(&mut self) -> Child {
+        self.worker_stopping_at(None)
+    }
+
+    /// A worker; with `fault`, `THERMOSIEVE_FAULT_AT` set to it (see the worker's `fault`
+    /// module).
+    fn worker_stopping_at(&mut self, fault: Option<&str>) -> Child {
         self.started += 1;
         let mut c = bin();
         c.args(["work", "--threads", "1", "--reclaim-idle-s", "1", "--max-deliveries", "1000"])
             .args(["--consumer", &format!("chaos-{}", self.started)]);
         self.env(&mut c);
+        if let Some(point) = fault {
+            c.env("THERMOSIEVE_FAULT_AT", point);
+        }
         c.spawn().unwrap()
+    }
+
+    fn batch_dir(&self, id: &str) -> PathBuf {
+        self.results.path().join(id)
+    }
+
+    /// The batch's state as the queue holds it (read from Redis directly).
+    fn state(&self, id: &str) -> String {
+        use thermosieve_queue::Queue;
+        let rt = tokio::runtime::Builder::new_current_thread().enable_all().build().unwrap();
+        rt.block_on(async {
+            let q = thermosieve_queue::RedisQueue::connect(thermosieve_queue::RedisConfig::new(self.redis.url()))
+                .await
+                .unwrap();
+            q.progress(id)
+                .await
+                .unwrap()
+                .map(|p| p.state.as_str().to_string())
+                .unwrap_or_default()
+        })
+    }
+
+    /// Wait (up to 60 s) for `done`.
+    fn wait_for(&self, what: &str, mut done: impl FnMut() -> bool) {
+        let deadline = Instant::now() + Duration::from_secs(60);
+        while !done() {
+            assert!(Instant::now() < deadline, "waited 60 s for {what}");
+            std::thread::sleep(Duration::from_millis(50));
+        }
+    }
+
+    /// `watch <id>` to its end; true when it exits 0 (DONE).
+    fn watch_done(&self, id: &str) -> bool {
+        let mut c = bin();
+        c.args(["watch", id]);
+        self.env(&mut c);
+        c.status().unwrap().success()
     }
 
     fn run(&self, args: &[&str]) -> String {
@@ -186,7 +238,7 @@ fn workers_killed_every_second_lose_no_case_and_write_none_twice() {
     let dir = tempfile::tempdir().unwrap();
     let input: PathBuf = dir.path().join("screen.csv");
     let ids = write_input(&input, 2);
-    let mut plant = Plant::start();
+    let mut plant = Plant::start(RedisServer::start(), 2);
     let (calm, calm_s, _) = plant.batch(&input, false, 0);
     assert_each_once(&plant.fetch_case_ids(&calm, &dir.path().join("calm")), &ids, "no faults");
     for run in 0..3u64 {
@@ -200,6 +252,109 @@ fn workers_killed_every_second_lose_no_case_and_write_none_twice() {
         eprintln!(
             "chaos run {run}: {} cases, {kills} workers killed, {secs:.1} s (no faults: {calm_s:.1} s)",
             ids.len()
+        );
+    }
+}
+
+/// Kill the finalizing worker at each step of finalization (tables written; manifest written;
+/// DONE recorded, parts not yet removed): a worker started afterwards finishes the batch or
+/// recognises it finished, every case is in `cases.parquet` exactly once, and no part file is
+/// left behind.
+#[test]
+fn a_worker_stopped_dead_at_any_step_of_finalization_leaves_a_batch_that_still_ends_done() {
+    use std::os::unix::process::ExitStatusExt;
+    let dir = tempfile::tempdir().unwrap();
+    let input = dir.path().join("screen.csv");
+    let ids = write_input(&input, 1);
+    let mut plant = Plant::start(RedisServer::start(), 0);
+    for point in thermosieve_worker::fault::POINTS {
+        let t0 = Instant::now();
+        let mut faulty = plant.worker_stopping_at(Some(point));
+        let id = plant.run(&["submit", input.to_str().unwrap(), "--chunk-size", "500"]);
+        let deadline = Instant::now() + Duration::from_secs(120);
+        let status = loop {
+            if let Some(s) = faulty.try_wait().unwrap() {
+                break s;
+            }
+            assert!(Instant::now() < deadline, "{point}: the worker never reached the point");
+            std::thread::sleep(Duration::from_millis(20));
+        };
+        // SIGABRT: it stopped at the point, not for another reason.
+        assert_eq!(status.signal(), Some(6), "{point}: worker ended {status}");
+        let state = plant.state(&id);
+        let parts = plant.batch_dir(&id).join("parts");
+        if point == thermosieve_worker::fault::DONE_RECORDED {
+            assert_eq!(state, "done", "{point}");
+            assert!(parts.is_dir(), "{point}: the parts should still be there");
+        } else {
+            assert_eq!(state, "finalizing", "{point}");
+        }
+        let mut healthy = plant.worker();
+        assert!(plant.watch_done(&id), "{point}: batch {id} did not end DONE");
+        let got = plant.fetch_case_ids(&id, &dir.path().join(point));
+        assert_each_once(&got, &ids, point);
+        plant.wait_for(&format!("{point}: the parts to be removed"), || !parts.exists());
+        let leftovers: Vec<_> = std::fs::read_dir(plant.batch_dir(&id))
+            .unwrap()
+            .flatten()
+            .map(|e| e.file_name().to_string_lossy().into_owned())
+            .filter(|n| n.contains(".tmp-"))
+            .collect();
+        assert!(leftovers.is_empty(), "{point}: temporary files left: {leftovers:?}");
+        let _ = healthy.kill();
+        let _ = healthy.wait();
+        eprintln!(
+            "worker stopped at {point}: {} cases DONE after {:.1} s",
+            ids.len(),
+            t0.elapsed().as_secs_f64()
+        );
+    }
+}
+
+/// Redis killed (SIGKILL) and started again from its append-only file while the finalizer sits
+/// between steps: the same front, worker and `watch` carry on, and the batch ends DONE with
+/// every case once.
+#[test]
+fn a_redis_restart_while_finalizing_ends_done_without_restarting_anything_else() {
+    let dir = tempfile::tempdir().unwrap();
+    let input = dir.path().join("screen.csv");
+    let ids = write_input(&input, 1);
+    let mut plant = Plant::start(RedisServer::start_with_aof(), 0);
+    // (fault point, the file whose appearance shows the finalizer is paused there)
+    let pauses = [
+        (thermosieve_worker::fault::TABLES_WRITTEN, "species.parquet"),
+        (thermosieve_worker::fault::MANIFEST_WRITTEN, "manifest.json"),
+    ];
+    for (point, sign) in pauses {
+        let t0 = Instant::now();
+        let mut worker = plant.worker_stopping_at(Some(&format!("{point}:sleep=3000")));
+        let id = plant.run(&["submit", input.to_str().unwrap(), "--chunk-size", "500"]);
+        let mut watch = bin();
+        watch.args(["watch", &id]);
+        plant.env(&mut watch);
+        let mut watch = watch.spawn().unwrap();
+        let sign = plant.batch_dir(&id).join(sign);
+        plant.wait_for(&format!("{point}: {}", sign.display()), || sign.exists());
+        plant.redis.kill();
+        std::thread::sleep(Duration::from_millis(500));
+        plant.redis.restart();
+        let status = watch.wait().unwrap();
+        assert!(status.success(), "{point}: watch of {id} ended {status}");
+        assert_eq!(plant.state(&id), "done", "{point}");
+        assert!(
+            worker.try_wait().unwrap().is_none(),
+            "{point}: the worker should have lived through it"
+        );
+        let got = plant.fetch_case_ids(&id, &dir.path().join(point));
+        assert_each_once(&got, &ids, point);
+        let parts = plant.batch_dir(&id).join("parts");
+        plant.wait_for(&format!("{point}: the parts to be removed"), || !parts.exists());
+        let _ = worker.kill();
+        let _ = worker.wait();
+        eprintln!(
+            "redis restarted while paused at {point}: {} cases DONE after {:.1} s (3 s of it the pause)",
+            ids.len(),
+            t0.elapsed().as_secs_f64()
         );
     }
 }

@@ -655,17 +655,11 @@ async fn expire_abandoned(queue: Arc<dyn Queue>, results_dir: PathBuf, timeout: 
 
 /// The front's metrics text: its counters and the queue's gauges, read now.
 pub async fn metrics_text(queue: Arc<dyn Queue>) -> String {
-    let depth = tokio::time::timeout(Duration::from_secs(2), queue.depth())
+    let queue = tokio::time::timeout(Duration::from_secs(2), queue.stats())
         .await
         .ok()
         .and_then(Result::ok);
-    metrics::render(
-        metrics::registry(),
-        Some(metrics::Gauges {
-            queue_depth: depth,
-            queue_up: depth.is_some(),
-        }),
-    )
+    metrics::render(metrics::registry(), Some(metrics::Gauges { queue }))
 }
 
 /// How often the front checks that it can reach the queue.

@@ -101,6 +101,14 @@ pub trait Queue: Send + Sync {
     /// Backend errors.
     async fn depth(&self) -> Result<u64, QueueError>;
 
+    /// What the queue holds now, for monitoring: tasks waiting and in flight, dead letters,
+    /// and batches by state (over every batch whose state is kept). Costs a pass over the
+    /// batches: for scrapes, not for hot paths.
+    ///
+    /// # Errors
+    /// Backend errors.
+    async fn stats(&self) -> Result<QueueStats, QueueError>;
+
     /// The next new task for `consumer`, waiting up to `block` for one.
     ///
     /// # Errors

@@ -170,6 +170,18 @@ impl Queue for MemoryQueue {
         Ok((g.ready.len() + g.pending.len()) as u64)
     }
 
+    async fn stats(&self) -> Result<QueueStats, QueueError> {
+        let g = self.lock();
+        let mut stats = QueueStats {
+            waiting: g.ready.len() as u64,
+            in_flight: g.pending.len() as u64,
+            dead_letters: g.dead.len() as u64,
+            batches: Vec::new(),
+        };
+        stats.count_batches(g.batches.values().map(|b| b.progress.state));
+        Ok(stats)
+    }
+
     async fn poll(&self, _consumer: &str, block: Duration) -> Result<Option<Delivery>, QueueError> {
         let deadline = tokio::time::Instant::now() + block;
         loop {

@@ -240,6 +240,16 @@ pub enum BatchState {
 }
 
 impl BatchState {
+    /// Every state, in the order of a batch's life.
+    pub const ALL: [BatchState; 6] = [
+        BatchState::Receiving,
+        BatchState::Running,
+        BatchState::Finalizing,
+        BatchState::Done,
+        BatchState::Failed,
+        BatchState::Cancelled,
+    ];
+
     pub fn as_str(self) -> &'static str {
         match self {
             BatchState::Receiving => "receiving",
@@ -301,4 +311,30 @@ pub fn now_unix_ms() -> u64 {
     std::time::SystemTime::now()
         .duration_since(std::time::UNIX_EPOCH)
         .map_or(0, |d| d.as_millis() as u64)
+}
+
+/// A snapshot of the queue for monitoring ([`crate::Queue::stats`]).
+#[derive(Clone, Debug, Default, PartialEq, Eq)]
+pub struct QueueStats {
+    /// Tasks no consumer has read yet.
+    pub waiting: u64,
+    /// Tasks read by a consumer and not yet acknowledged.
+    pub in_flight: u64,
+    /// Chunks dead-lettered so far (kept for inspection).
+    pub dead_letters: u64,
+    /// Batches whose state is kept, by state, in [`BatchState::ALL`] order.
+    pub batches: Vec<(BatchState, u64)>,
+}
+
+impl QueueStats {
+    /// Count `states` into [`QueueStats::batches`] (every state listed, zeros included).
+    pub fn count_batches(&mut self, states: impl IntoIterator<Item = BatchState>) {
+        let mut n = [0u64; BatchState::ALL.len()];
+        for s in states {
+            if let Some(i) = BatchState::ALL.iter().position(|&a| a == s) {
+                n[i] += 1;
+            }
+        }
+        self.batches = BatchState::ALL.into_iter().zip(n).collect();
+    }
 }

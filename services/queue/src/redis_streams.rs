@@ -401,6 +401,68 @@ impl Queue for RedisQueue {
         Ok(n)
     }
 
+    async fn stats(&self) -> Result<QueueStats, QueueError> {
+        let mut c = self.conn.clone();
+        // The group's `lag` (entries never delivered) and `pending` (delivered, not acknowledged).
+        let groups: Vec<HashMap<String, redis::Value>> =
+            redis::cmd("XINFO").arg("GROUPS").arg(self.tasks_key()).query_async(&mut c).await?;
+        let number = |g: &HashMap<String, redis::Value>, k: &str| match g.get(k) {
+            Some(redis::Value::Int(n)) => u64::try_from(*n).ok(),
+            _ => None,
+        };
+        let group = groups
+            .iter()
+            .find(|g| matches!(g.get("name"), Some(redis::Value::BulkString(b)) if b.as_slice() == GROUP.as_bytes()))
+            .ok_or_else(|| QueueError::GroupMissing {
+                stream: self.tasks_key(),
+                group: GROUP.to_string(),
+            })?;
+        let in_flight = number(group, "pending").unwrap_or(0);
+        let length: u64 = redis::cmd("XLEN").arg(self.tasks_key()).query_async(&mut c).await?;
+        // `lag` is unknown (nil) after some deletions; entries not pending are then waiting.
+        let waiting = number(group, "lag").unwrap_or(length.saturating_sub(in_flight));
+        let dead_letters: u64 = redis::cmd("XLEN").arg(self.dead_key()).query_async(&mut c).await?;
+        // Batches: every `<prefix>:batch:<id>` hash, scanned in steps, states read in one
+        // pipeline per step.
+        let pattern = format!("{}:batch:*", self.cfg.prefix);
+        let mut states = Vec::new();
+        let mut cursor = 0u64;
+        loop {
+            let (next, keys): (u64, Vec<String>) = redis::cmd("SCAN")
+                .arg(cursor)
+                .arg("MATCH")
+                .arg(&pattern)
+                .arg("COUNT")
+                .arg(1000)
+                .arg("TYPE")
+                .arg("hash")
+                .query_async(&mut c)
+                .await?;
+            let mut pipe = redis::pipe();
+            for k in &keys {
+                pipe.cmd("HGET").arg(k).arg("state");
+            }
+            let got: Vec<Option<String>> = if keys.is_empty() {
+                Vec::new()
+            } else {
+                pipe.query_async(&mut c).await?
+            };
+            states.extend(got.iter().flatten().filter_map(|s| BatchState::parse(s)));
+            cursor = next;
+            if cursor == 0 {
+                break;
+            }
+        }
+        let mut stats = QueueStats {
+            waiting,
+            in_flight,
+            dead_letters,
+            batches: Vec::new(),
+        };
+        stats.count_batches(states);
+        Ok(stats)
+    }
+
     async fn poll(&self, consumer: &str, block: Duration) -> Result<Option<Delivery>, QueueError> {
         // The response timeout must exceed the BLOCK time, or every idle read times out.
         let (key, mut c) = self.blocking_conn(block + Duration::from_secs(5)).await?;

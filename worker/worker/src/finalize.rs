@@ -224,6 +224,7 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress) -> Re
     let routes_bytes = std::fs::metadata(&routes_path).map_or(0, |m| m.len());
     let (species_rows, species_bytes) = species_table(results_dir, spec, chunks)?;
 
+    crate::fault::at(crate::fault::TABLES_WRITTEN);
     counts.cases = cases;
     counts.cases_ok = ok;
     counts.cases_error = cases - ok;
@@ -277,6 +278,7 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress) -> Re
             source,
         })
     })?;
+    crate::fault::at(crate::fault::MANIFEST_WRITTEN);
     Ok(manifest)
 }
 

@@ -14,9 +14,11 @@
 //! - [`finalize`]: part files → batch tables + manifest.
 //! - [`concat`]: part files → one Parquet file by copying compressed pages.
 //! - [`route_table`]: the chunks' routes parts → `routes.parquet`, ranked, in bounded memory.
+//! - [`fault`]: named crash points of finalization, for the crash tests only.
 //! - [`run`]: the worker loop (poll, compute, write, acknowledge, reclaim, dead-letter, stop).
 
 pub mod concat;
+pub mod fault;
 pub mod finalize;
 pub mod metrics;
 pub mod parts;

@@ -72,11 +72,10 @@ pub fn registry() -> &'static Registry {
 }
 
 /// Gauges read when scraped (the queue's, on the front).
-#[derive(Clone, Copy, Debug, Default)]
+#[derive(Clone, Debug, Default)]
 pub struct Gauges {
-    /// Queue entries waiting or in flight; `None` when the queue did not answer.
-    pub queue_depth: Option<u64>,
-    pub queue_up: bool,
+    /// The queue's snapshot; `None` when the queue did not answer.
+    pub queue: Option<thermosieve_queue::QueueStats>,
 }
 
 fn family(out: &mut String, name: &str, kind: &str, help: &str) {
@@ -170,10 +169,32 @@ pub fn render(r: &Registry, gauges: Option<Gauges>) -> String {
     let _ = writeln!(o, "thermosieve_cancellations_total {}", r.cancellations.get());
     if let Some(g) = gauges {
         family(&mut o, "thermosieve_queue_up", "gauge", "1 when the queue answered this scrape.");
-        let _ = writeln!(o, "thermosieve_queue_up {}", u8::from(g.queue_up));
-        if let Some(d) = g.queue_depth {
-            family(&mut o, "thermosieve_queue_depth", "gauge", "Queue entries waiting or in flight.");
-            let _ = writeln!(o, "thermosieve_queue_depth {d}");
+        let _ = writeln!(o, "thermosieve_queue_up {}", u8::from(g.queue.is_some()));
+        if let Some(q) = g.queue {
+            family(
+                &mut o,
+                "thermosieve_queue_tasks",
+                "gauge",
+                "Queue tasks: waiting (not yet read by a worker: the lag) and in flight (read, not yet acknowledged).",
+            );
+            let _ = writeln!(o, "thermosieve_queue_tasks{{stage=\"waiting\"}} {}", q.waiting);
+            let _ = writeln!(o, "thermosieve_queue_tasks{{stage=\"in_flight\"}} {}", q.in_flight);
+            family(
+                &mut o,
+                "thermosieve_queue_dead_letters",
+                "gauge",
+                "Chunks dead-lettered and kept for inspection.",
+            );
+            let _ = writeln!(o, "thermosieve_queue_dead_letters {}", q.dead_letters);
+            family(
+                &mut o,
+                "thermosieve_batches",
+                "gauge",
+                "Batches whose state the queue keeps, by state.",
+            );
+            for (state, n) in &q.batches {
+                let _ = writeln!(o, "thermosieve_batches{{state=\"{}\"}} {n}", state.as_str());
+            }
         }
     }
     o
@@ -237,8 +258,12 @@ mod tests {
         let t = render(
             &r,
             Some(Gauges {
-                queue_depth: Some(4),
-                queue_up: true,
+                queue: Some(thermosieve_queue::QueueStats {
+                    waiting: 4,
+                    in_flight: 1,
+                    dead_letters: 0,
+                    batches: vec![(thermosieve_queue::BatchState::Running, 2)],
+                }),
             }),
         );
         for line in [
@@ -252,7 +277,11 @@ mod tests {
             "thermosieve_chunk_seconds_bucket{le=\"+Inf\"} 2",
             "thermosieve_chunk_seconds_count 2",
             "thermosieve_chunk_seconds_sum 3.07",
-            "thermosieve_queue_depth 4",
+            "thermosieve_queue_up 1",
+            "thermosieve_queue_tasks{stage=\"waiting\"} 4",
+            "thermosieve_queue_tasks{stage=\"in_flight\"} 1",
+            "thermosieve_queue_dead_letters 0",
+            "thermosieve_batches{state=\"running\"} 2",
             "# TYPE thermosieve_chunk_seconds histogram",
         ] {
             assert!(t.lines().any(|l| l == line), "missing {line:?} in\n{t}");

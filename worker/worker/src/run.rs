@@ -172,6 +172,9 @@ pub async fn run(
         shutdown.await;
         let _ = stop_tx.send(true);
     });
+    if !cfg.keep_parts {
+        remove_leftovers(queue.as_ref(), &cfg.results_dir).await;
+    }
     let mut slots = Vec::new();
     let mut threads = Vec::new();
     for i in 0..cfg.threads.max(1) {
@@ -205,6 +208,77 @@ pub async fn run(
     let _ = tokio::task::spawn_blocking(move || threads.into_iter().for_each(|t| drop(t.join()))).await;
     tracing::info!(chunks = stats.chunks, cases = stats.cases, "worker stopped");
     Ok(stats)
+}
+
+/// Remove what finished batches left in the results folder: the part files of a batch whose
+/// worker was killed between recording DONE and removing them (or that failed while its chunks
+/// ran), and the temporary files of a write cut short. Only batches the queue reports over
+/// (DONE, FAILED, CANCELLED) are touched; nothing is done while the queue does not answer.
+async fn remove_leftovers(queue: &dyn Queue, results_dir: &Path) {
+    let dir = results_dir.to_path_buf();
+    let candidates = tokio::task::spawn_blocking(move || leftover_candidates(&dir))
+        .await
+        .unwrap_or_default();
+    let mut removed = 0usize;
+    for id in candidates {
+        match queue.progress(&id).await {
+            Ok(Some(p)) if p.state.is_final() => {
+                let dir = results_dir.to_path_buf();
+                let _ = tokio::task::spawn_blocking(move || {
+                    remove_parts(&dir, &id);
+                    remove_temporaries(&dir, &id);
+                })
+                .await;
+                removed += 1;
+            }
+            Ok(_) => {}
+            Err(e) => {
+                tracing::warn!(error = %e, "queue unreachable: leftover part files stay until the next start");
+                return;
+            }
+        }
+    }
+    if removed > 0 {
+        tracing::info!(
+            batches = removed,
+            "removed part and temporary files that finished batches left behind"
+        );
+    }
+}
+
+/// Batch folders holding part files or temporary files.
+fn leftover_candidates(results_dir: &Path) -> Vec<String> {
+    let Ok(entries) = std::fs::read_dir(results_dir) else {
+        return Vec::new();
+    };
+    entries
+        .flatten()
+        .filter_map(|e| e.file_name().to_str().map(str::to_string))
+        .filter(|id| crate::parts::batch_dir(results_dir, id).is_ok())
+        .filter(|id| {
+            let dir = results_dir.join(id);
+            dir.join("parts").is_dir() || !temporaries(&dir).is_empty()
+        })
+        .collect()
+}
+
+/// Temporary files of [`crate::parts::write_atomic`] in a folder.
+fn temporaries(dir: &Path) -> Vec<PathBuf> {
+    std::fs::read_dir(dir)
+        .map(|entries| {
+            entries
+                .flatten()
+                .filter(|e| e.file_name().to_str().is_some_and(|n| n.starts_with('.') && n.contains(".tmp-")))
+                .map(|e| e.path())
+                .collect()
+        })
+        .unwrap_or_default()
+}
+
+fn remove_temporaries(results_dir: &Path, batch_id: &str) {
+    for t in temporaries(&results_dir.join(batch_id)) {
+        let _ = std::fs::remove_file(t);
+    }
 }
 
 struct Slot {
@@ -429,6 +503,7 @@ impl Slot {
                     m.finalized_failed.add(1);
                 }
                 self.queue.complete_finalize(&d, outcome).await?;
+                crate::fault::at(crate::fault::DONE_RECORDED);
                 // Parts go only once DONE is recorded: a crash before this line leaves a
                 // redelivered finalize everything it needs.
                 if done && !self.cfg.keep_parts {

@@ -49,3 +49,54 @@ fn no_crate_depends_on_a_crate_of_its_own_layer_or_above() {
     assert_eq!(checked, LAYERS.len(), "a crate of the diagram is missing from the workspace");
     assert!(wrong.is_empty(), "dependencies against the layering of DEVELOPERS.md: {wrong:?}");
 }
+
+/// `1.95` → (1, 95, 0).
+fn version(v: &str) -> (u32, u32, u32) {
+    let mut parts = v.split('.').map(|p| p.parse::<u32>().unwrap_or(0));
+    (parts.next().unwrap_or(0), parts.next().unwrap_or(0), parts.next().unwrap_or(0))
+}
+
+/// The declared `rust-version` is a promise that this toolchain version builds the project:
+/// every crate of the workspace declares it, and it is at least the newest `rust-version` any
+/// dependency in Cargo.lock declares (a dependency needing a newer compiler breaks the promise).
+#[test]
+fn the_declared_rust_version_covers_every_dependency() {
+    let cargo = std::env::var("CARGO").unwrap_or_else(|_| "cargo".into());
+    let out = std::process::Command::new(cargo)
+        .args(["metadata", "--format-version", "1", "--offline", "--locked"])
+        .current_dir(thermosieve_e2e::root())
+        .output()
+        .expect("cargo metadata runs");
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let meta: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let members: Vec<&str> = meta["workspace_members"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter_map(|m| m.as_str())
+        .collect();
+    let mut declared = Vec::new();
+    let mut needed = ((0, 0, 0), String::new());
+    for p in meta["packages"].as_array().unwrap() {
+        let name = p["name"].as_str().unwrap_or_default();
+        let rv = p["rust_version"].as_str();
+        if members.contains(&p["id"].as_str().unwrap_or_default()) {
+            declared.push((name.to_string(), rv.map(str::to_string)));
+        } else if let Some(v) = rv {
+            if version(v) > needed.0 {
+                needed = (version(v), format!("{name} {v}"));
+            }
+        }
+    }
+    assert!(declared.len() >= 8, "{declared:?}");
+    let missing: Vec<_> = declared.iter().filter(|(_, v)| v.is_none()).map(|(n, _)| n).collect();
+    assert!(missing.is_empty(), "crates without rust-version.workspace = true: {missing:?}");
+    for (name, v) in &declared {
+        let v = v.as_deref().unwrap_or_default();
+        assert!(
+            version(v) >= needed.0,
+            "{name} declares rust-version {v}, but {} needs a newer compiler",
+            needed.1
+        );
+    }
+}

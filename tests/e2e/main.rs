@@ -2,6 +2,8 @@
 //! redis-server, real gRPC on 127.0.0.1:0, two workers) against it; redelivery and
 //! dead-lettering through real Redis Streams.
 
+#![allow(clippy::unwrap_used, reason = "test helpers: a failed unwrap is a failed test")]
+
 use polars::prelude::*;
 use std::collections::HashMap;
 use std::path::Path;
@@ -148,7 +150,11 @@ async fn embedded_run_on_demo_data_gives_every_case_once_with_the_engines_values
         Some(thermosieve_engine::VERSION)
     );
     assert_eq!(md.get("thermosieve.caution").map(String::as_str), Some(thermosieve_engine::CAUTION));
-    assert!(md.get("thermosieve.data_sources").is_some_and(|s| s.contains("NASA")));
+    // Every source a case can cite: the tables' and the estimation methods.
+    let sources: Vec<String> = serde_json::from_str(&md["thermosieve.data_sources"]).unwrap();
+    for name in ["NASA", "ATcT", "Benson", "Joback"] {
+        assert!(sources.iter().any(|s| s.contains(name)), "{name} missing from {sources:?}");
+    }
     assert!(md.get("thermosieve.temperature_grid_k").is_some_and(|s| s.starts_with("[273.15")));
     let manifest: serde_json::Value = serde_json::from_slice(&std::fs::read(batch.join("manifest.json")).unwrap()).unwrap();
     assert_eq!(manifest["counts"]["cases"], 1999);

@@ -2,7 +2,7 @@
 //! Redis Streams on a real redis-server. What one backend does, the other must do too.
 
 use super::*;
-use thermosieve_queue::{BatchSpec, CaseInput, Chunk, ChunkReport, Conditions, Delivery, MemoryQueue, QueueError, Task};
+use thermosieve_queue::{BatchSpec, CaseInput, Chunk, ChunkReport, Conditions, Delivery, Finalized, MemoryQueue, QueueError, Task};
 
 fn spec(id: &str) -> BatchSpec {
     BatchSpec {
@@ -83,7 +83,7 @@ async fn lifecycle(q: &Arc<dyn Queue>, b: &str) {
     );
     let f = next(q, "w1").await;
     assert_eq!(f.task, Task::Finalize { batch_id: b.into() });
-    q.complete_finalize(&f, Ok(())).await.unwrap();
+    q.complete_finalize(&f, Finalized::Done).await.unwrap();
     let p = q.progress(b).await.unwrap().unwrap();
     assert_eq!(p.state, BatchState::Done);
     assert!(p.finished_unix_ms.is_some());
@@ -103,9 +103,14 @@ async fn edges(q: &Arc<dyn Queue>, b: &str) {
         Err(QueueError::WrongState { .. })
     ));
     let f = next(q, "w1").await;
-    q.complete_finalize(&f, Err("writing the tables failed: disk full".into()))
-        .await
-        .unwrap();
+    q.complete_finalize(
+        &f,
+        Finalized::Failed {
+            message: "writing the tables failed: disk full".into(),
+        },
+    )
+    .await
+    .unwrap();
     let p = q.progress(b).await.unwrap().unwrap();
     assert_eq!(p.state, BatchState::Failed);
     assert!(p.message.contains("disk full"), "{}", p.message);
@@ -165,7 +170,7 @@ async fn lease(q: &Arc<dyn Queue>, b: &str) {
     let p = q.progress(b).await.unwrap().unwrap();
     assert_eq!((p.chunks_dead, p.cases_error, p.state), (1, 1, BatchState::Finalizing));
     let f = next(q, "w1").await;
-    q.complete_finalize(&f, Ok(())).await.unwrap();
+    q.complete_finalize(&f, Finalized::Done).await.unwrap();
 }
 
 #[tokio::test(flavor = "multi_thread", worker_threads = 2)]

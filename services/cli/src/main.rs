@@ -24,7 +24,7 @@ mod service;
 /// Quick start: `thermosieve run examples/nightly_screen.csv --out results/`.
 /// Every flag has a THERMOSIEVE_* environment variable behind it (shown in each --help).
 #[derive(Parser, Debug)]
-#[command(name = "thermosieve", version, about, long_about = None)]
+#[command(name = "thermosieve", version)]
 struct Cli {
     #[command(subcommand)]
     command: Command,

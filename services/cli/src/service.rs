@@ -23,7 +23,7 @@ const EXIT_BATCH_FAILED: u8 = 4;
 pub struct RunArgs {
     /// Input table: .csv, .tsv, .jsonl or .parquet; required columns case_id, reaction.
     pub input: PathBuf,
-    /// Folder for the batch folder (<out>/<batch_id>/cases.parquet ...).
+    /// Folder for the batch folder (`<out>/<batch_id>/cases.parquet` ...).
     #[arg(long, env = "THERMOSIEVE_OUT")]
     pub out: PathBuf,
     /// Grid temperatures in K, comma-separated (default 273.15 to 623.15 K in 25 K steps).
@@ -92,7 +92,8 @@ pub struct ServeArgs {
     #[arg(long, default_value_t = 2000, env = "THERMOSIEVE_CHUNK_SIZE")]
     pub chunk_size: usize,
     /// Queue depth (chunks) above which submissions get RESOURCE_EXHAUSTED.
-    /// Redis holds about this many chunks' cases at most (a 2,000-case chunk is about 0.5 MB).
+    /// Redis holds about this many chunks' cases at most (a chunk is at most about 1 MiB of case
+    /// text: a 2,000-case chunk of the demo is about 0.9 MB in Redis).
     #[arg(long, default_value_t = 256, env = "THERMOSIEVE_MAX_QUEUE_DEPTH")]
     pub max_queue_depth: u64,
     /// Seconds a submission waits for queue room before RESOURCE_EXHAUSTED.

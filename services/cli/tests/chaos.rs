@@ -9,6 +9,8 @@
 //!
 //! Times are printed against a run without faults (never asserted).
 
+#![allow(clippy::unwrap_used, reason = "test helpers: a failed unwrap is a failed test")]
+
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 use std::process::{Child, Command, Stdio};

@@ -2,6 +2,8 @@
 //! loopback): it writes only the known table names, only inside `--out`, checks the byte count,
 //! and leaves no partial file behind.
 
+#![allow(clippy::unwrap_used, reason = "test helpers: a failed unwrap is a failed test")]
+
 use std::pin::Pin;
 use std::process::Command;
 use thermosieve_proto::v1 as pb;

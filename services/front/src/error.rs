@@ -24,8 +24,27 @@ pub enum FrontError {
     Queue(#[from] QueueError),
     #[error("{path}: {source}")]
     Io { path: String, source: std::io::Error },
+    /// A worker step (batch folder, part or table files) failed.
     #[error("{0}")]
-    Internal(String),
+    Worker(#[from] thermosieve_worker::WorkerError),
+    /// A task the front waits on (the engine on inline cases, an embedded worker) panicked or
+    /// was cancelled.
+    #[error("{what} stopped: {source}")]
+    Task {
+        what: &'static str,
+        source: tokio::task::JoinError,
+    },
+    /// The gRPC server could not be set up (TLS settings) or stopped with an error.
+    #[error("grpc server: {0}")]
+    Transport(#[from] tonic::transport::Error),
+    #[error("grpc reflection: {0}")]
+    Reflection(#[from] tonic_reflection::server::Error),
+    /// The system's random source failed (batch ids).
+    #[error("random source: {0}")]
+    Random(getrandom::Error),
+    /// An embedded run's batch did not end DONE, or its queue lost it.
+    #[error("batch ended {state}: {message}")]
+    BatchEnded { state: &'static str, message: String },
 }
 
 impl FrontError {
@@ -46,7 +65,14 @@ impl From<FrontError> for tonic::Status {
             FrontError::FailedPrecondition(_) => tonic::Code::FailedPrecondition,
             FrontError::Queue(q) if q.retryable() => tonic::Code::Unavailable,
             FrontError::Queue(QueueError::UnknownBatch(_)) => tonic::Code::NotFound,
-            FrontError::Queue(_) | FrontError::Io { .. } | FrontError::Internal(_) => tonic::Code::Internal,
+            FrontError::Queue(_)
+            | FrontError::Io { .. }
+            | FrontError::Worker(_)
+            | FrontError::Task { .. }
+            | FrontError::Transport(_)
+            | FrontError::Reflection(_)
+            | FrontError::Random(_)
+            | FrontError::BatchEnded { .. } => tonic::Code::Internal,
         };
         if code == tonic::Code::Internal {
             tracing::error!(error = %e, "internal error");

@@ -26,8 +26,10 @@ pub const MAX_ROUTE_ID_BYTES: usize = 256;
 /// Chunk size bounds.
 pub const MAX_CHUNK_SIZE: usize = 10_000;
 /// A chunk is closed at the next route boundary once its cases hold this many bytes, whatever
-/// their count: it bounds a worker's chunk in memory and a queue entry in Redis.
-pub const MAX_CHUNK_BYTES: usize = 8 << 20;
+/// their count: it bounds a worker's chunk in memory and a queue entry in Redis. With the
+/// default queue depth of 256 chunks this caps what Redis holds near 256 MiB of cases even
+/// when every case carries the largest `extra` allowed (at 8 MiB that was 1.66 GB measured).
+pub const MAX_CHUNK_BYTES: usize = 1 << 20;
 /// Free-form columns (`extra`) of one case: at most this many, and this many bytes in all.
 pub const MAX_EXTRA_KEYS: usize = 32;
 pub const MAX_EXTRA_BYTES: usize = 4096;
@@ -90,7 +92,7 @@ pub struct Submitted {
 /// When the system's random source fails.
 pub fn new_batch_id() -> Result<String, FrontError> {
     let mut b = [0u8; 16];
-    getrandom::fill(&mut b).map_err(|e| FrontError::Internal(format!("random source: {e}")))?;
+    getrandom::fill(&mut b).map_err(FrontError::Random)?;
     Ok(b.iter().map(|x| format!("{x:02x}")).collect())
 }
 

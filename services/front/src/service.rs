@@ -406,7 +406,7 @@ impl Screening for ScreeningService {
             }
         };
         let path = batch_dir(&self.0.cfg.results_dir, &r.batch_id)
-            .map_err(|e| FrontError::Internal(e.to_string()))?
+            .map_err(FrontError::from)?
             .join(name);
         let io = |source| FrontError::Io {
             path: path.display().to_string(),
@@ -482,7 +482,10 @@ impl Screening for ScreeningService {
         let case_rows =
             tokio::task::spawn_blocking(move || processor.lock().unwrap_or_else(|e| e.into_inner()).screen_cases(&spec, &cases))
                 .await
-                .map_err(|e| FrontError::Internal(format!("engine task: {e}")))?;
+                .map_err(|source| FrontError::Task {
+                    what: "the engine on inline cases",
+                    source,
+                })?;
         Ok(Response::new(pb::ScreenInlineResponse {
             cases: case_rows.iter().map(case_row_to_pb).collect(),
             trends: case_rows.iter().flat_map(trend_rows_to_pb).collect(),
@@ -592,8 +595,7 @@ pub async fn serve(
     let reflection = tonic_reflection::server::Builder::configure()
         .register_encoded_file_descriptor_set(thermosieve_proto::FILE_DESCRIPTOR_SET)
         .register_encoded_file_descriptor_set(tonic_health::pb::FILE_DESCRIPTOR_SET)
-        .build_v1()
-        .map_err(|e| FrontError::Internal(format!("reflection: {e}")))?;
+        .build_v1()?;
     let addr = listener.local_addr().map_err(|source| FrontError::Io {
         path: "listener".into(),
         source,
@@ -606,7 +608,7 @@ pub async fn serve(
     );
     let mut builder = tonic::transport::Server::builder();
     if let Some(tls) = access.tls {
-        builder = builder.tls_config(tls).map_err(|e| FrontError::Internal(format!("TLS: {e}")))?;
+        builder = builder.tls_config(tls)?;
     }
     let monitor = tokio::spawn(watch_queue_health(front.queue.clone(), health));
     let sweeper = tokio::spawn(expire_abandoned(
@@ -628,7 +630,7 @@ pub async fn serve(
         ))
         .serve_with_incoming_shutdown(TcpListenerStream::new(listener), shutdown)
         .await
-        .map_err(|e| FrontError::Internal(format!("server: {e}")));
+        .map_err(FrontError::from);
     monitor.abort();
     sweeper.abort();
     served

@@ -144,12 +144,12 @@ pub trait Queue: Send + Sync {
     /// Backend errors.
     async fn dead_letter(&self, delivery: &Delivery, reason: &str) -> Result<(), QueueError>;
 
-    /// Record the outcome of a finalize task and acknowledge it: `Ok` → `done`, `Err(message)`
-    /// → `failed`. The batch's state keys then expire after the backend's retention.
+    /// Record the outcome of a finalize task and acknowledge it: `done`, or `failed` with the
+    /// outcome's message. The batch's state keys then expire after the backend's retention.
     ///
     /// # Errors
     /// Backend errors.
-    async fn complete_finalize(&self, delivery: &Delivery, outcome: Result<(), String>) -> Result<(), QueueError>;
+    async fn complete_finalize(&self, delivery: &Delivery, outcome: Finalized) -> Result<(), QueueError>;
 
     /// Acknowledge a task without recording anything (its batch is cancelled or unknown).
     ///

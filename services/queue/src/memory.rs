@@ -288,17 +288,15 @@ impl Queue for MemoryQueue {
         Ok(())
     }
 
-    async fn complete_finalize(&self, delivery: &Delivery, outcome: Result<(), String>) -> Result<(), QueueError> {
+    async fn complete_finalize(&self, delivery: &Delivery, outcome: Finalized) -> Result<(), QueueError> {
         let mut g = self.lock();
         g.ack(&delivery.entry_id);
         if let Some(b) = g.batches.get_mut(delivery.task.batch_id()) {
             if !b.progress.state.is_final() {
-                match outcome {
-                    Ok(()) => b.progress.state = BatchState::Done,
-                    Err(m) => {
-                        b.progress.state = BatchState::Failed;
-                        b.progress.message = m;
-                    }
+                let (state, message) = outcome.state_and_message();
+                b.progress.state = state;
+                if state == BatchState::Failed {
+                    b.progress.message = message;
                 }
                 b.progress.finished_unix_ms = Some(now_unix_ms());
             }

@@ -338,3 +338,22 @@ impl QueueStats {
         self.batches = BatchState::ALL.into_iter().zip(n).collect();
     }
 }
+
+/// How a finalize task ended ([`crate::Queue::complete_finalize`]).
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum Finalized {
+    /// The tables and the manifest are written: the batch becomes `done`.
+    Done,
+    /// They could not be written: the batch becomes `failed` with this message for its owner.
+    Failed { message: String },
+}
+
+impl Finalized {
+    /// The state the batch takes and the message it carries.
+    pub fn state_and_message(self) -> (BatchState, String) {
+        match self {
+            Finalized::Done => (BatchState::Done, String::new()),
+            Finalized::Failed { message } => (BatchState::Failed, message),
+        }
+    }
+}

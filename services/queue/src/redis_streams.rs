@@ -633,12 +633,9 @@ impl Queue for RedisQueue {
         Ok(())
     }
 
-    async fn complete_finalize(&self, delivery: &Delivery, outcome: Result<(), String>) -> Result<(), QueueError> {
+    async fn complete_finalize(&self, delivery: &Delivery, outcome: Finalized) -> Result<(), QueueError> {
         let batch_id = delivery.task.batch_id();
-        let (state, message) = match outcome {
-            Ok(()) => (BatchState::Done, String::new()),
-            Err(m) => (BatchState::Failed, m),
-        };
+        let (state, message) = outcome.state_and_message();
         let mut c = self.conn.clone();
         let r: i64 = self
             .scripts

@@ -645,7 +645,7 @@ pub enum JobackError {
 /// Group counts of one molecule and the weak spots found while assigning them.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Groups {
-    /// counts[k] = occurrences of group k + 1
+    /// `counts[k]` = occurrences of group k + 1
     pub counts: [u16; 41],
     /// Atoms in the molecule, hydrogens included (for Pc).
     pub atom_count: u32,

@@ -171,7 +171,7 @@ pub fn ranks(scores: &[RouteScore]) -> Vec<usize> {
 }
 
 /// Roll up one route's steps (any order; they are sorted by step, then case id). The rank is
-/// left at 0 for [`rank`] to set.
+/// left at 0 for [`ranks`] to set.
 pub fn summarise(route_id: &str, mut route: Vec<&RouteStep>) -> RouteSummary {
     route.sort_by(|a, b| a.step.cmp(&b.step).then_with(|| a.case_id.cmp(b.case_id)));
     roll_up_route(route_id, &route)

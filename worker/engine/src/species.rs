@@ -411,6 +411,20 @@ impl SourceSigma {
     }
 }
 
+/// Every source a result of this build can cite: each distinct source of the bundled tables'
+/// records, in load order, then the estimation methods used for species no table holds.
+pub fn data_sources() -> Vec<String> {
+    let mut out: Vec<String> = Vec::new();
+    for r in &bundled().records {
+        if !out.contains(&r.source) {
+            out.push(r.source.clone());
+        }
+    }
+    out.push(crate::benson::METHOD.to_string());
+    out.push(crate::joback::METHOD.to_string());
+    out
+}
+
 /// The bundled table, parsed on first use (a few milliseconds) and shared for the process.
 pub fn bundled() -> &'static Table {
     static TABLE: OnceLock<Table> = OnceLock::new();

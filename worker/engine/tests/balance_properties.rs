@@ -1,6 +1,8 @@
 //! Property tests of balancing: conservation is exact, and scaling written coefficients changes
 //! nothing but the scale.
 
+#![allow(clippy::unwrap_used, reason = "test helpers: a failed unwrap is a failed test")]
+
 use proptest::prelude::*;
 use thermosieve_engine::balance::{self, Column, Side};
 use thermosieve_engine::formula::{parse_species, Formula};

@@ -6,6 +6,8 @@
 //! gas, so ΔfH°(cond) − ΔfH°(g) = −ΔvapH or −ΔsubH. Its `split` column separates the rows the
 //! fusion σ was set on (`rule`) from the held-out rows the bounds below are on.
 
+#![allow(clippy::unwrap_used, reason = "test helpers: a failed unwrap is a failed test")]
+
 use thermosieve_engine::species::{self, Origin, T_REF_K};
 use thermosieve_engine::structures::{self, DefaultPhase};
 

@@ -11,6 +11,8 @@
 //!
 //! Both print the mean absolute error (MAE) and the 2σ coverage (`cargo test -- --nocapture`).
 
+#![allow(clippy::unwrap_used, reason = "test helpers: a failed unwrap is a failed test")]
+
 mod common;
 use common::Tsv;
 use thermosieve_engine::benson::Benson;

@@ -10,6 +10,8 @@
 //!   decomposition heat per kg;
 //! - more heat or less cooling capacity never raises the cooling margin.
 
+#![allow(clippy::unwrap_used, reason = "test helpers: a failed unwrap is a failed test")]
+
 use proptest::prelude::*;
 use thermosieve_engine::process::{evaluate, CaseProcess, Operation, ProcessConditions, Scale};
 use thermosieve_engine::{species, Screened, Screener, TemperatureGrid};

@@ -11,6 +11,8 @@
 //! values marked ILLUSTRATIVE: made up for the test, not published. Values that do come from an
 //! outside source name it beside the value.
 
+#![allow(clippy::unwrap_used, reason = "test helpers: a failed unwrap is a failed test")]
+
 use thermosieve_engine::formula::{parse_species, Phase};
 use thermosieve_engine::process::{
     adiabatic_rise_k, celsius_to_kelvin, cooling_capacity_check, criticality_class, evaluate, mtsr_k, severity_from_adiabatic_rise,

@@ -1,5 +1,7 @@
 //! How written species find their data.
 
+#![allow(clippy::unwrap_used, reason = "test helpers: a failed unwrap is a failed test")]
+
 use thermosieve_engine::formula::{parse_species, Phase};
 use thermosieve_engine::species::{self, ResolveError, SuppliedSpecies};
 use thermosieve_engine::{ScreenError, Screener, TemperatureGrid};

@@ -2,6 +2,8 @@
 //! process_view.rs); these tests check the arithmetic of the roll-up and the documented score.
 //! All conditions are ILLUSTRATIVE.
 
+#![allow(clippy::unwrap_used, reason = "test helpers: a failed unwrap is a failed test")]
+
 use thermosieve_engine::process::{evaluate, CriticalityClass, ProcessConditions, Scale};
 use thermosieve_engine::routes::HeatPerProduct;
 use thermosieve_engine::{roll_up, species, CaseProcess, RouteStep, Screener, TemperatureGrid, CAUTION};

@@ -30,7 +30,10 @@ pub fn table_metadata(spec: &BatchSpec, table: &str) -> Vec<(String, String)> {
         ("thermosieve.table".to_string(), table.to_string()),
         ("thermosieve.batch_id".to_string(), spec.batch_id.clone()),
         ("thermosieve.engine_version".to_string(), VERSION.to_string()),
-        ("thermosieve.data_sources".to_string(), species::SOURCE_NAME.to_string()),
+        (
+            "thermosieve.data_sources".to_string(),
+            serde_json::to_string(&species::data_sources()).unwrap_or_default(),
+        ),
         (
             "thermosieve.species_data_provenance".to_string(),
             species::bundled().provenance.clone(),
@@ -236,7 +239,7 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress) -> Re
         batch_id: spec.batch_id.clone(),
         label: spec.label.clone(),
         engine_version: VERSION.to_string(),
-        data_sources: vec![species::SOURCE_NAME.to_string()],
+        data_sources: species::data_sources(),
         temperature_grid_k: spec.temperatures_k.clone(),
         default_conditions: spec.default_conditions.clone(),
         counts,

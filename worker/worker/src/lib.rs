@@ -11,11 +11,11 @@
 //! - [`rows`]: `Screened` → case, trend, species and route rows → polars frames (column names, units).
 //! - [`process`]: the engine over a chunk's cases, with a screener cache per grid.
 //! - [`parts`]: batch folders, part paths, atomic writes, Parquet I/O.
-//! - [`finalize`]: part files → batch tables + manifest.
-//! - [`concat`]: part files → one Parquet file by copying compressed pages.
+//! - [`mod@finalize`]: part files → batch tables + manifest.
+//! - [`mod@concat`]: part files → one Parquet file by copying compressed pages.
 //! - [`route_table`]: the chunks' routes parts → `routes.parquet`, ranked, in bounded memory.
 //! - [`fault`]: named crash points of finalization, for the crash tests only.
-//! - [`run`]: the worker loop (poll, compute, write, acknowledge, reclaim, dead-letter, stop).
+//! - [`mod@run`]: the worker loop (poll, compute, write, acknowledge, reclaim, dead-letter, stop).
 
 pub mod concat;
 pub mod fault;

@@ -92,7 +92,7 @@ const PART_ENCODING: Encoding = Encoding::Plain;
 
 /// A Parquet file written frame by frame (frames gathered into row groups of about
 /// [`ROW_GROUP_ROWS`] rows), single-threaded, with
-/// [`PART_ENCODING`] and zstd level 1. Part files and the tables made from
+/// plain encoding and zstd level 1. Part files and the tables made from
 /// them share these settings, so the finalizer can copy pages from one into the other.
 pub struct FrameWriter<W: std::io::Write> {
     writer: FileWriter<W>,

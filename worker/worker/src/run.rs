@@ -18,7 +18,7 @@ use std::future::Future;
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::time::{Duration, Instant};
-use thermosieve_queue::{BatchSpec, BatchState, Chunk, ChunkReport, Delivery, Progress, Queue, QueueError, Task};
+use thermosieve_queue::{BatchSpec, BatchState, Chunk, ChunkReport, Delivery, Finalized, Progress, Queue, QueueError, Task};
 use tokio::sync::{oneshot, watch};
 
 /// Worker settings.
@@ -488,14 +488,16 @@ impl Slot {
                             seconds = m.timings.elapsed_seconds,
                             "batch tables written"
                         );
-                        Ok(())
+                        Finalized::Done
                     }
                     Err(e) => {
                         tracing::error!(batch = batch_ref(&batch_id), error = %e, "finalizing failed; the batch is failed");
-                        Err(format!("writing the tables failed: {e}"))
+                        Finalized::Failed {
+                            message: format!("writing the tables failed: {e}"),
+                        }
                     }
                 };
-                let done = outcome.is_ok();
+                let done = outcome == Finalized::Done;
                 let m = crate::metrics::registry();
                 if done {
                     m.finalized_done.add(1);

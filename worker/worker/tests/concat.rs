@@ -1,5 +1,7 @@
 //! Part files copied page by page into one table read back as the parts stacked.
 
+#![allow(clippy::unwrap_used, reason = "test helpers: a failed unwrap is a failed test")]
+
 use polars::prelude::*;
 use thermosieve_worker::concat::Concat;
 use thermosieve_worker::parts::{read_parquet, write_part};

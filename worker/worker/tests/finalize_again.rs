@@ -2,6 +2,8 @@
 //! table cut short mid-write, parts already removed. Real part files from real chunks; the
 //! tables read back.
 
+#![allow(clippy::unwrap_used, reason = "test helpers: a failed unwrap is a failed test")]
+
 use std::path::Path;
 use thermosieve_queue::{BatchSpec, BatchState, CaseInput, Chunk, Conditions, Progress};
 use thermosieve_worker::finalize::{finalize, remove_parts};

@@ -339,13 +339,13 @@ impl Benson {
         let lib = library();
         // Names as the library spells them (borrowed from it); an unknown one is kept owned for
         // the error.
-        let mut terms: Vec<(Cow<'static, str>, f64)> = Vec::with_capacity(m.atoms.len());
+        let mut terms: Vec<(Cow<'static, str>, f64)> = Vec::with_capacity(m.atoms().len());
         let mut add = |name: Cow<'static, str>, n: f64| match terms.iter_mut().find(|t| t.0 == name) {
             Some(t) => t.1 += n,
             None => terms.push((name, n)),
         };
         let mut buf = String::with_capacity(32);
-        for i in 0..m.atoms.len() {
+        for i in 0..m.atoms().len() {
             if kinds[i] != Kind::Consumed {
                 group_name_into(&mut buf, m, &kinds, i);
                 add(lib.key(&buf).map_or_else(|| Cow::Owned(buf.clone()), Cow::Borrowed), 1.0);
@@ -467,9 +467,9 @@ impl Benson {
             .sum();
         let pairs = hetero_pairs(m) as f64;
         let rings = widened.iter().filter(|w| w.starts_with("ring")).count() as f64;
-        let quaternary = (0..m.atoms.len()).filter(|&k| kinds[k] == Kind::C && m.degree(k) == 4).count() as f64;
-        let ring_substituents = (0..m.atoms.len())
-            .filter(|&k| m.atoms[k].in_ring && !m.atoms[k].aromatic && m.neighbours(k).any(|(_, b)| !m.bonds[b].in_ring))
+        let quaternary = (0..m.atoms().len()).filter(|&k| kinds[k] == Kind::C && m.degree(k) == 4).count() as f64;
+        let ring_substituents = (0..m.atoms().len())
+            .filter(|&k| m.atoms()[k].in_ring && !m.atoms()[k].aromatic && m.neighbours(k).any(|(_, b)| !m.bonds()[b].in_ring))
             .count() as f64;
         let second: f64 = expanded.iter().filter(|(g, _)| second_tier.contains(g)).map(|(_, n)| n).sum();
         let mut sigma2 = sigma::BASE.powi(2) + (sigma::PER_HEAVY_ATOM * heavy).powi(2);
@@ -586,54 +586,54 @@ fn short_name(name: &str) -> Option<String> {
 }
 
 fn kbonds(m: &Molecule, i: usize) -> impl Iterator<Item = (usize, u8)> + '_ {
-    m.neighbours(i).map(move |(w, b)| (w, m.bonds[b].kekule_order))
+    m.neighbours(i).map(move |(w, b)| (w, m.bonds()[b].kekule_order))
 }
 
 /// Is atom `i` a carbon of a six-membered all-carbon aromatic ring; how many such rings hold it.
 fn benzene_rings(m: &Molecule, i: usize) -> usize {
     m.rings()
         .iter()
-        .filter(|r| r.len() == 6 && r.contains(&i) && r.iter().all(|&k| m.atoms[k].aromatic && m.atoms[k].element == 6))
+        .filter(|r| r.len() == 6 && r.contains(&i) && r.iter().all(|&k| m.atoms()[k].aromatic && m.atoms()[k].element == 6))
         .count()
 }
 
 fn is_furan_ring(m: &Molecule, r: &[usize]) -> bool {
     r.len() == 5
-        && r.iter().all(|&k| m.atoms[k].aromatic)
-        && r.iter().filter(|&&k| m.atoms[k].element == 8).count() == 1
-        && r.iter().filter(|&&k| m.atoms[k].element == 6).count() == 4
+        && r.iter().all(|&k| m.atoms()[k].aromatic)
+        && r.iter().filter(|&&k| m.atoms()[k].element == 8).count() == 1
+        && r.iter().filter(|&&k| m.atoms()[k].element == 6).count() == 4
 }
 
 /// Nitro nitrogen: N bonded to two oxygens that have no other neighbour (charge-separated or
 /// written with two double bonds) and one other atom.
 fn is_nitro_n(m: &Molecule, i: usize) -> bool {
-    let a = &m.atoms[i];
+    let a = &m.atoms()[i];
     a.element == 7
         && m.degree(i) == 3
         && m.neighbours(i)
-            .filter(|&(w, _)| m.atoms[w].element == 8 && m.degree(w) == 1)
+            .filter(|&(w, _)| m.atoms()[w].element == 8 && m.degree(w) == 1)
             .count()
             == 2
 }
 
 /// Nitrite nitrogen (–O–N=O): N with one terminal =O and one other oxygen.
 fn is_nitrite_n(m: &Molecule, i: usize) -> bool {
-    let a = &m.atoms[i];
+    let a = &m.atoms()[i];
     a.element == 7
         && a.charge == 0
         && m.degree(i) == 2
         && a.hydrogens == 0
-        && kbonds(m, i).any(|(w, o)| o == 2 && m.atoms[w].element == 8 && m.degree(w) == 1)
-        && kbonds(m, i).any(|(w, o)| o == 1 && m.atoms[w].element == 8)
+        && kbonds(m, i).any(|(w, o)| o == 2 && m.atoms()[w].element == 8 && m.degree(w) == 1)
+        && kbonds(m, i).any(|(w, o)| o == 1 && m.atoms()[w].element == 8)
 }
 
 /// Nitrile carbon: C≡N with a terminal N and one other neighbour.
 fn is_nitrile_c(m: &Molecule, i: usize) -> bool {
-    m.atoms[i].element == 6 && m.degree(i) == 2 && kbonds(m, i).any(|(w, o)| o == 3 && m.atoms[w].element == 7 && m.degree(w) == 1)
+    m.atoms()[i].element == 6 && m.degree(i) == 2 && kbonds(m, i).any(|(w, o)| o == 3 && m.atoms()[w].element == 7 && m.degree(w) == 1)
 }
 
 fn atom_kinds(m: &Molecule) -> Result<Vec<Kind>, BensonError> {
-    let n = m.atoms.len();
+    let n = m.atoms().len();
     if m.heavy_atom_count() < 2 || m.component_count() != 1 {
         return Err(BensonError::Unsupported(
             "a molecule of fewer than two heavy atoms or of several parts".into(),
@@ -645,7 +645,7 @@ fn atom_kinds(m: &Molecule) -> Result<Vec<Kind>, BensonError> {
         if is_nitro_n(m, i) || is_nitrite_n(m, i) {
             kinds[i] = Kind::Consumed;
             for (w, o) in kbonds(m, i) {
-                if m.atoms[w].element == 8 && m.degree(w) == 1 {
+                if m.atoms()[w].element == 8 && m.degree(w) == 1 {
                     kinds[w] = Kind::Consumed;
                 }
                 let _ = o;
@@ -659,7 +659,7 @@ fn atom_kinds(m: &Molecule) -> Result<Vec<Kind>, BensonError> {
             }
         }
     }
-    for (i, a) in m.atoms.iter().enumerate() {
+    for (i, a) in m.atoms().iter().enumerate() {
         if kinds[i] == Kind::Consumed {
             continue;
         }
@@ -682,13 +682,16 @@ fn atom_kinds(m: &Molecule) -> Result<Vec<Kind>, BensonError> {
                 "an atom with an unpaired or missing electron (radicals are outside the tables used)",
             ));
         }
-        let doubles: Vec<Z> = kbonds(m, i).filter(|&(_, o)| o == 2).map(|(w, _)| m.atoms[w].element).collect();
+        let doubles: Vec<Z> = kbonds(m, i).filter(|&(_, o)| o == 2).map(|(w, _)| m.atoms()[w].element).collect();
         let triples = kbonds(m, i).filter(|&(_, o)| o == 3).count();
         kinds[i] = match a.element {
             6 if a.aromatic && triples > 0 => return Err(what("an aryne carbon")),
             6 if a.aromatic => {
                 let rings = benzene_rings(m, i);
-                let aromatic_neighbours = m.neighbours(i).filter(|&(w, b)| m.atoms[w].aromatic && m.bonds[b].in_ring).count();
+                let aromatic_neighbours = m
+                    .neighbours(i)
+                    .filter(|&(w, b)| m.atoms()[w].aromatic && m.bonds()[b].in_ring)
+                    .count();
                 if rings >= 2 && aromatic_neighbours == 3 {
                     Kind::Cbf
                 } else if rings >= 1 {
@@ -759,13 +762,13 @@ fn group_name_into(buf: &mut String, m: &Molecule, kinds: &[Kind], i: usize) {
     let mut ligands: Vec<(&str, u32)> = Vec::with_capacity(5);
     for (w, b) in m.neighbours(i) {
         // A carbonyl oxygen is part of its CO centre, not a ligand.
-        if kinds[w] == Kind::Consumed && m.atoms[w].element == 8 && m.bonds[b].kekule_order == 2 && m.atoms[i].element == 6 {
+        if kinds[w] == Kind::Consumed && m.atoms()[w].element == 8 && m.bonds()[b].kekule_order == 2 && m.atoms()[i].element == 6 {
             continue;
         }
         let mut l = ligand_name(m, kinds, w);
         // Benson's benzene groups name only the substituent: a ring neighbour that is a fusion
         // carbon is still the ring's (Cb–(H) next to naphthalene's fusion, not a group of its own).
-        if kinds[i] == Kind::Cb && kinds[w] == Kind::Cbf && m.bonds[b].in_ring {
+        if kinds[i] == Kind::Cb && kinds[w] == Kind::Cbf && m.bonds()[b].in_ring {
             l = Kind::Cb.name();
         }
         match ligands.iter_mut().find(|x| x.0 == l) {
@@ -773,8 +776,8 @@ fn group_name_into(buf: &mut String, m: &Molecule, kinds: &[Kind], i: usize) {
             None => ligands.push((l, 1)),
         }
     }
-    if m.atoms[i].hydrogens > 0 {
-        ligands.push(("H", m.atoms[i].hydrogens as u32));
+    if m.atoms()[i].hydrogens > 0 {
+        ligands.push(("H", m.atoms()[i].hydrogens as u32));
     }
     render_into(buf, kinds[i].name(), &mut ligands)
 }
@@ -787,19 +790,21 @@ fn single_c(m: &Molecule, i: usize) -> usize {
 fn single_c_of(m: &Molecule, i: usize) -> impl Iterator<Item = usize> + '_ {
     m.neighbours(i)
         .filter(move |&(w, b)| {
-            m.atoms[w].element == 6 && m.bonds[b].kekule_order == 1 && !(m.atoms[i].aromatic && m.atoms[w].aromatic && m.bonds[b].in_ring)
+            m.atoms()[w].element == 6
+                && m.bonds()[b].kekule_order == 1
+                && !(m.atoms()[i].aromatic && m.atoms()[w].aromatic && m.bonds()[b].in_ring)
         })
         .map(|(w, _)| w)
 }
 
 /// Carbon neighbours of `i` through single bonds, other than `except`, that lie on no ring.
 fn open_c(m: &Molecule, i: usize, except: usize) -> usize {
-    single_c_of(m, i).filter(|&w| w != except && !m.atoms[w].in_ring).count()
+    single_c_of(m, i).filter(|&w| w != except && !m.atoms()[w].in_ring).count()
 }
 
 /// A tert-butyl-like carbon seen from `from`: sp3, off any ring, with three more open carbons.
 fn tertiary_from(m: &Molecule, kinds: &[Kind], c: usize, from: usize) -> bool {
-    kinds[c] == Kind::C && !m.atoms[c].in_ring && open_c(m, c, from) == 3
+    kinds[c] == Kind::C && !m.atoms()[c].in_ring && open_c(m, c, from) == 3
 }
 
 /// Next-nearest-neighbour corrections — alkane and alkene gauche, cis, tert-butyl cis, ether
@@ -817,16 +822,16 @@ fn corrections(m: &Molecule, kinds: &[Kind]) -> Vec<(&'static str, f64)> {
             None => out.push((name, n)),
         }
     };
-    for b in &m.bonds {
+    for b in m.bonds() {
         let (i, j) = (b.a, b.b);
         if b.kekule_order == 2
             && !b.in_ring
             && kinds[i] == Kind::Cd
             && kinds[j] == Kind::Cd
-            && m.atoms[i].element == 6
-            && m.atoms[j].element == 6
-            && !m.atoms[i].in_ring
-            && !m.atoms[j].in_ring
+            && m.atoms()[i].element == 6
+            && m.atoms()[j].element == 6
+            && !m.atoms()[i].in_ring
+            && !m.atoms()[j].in_ring
         {
             // Cis, stereo unspecified: half a cis for CH=CH, one for a trisubstituted and two
             // plus a double cis for a tetrasubstituted bond, counting open-chain carbons only.
@@ -873,13 +878,13 @@ fn corrections(m: &Molecule, kinds: &[Kind]) -> Vec<(&'static str, f64)> {
     }
     add("AlkaneGauche", alkane_gauche(m, kinds));
     add("AlkeneGauche", alkene_gauche(m, kinds));
-    for (i, a) in m.atoms.iter().enumerate() {
+    for (i, a) in m.atoms().iter().enumerate() {
         if kinds[i] != Kind::O || a.in_ring {
             continue;
         }
         let cs: Vec<usize> = m
             .neighbours(i)
-            .filter(|&(w, _)| m.atoms[w].element == 6 && !m.atoms[w].in_ring)
+            .filter(|&(w, _)| m.atoms()[w].element == 6 && !m.atoms()[w].in_ring)
             .map(|(w, _)| w)
             .collect();
         if cs.len() != 2 {
@@ -909,7 +914,7 @@ fn picks(m: &Molecule, from: &[usize], any: usize, open: usize, taken: &[usize])
         }
         let need_open = cur.len() >= any;
         for &w in from {
-            if taken.contains(&w) || cur.contains(&w) || (need_open && m.atoms[w].in_ring) {
+            if taken.contains(&w) || cur.contains(&w) || (need_open && m.atoms()[w].in_ring) {
                 continue;
             }
             cur.push(w);
@@ -944,7 +949,7 @@ fn alkane_gauche(m: &Molecule, kinds: &[Kind]) -> f64 {
         (4, 4, 2, 2, 6.0),
     ];
     let mut sets: [Vec<Vec<usize>>; 5] = Default::default();
-    for b in &m.bonds {
+    for b in m.bonds() {
         if b.kekule_order != 1 || kinds[b.a] != Kind::C || kinds[b.b] != Kind::C {
             continue;
         }
@@ -974,13 +979,13 @@ fn alkane_gauche(m: &Molecule, kinds: &[Kind]) -> f64 {
 /// them off any ring, on an olefinic carbon with one more open-chain carbon.
 fn alkene_gauche(m: &Molecule, kinds: &[Kind]) -> f64 {
     let mut sets = Vec::new();
-    for b in &m.bonds {
+    for b in m.bonds() {
         for (c1, c2) in [(b.a, b.b), (b.b, b.a)] {
-            if b.kekule_order != 1 || kinds[c1] != Kind::C || kinds[c2] != Kind::Cd || m.atoms[c2].element != 6 || single_c(m, c2) != 2 {
+            if b.kekule_order != 1 || kinds[c1] != Kind::C || kinds[c2] != Kind::Cd || m.atoms()[c2].element != 6 || single_c(m, c2) != 2 {
                 continue;
             }
             let doubles: Vec<usize> = kbonds(m, c2)
-                .filter(|&(w, o)| o == 2 && m.atoms[w].element == 6)
+                .filter(|&(w, o)| o == 2 && m.atoms()[w].element == 6)
                 .map(|(w, _)| w)
                 .collect();
             if doubles.len() != 1 {
@@ -1013,9 +1018,9 @@ fn alkene_gauche(m: &Molecule, kinds: &[Kind]) -> f64 {
 /// Pairs of O or N atoms two or three bonds apart.
 fn hetero_pairs(m: &Molecule) -> usize {
     let hetero = |k: usize| {
-        matches!(m.atoms[k].element, 7 | 8) && !(m.atoms[k].element == 8 && m.degree(k) == 1 && kbonds(m, k).any(|(_, o)| o == 2))
+        matches!(m.atoms()[k].element, 7 | 8) && !(m.atoms()[k].element == 8 && m.degree(k) == 1 && kbonds(m, k).any(|(_, o)| o == 2))
     };
-    let sites: Vec<usize> = (0..m.atoms.len()).filter(|&k| hetero(k)).collect();
+    let sites: Vec<usize> = (0..m.atoms().len()).filter(|&k| hetero(k)).collect();
     if sites.len() < 2 {
         return 0;
     }
@@ -1051,7 +1056,7 @@ fn ring_strain(m: &Molecule, kinds: &[Kind]) -> Result<(Vec<(&'static str, Optio
     let mut notes = Vec::new();
     let rings = m.rings();
     // A ring of more than the ring finder's eight atoms has no strain value here.
-    if m.bonds
+    if m.bonds()
         .iter()
         .any(|b| b.in_ring && !rings.iter().any(|r| r.binary_search(&b.a).is_ok() && r.binary_search(&b.b).is_ok()))
     {
@@ -1062,12 +1067,12 @@ fn ring_strain(m: &Molecule, kinds: &[Kind]) -> Result<(Vec<(&'static str, Optio
             continue;
         }
         let in_ring = |k: usize| r.binary_search(&k).is_ok();
-        let oxygens: Vec<usize> = r.iter().copied().filter(|&k| m.atoms[k].element == 8).collect();
-        let others = r.iter().filter(|&&k| !matches!(m.atoms[k].element, 6 | 8)).count();
+        let oxygens: Vec<usize> = r.iter().copied().filter(|&k| m.atoms()[k].element == 8).collect();
+        let others = r.iter().filter(|&&k| !matches!(m.atoms()[k].element, 6 | 8)).count();
         let mut doubles: Vec<(usize, usize)> = Vec::new();
         for &k in r.iter() {
             for (w, b) in m.neighbours(k) {
-                if k < w && in_ring(w) && m.bonds[b].kekule_order == 2 {
+                if k < w && in_ring(w) && m.bonds()[b].kekule_order == 2 {
                     doubles.push((k, w));
                 }
             }
@@ -1075,9 +1080,9 @@ fn ring_strain(m: &Molecule, kinds: &[Kind]) -> Result<(Vec<(&'static str, Optio
         let carbonyls = r
             .iter()
             .filter(|&&k| {
-                m.atoms[k].element == 6
+                m.atoms()[k].element == 6
                     && m.neighbours(k)
-                        .any(|(w, b)| !in_ring(w) && m.atoms[w].element == 8 && m.bonds[b].kekule_order == 2)
+                        .any(|(w, b)| !in_ring(w) && m.atoms()[w].element == 8 && m.bonds()[b].kekule_order == 2)
             })
             .count();
         let n = r.len();
@@ -1172,7 +1177,7 @@ fn ring_strain(m: &Molecule, kinds: &[Kind]) -> Result<(Vec<(&'static str, Optio
     }
     // Fused and bridged systems: a strain per smallest ring is an approximation.
     let shared = m
-        .atoms
+        .atoms()
         .iter()
         .enumerate()
         .filter(|(k, _)| rings.iter().filter(|r| r.contains(k)).count() > 1)
@@ -1194,7 +1199,7 @@ fn ring_strain(m: &Molecule, kinds: &[Kind]) -> Result<(Vec<(&'static str, Optio
 /// non-planar rings can be off by a factor of 2.
 fn symmetry_number(m: &Molecule, classes: &[u32], automorphisms: f64) -> f64 {
     let mut sigma = automorphisms;
-    for (i, a) in m.atoms.iter().enumerate() {
+    for (i, a) in m.atoms().iter().enumerate() {
         let heavy = m.degree(i);
         if a.hydrogens == 3 && heavy == 1 {
             sigma *= 3.0;
@@ -1205,7 +1210,7 @@ fn symmetry_number(m: &Molecule, classes: &[u32], automorphisms: f64) -> f64 {
         let pyramidal = a.element == 7
             && connections == 3
             && m.neighbours(i)
-                .all(|(w, _)| kbonds(m, w).all(|(_, o)| o == 1) && !m.atoms[w].aromatic);
+                .all(|(w, _)| kbonds(m, w).all(|(_, o)| o == 1) && !m.atoms()[w].aromatic);
         if !(saturated && (connections == 4 || pyramidal)) {
             continue;
         }
@@ -1232,9 +1237,9 @@ fn symmetry_number(m: &Molecule, classes: &[u32], automorphisms: f64) -> f64 {
 /// sp3 carbons with four different substituents (at most one H, heavy neighbours in distinct
 /// symmetry classes).
 fn chiral_centres(m: &Molecule, kinds: &[Kind], classes: &[u32]) -> usize {
-    (0..m.atoms.len())
+    (0..m.atoms().len())
         .filter(|&i| {
-            let a = &m.atoms[i];
+            let a = &m.atoms()[i];
             if kinds[i] != Kind::C || a.hydrogens > 1 || m.degree(i) + a.hydrogens as usize != 4 {
                 return false;
             }

@@ -216,8 +216,8 @@ pub fn energetic_groups(m: &Molecule) -> Vec<EnergeticGroup> {
             found.push(g);
         }
     };
-    for b in &m.bonds {
-        let (x, y) = (m.atoms[b.a].element, m.atoms[b.b].element);
+    for b in m.bonds() {
+        let (x, y) = (m.atoms()[b.a].element, m.atoms()[b.b].element);
         let pair = |p: Z, q: Z| (x == p && y == q) || (x == q && y == p);
         if pair(6, 6) && b.kekule_order == 3 {
             add(EnergeticGroup::CarbonUnsaturation);
@@ -242,10 +242,10 @@ pub fn energetic_groups(m: &Molecule) -> Vec<EnergeticGroup> {
         }
     }
     // 1,2-dienes: a carbon with two double bonds to carbons.
-    for i in 0..m.atoms.len() {
-        if m.atoms[i].element == 6
+    for i in 0..m.atoms().len() {
+        if m.atoms()[i].element == 6
             && m.neighbours(i)
-                .filter(|&(w, b)| m.atoms[w].element == 6 && m.bonds[b].kekule_order == 2)
+                .filter(|&(w, b)| m.atoms()[w].element == 6 && m.bonds()[b].kekule_order == 2)
                 .count()
                 == 2
         {

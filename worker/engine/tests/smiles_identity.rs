@@ -43,7 +43,7 @@ proptest! {
         let all = molecules();
         let m = &all[index % all.len()];
         let key = m.canonical_key();
-        let perm = permutation(m.atoms.len(), seed);
+        let perm = permutation(m.atoms().len(), seed);
         prop_assert_eq!(&m.permuted(&perm).canonical_key(), &key);
         let rank: Vec<u32> = perm.iter().map(|&p| p as u32).collect();
         let written = m.write_smiles(&rank);

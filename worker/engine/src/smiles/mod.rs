@@ -114,8 +114,8 @@ impl Bond {
 /// A molecular graph with hydrogens held as counts on heavy atoms.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Molecule {
-    pub atoms: Vec<Atom>,
-    pub bonds: Vec<Bond>,
+    atoms: Vec<Atom>,
+    bonds: Vec<Bond>,
     /// `adjacency[adj_start[i]..adj_start[i+1]]` = (neighbour, bond index) of atom i.
     adj_start: Vec<u32>,
     adjacency: Vec<(u32, u32)>,
@@ -200,6 +200,16 @@ const AROMATIC_SYMBOLS: [(&[u8], Z); 8] = [
 ];
 
 impl Molecule {
+    /// The atoms, hydrogens folded into counts; indices are the graph's vertex numbers.
+    pub fn atoms(&self) -> &[Atom] {
+        &self.atoms
+    }
+
+    /// The bonds, as Kekulé single and double bonds for aromatic systems.
+    pub fn bonds(&self) -> &[Bond] {
+        &self.bonds
+    }
+
     fn build_adjacency(&mut self) {
         let n = self.atoms.len();
         let mut deg = vec![0u32; n + 1];

@@ -6,42 +6,28 @@ use thermosieve_proto::v1 as pb;
 use thermosieve_queue::{BatchState, CaseInput, Conditions, Progress};
 use thermosieve_worker::rows::{species_sources, CaseRow, STATUS_ERROR, STATUS_OK};
 
-pub fn conditions_from_pb(c: Option<pb::ProcessConditions>) -> Conditions {
-    let Some(c) = c else { return Conditions::default() };
-    Conditions {
-        process_temperature_k: c.process_temperature_k,
-        pressure_bar: c.pressure_bar,
-        scale_mol: c.scale_mol,
-        reaction_mass_kg: c.reaction_mass_kg,
-        cp_kj_per_kg_k: c.cp_kj_per_kg_k,
-        dosing_time_h: c.dosing_time_h,
-        accumulation_fraction: c.accumulation_fraction,
-        mtt_k: c.mtt_k,
-        t_d24_k: c.t_d24_k,
-        dsc_onset_k: c.dsc_onset_k,
-        coolant_temperature_k: c.coolant_temperature_k,
-        ua_w_per_k: c.ua_w_per_k,
-        extra: c.extra.into_iter().collect(),
-    }
+/// The wire mapping of the typed conditions, made from their one declaration
+/// (`thermosieve_queue::condition_fields!`): the proto's `ProcessConditions` has the same names.
+macro_rules! conditions_wire {
+    ($( $(#[doc = $doc:literal])* $name:ident: $min:expr, $max:expr, $expected:literal, $celsius:expr; )*) => {
+        pub fn conditions_from_pb(c: Option<pb::ProcessConditions>) -> Conditions {
+            let Some(c) = c else { return Conditions::default() };
+            Conditions {
+                $($name: c.$name,)*
+                extra: c.extra.into_iter().collect(),
+            }
+        }
+
+        pub fn conditions_to_pb(c: &Conditions) -> pb::ProcessConditions {
+            pb::ProcessConditions {
+                $($name: c.$name,)*
+                extra: c.extra.clone().into_iter().collect(),
+            }
+        }
+    };
 }
 
-pub fn conditions_to_pb(c: &Conditions) -> pb::ProcessConditions {
-    pb::ProcessConditions {
-        process_temperature_k: c.process_temperature_k,
-        pressure_bar: c.pressure_bar,
-        scale_mol: c.scale_mol,
-        reaction_mass_kg: c.reaction_mass_kg,
-        cp_kj_per_kg_k: c.cp_kj_per_kg_k,
-        dosing_time_h: c.dosing_time_h,
-        accumulation_fraction: c.accumulation_fraction,
-        mtt_k: c.mtt_k,
-        t_d24_k: c.t_d24_k,
-        dsc_onset_k: c.dsc_onset_k,
-        coolant_temperature_k: c.coolant_temperature_k,
-        ua_w_per_k: c.ua_w_per_k,
-        extra: c.extra.clone().into_iter().collect(),
-    }
-}
+thermosieve_queue::condition_fields!(conditions_wire);
 
 fn non_empty(s: String) -> Option<String> {
     (!s.is_empty()).then_some(s)

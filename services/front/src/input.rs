@@ -1,7 +1,7 @@
 //! Reading input tables (CSV, TSV, JSON Lines, Parquet) into cases.
 //!
 //! One row is one case. Required columns: `case_id`, `reaction`. Optional: `route_id`, `step`,
-//! `phase`, and process conditions with units in their names (see [`CONDITION_COLUMNS`]);
+//! `phase`, and process conditions with units in their names (see [`condition_columns`]);
 //! temperatures may be given in K (`*_k`) or °C (`*_c`) and are carried in K. Any other column is
 //! carried through as text in the case's `extra` conditions.
 //!
@@ -16,7 +16,7 @@ use std::collections::BTreeMap;
 use std::fs::File;
 use std::io::{BufRead, BufReader};
 use std::path::{Path, PathBuf};
-use thermosieve_queue::{CaseInput, Conditions};
+use thermosieve_queue::{CaseInput, ConditionField, Conditions, CONDITIONS};
 
 /// Input formats.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -64,32 +64,13 @@ pub enum InputError {
     Unreadable { path: PathBuf, reason: String },
 }
 
-/// Condition columns: (column name, field it fills, unit conversion to the field's unit).
-pub const CONDITION_COLUMNS: [(&str, &str, Unit); 17] = [
-    ("process_temperature_k", "process_temperature_k", Unit::Same),
-    ("process_temperature_c", "process_temperature_k", Unit::CelsiusToKelvin),
-    ("pressure_bar", "pressure_bar", Unit::Same),
-    ("scale_mol", "scale_mol", Unit::Same),
-    ("reaction_mass_kg", "reaction_mass_kg", Unit::Same),
-    ("cp_kj_per_kg_k", "cp_kj_per_kg_k", Unit::Same),
-    ("dosing_time_h", "dosing_time_h", Unit::Same),
-    ("accumulation_fraction", "accumulation_fraction", Unit::Same),
-    ("mtt_k", "mtt_k", Unit::Same),
-    ("mtt_c", "mtt_k", Unit::CelsiusToKelvin),
-    ("t_d24_k", "t_d24_k", Unit::Same),
-    ("t_d24_c", "t_d24_k", Unit::CelsiusToKelvin),
-    ("dsc_onset_k", "dsc_onset_k", Unit::Same),
-    ("dsc_onset_c", "dsc_onset_k", Unit::CelsiusToKelvin),
-    ("coolant_temperature_k", "coolant_temperature_k", Unit::Same),
-    ("coolant_temperature_c", "coolant_temperature_k", Unit::CelsiusToKelvin),
-    ("ua_w_per_k", "ua_w_per_k", Unit::Same),
-];
-
-/// How a column's number becomes the field's unit.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum Unit {
-    Same,
-    CelsiusToKelvin,
+/// The condition columns an input table may carry: each typed field under its own name (in its
+/// unit), or under its °C column where it has one (see `thermosieve_queue::condition_fields!`).
+/// Returns (column, field, whether the column is in °C).
+pub fn condition_columns() -> impl Iterator<Item = (&'static str, &'static ConditionField, bool)> {
+    CONDITIONS
+        .iter()
+        .flat_map(|f| std::iter::once((f.name, f, false)).chain(f.celsius_column.map(|c| (c, f, true))))
 }
 
 /// Phases accepted in the `phase` column.
@@ -131,19 +112,16 @@ pub fn case_from_cells<'a>(row: u64, columns: impl Iterator<Item = &'a str>, get
     }
     let mut conditions = Conditions::default();
     let mut given_by: BTreeMap<&str, &str> = BTreeMap::new();
-    for (column, field, unit) in CONDITION_COLUMNS {
+    for (column, declared, celsius) in condition_columns() {
         let Some(text) = get(column) else { continue };
         let Ok(v) = text.parse::<f64>() else {
             errors.push(format!("column {column}: expected a number, got {text:?}"));
             continue;
         };
-        let v = match unit {
-            Unit::Same => v,
-            Unit::CelsiusToKelvin => v + 273.15,
-        };
-        let (lo, hi, what) = thermosieve_queue::condition_range(field);
-        if !(v.is_finite() && v >= lo && v <= hi) {
-            errors.push(format!("column {column}: expected {what}, got {text}"));
+        let v = if celsius { v + 273.15 } else { v };
+        let field = declared.name;
+        if !declared.accepts(v) {
+            errors.push(format!("column {column}: expected {}, got {text}", declared.expected));
             continue;
         }
         if let Some(other) = given_by.insert(field, column) {
@@ -155,7 +133,7 @@ pub fn case_from_cells<'a>(row: u64, columns: impl Iterator<Item = &'a str>, get
         }
     }
     let known =
-        |c: &str| matches!(c, "case_id" | "reaction" | "route_id" | "step" | "phase") || CONDITION_COLUMNS.iter().any(|(n, _, _)| *n == c);
+        |c: &str| matches!(c, "case_id" | "reaction" | "route_id" | "step" | "phase") || condition_columns().any(|(n, _, _)| n == c);
     for c in columns {
         if !known(c) {
             if let Some(v) = get(c) {

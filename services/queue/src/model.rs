@@ -4,129 +4,130 @@
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 
-/// Process conditions of one case, units in the names. All optional: a field the case leaves
-/// unset falls back to the batch default (see [`Conditions::or_defaults`]). The engine's
-/// process view (heat budget, equilibrium at process conditions) consumes them; today they are
-/// carried through to the cases table.
-#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub struct Conditions {
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub process_temperature_k: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub pressure_bar: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub scale_mol: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub reaction_mass_kg: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub cp_kj_per_kg_k: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub dosing_time_h: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub accumulation_fraction: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub mtt_k: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub t_d24_k: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub dsc_onset_k: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub coolant_temperature_k: Option<f64>,
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub ua_w_per_k: Option<f64>,
-    /// Other condition columns of the input, carried through unchanged (name → text).
-    #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
-    pub extra: BTreeMap<String, String>,
+/// The typed process conditions, declared once: field name (units in the name), plausibility
+/// range, what the range means for an error message, and the °C column an input table may use
+/// instead. This list makes [`Conditions`], [`CONDITIONS`], [`CONDITION_FIELDS`],
+/// [`Conditions::values`] and [`Conditions::field_mut`] here, the input table's columns and the
+/// wire mapping in the front (`condition_fields!(its_macro)` hands the list to a macro), and
+/// through the names the cases table's columns. The upper bounds are plausibility limits, wide
+/// of any plant (common practice, no source): a value past them is a unit or typing error, and
+/// would make results overflow. The proto's `ProcessConditions` uses the same field names.
+#[macro_export]
+macro_rules! condition_fields {
+    ($then:ident) => {
+        $then! {
+            /// Process temperature, K.
+            process_temperature_k: f64::MIN_POSITIVE, 20_000.0, "a temperature above 0 K (−273.15 °C) and below 20000 K", Some("process_temperature_c");
+            /// Absolute pressure, bar.
+            pressure_bar: 1e-9, 1e5, "a pressure above 0 and up to 100000 bar", None;
+            /// Scale, mol of reaction as balanced.
+            scale_mol: 1e-9, 1e12, "an amount above 0 and up to 1e12 mol", None;
+            /// Reaction mass, kg.
+            reaction_mass_kg: 1e-9, 1e9, "a mass above 0 and up to 1e9 kg", None;
+            /// Specific heat capacity of the reaction mass, kJ/(kg·K).
+            cp_kj_per_kg_k: 0.01, 100.0, "a heat capacity from 0.01 to 100 kJ/(kg·K)", None;
+            /// Dosing time, h (> 0 makes the step semi-batch).
+            dosing_time_h: 0.0, 1e5, "a time from 0 to 100000 h", None;
+            /// Accumulated fraction of unreacted dosed material (X_acc), 0..1.
+            accumulation_fraction: 0.0, 1.0, "a fraction from 0 to 1", None;
+            /// Maximum technical temperature, K.
+            mtt_k: f64::MIN_POSITIVE, 20_000.0, "a temperature above 0 K (−273.15 °C) and below 20000 K", Some("mtt_c");
+            /// Temperature at which the time to maximum rate is 24 h, K.
+            t_d24_k: f64::MIN_POSITIVE, 20_000.0, "a temperature above 0 K (−273.15 °C) and below 20000 K", Some("t_d24_c");
+            /// DSC onset of decomposition, K.
+            dsc_onset_k: f64::MIN_POSITIVE, 20_000.0, "a temperature above 0 K (−273.15 °C) and below 20000 K", Some("dsc_onset_c");
+            /// Coolant temperature, K.
+            coolant_temperature_k: f64::MIN_POSITIVE, 20_000.0, "a temperature above 0 K (−273.15 °C) and below 20000 K", Some("coolant_temperature_c");
+            /// U·A of the cooled surface, W/K.
+            ua_w_per_k: 0.0, 1e9, "a number from 0 to 1e9 W/K", None;
+        }
+    };
 }
 
-/// Names of the typed condition fields, in table order (each an `Option<f64>`).
-pub const CONDITION_FIELDS: [&str; 12] = [
-    "process_temperature_k",
-    "pressure_bar",
-    "scale_mol",
-    "reaction_mass_kg",
-    "cp_kj_per_kg_k",
-    "dosing_time_h",
-    "accumulation_fraction",
-    "mtt_k",
-    "t_d24_k",
-    "dsc_onset_k",
-    "coolant_temperature_k",
-    "ua_w_per_k",
-];
+/// One typed condition field as declared in [`condition_fields!`].
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct ConditionField {
+    pub name: &'static str,
+    pub min: f64,
+    pub max: f64,
+    /// What a valid value is, for error messages.
+    pub expected: &'static str,
+    /// The °C column an input table may give instead (converted with K = °C + 273.15).
+    pub celsius_column: Option<&'static str>,
+}
 
-/// Valid span of each condition field (in its field unit, inclusive), with what it means. One
-/// rule for every path: input tables, gRPC cases, batch defaults and ScreenInline. The upper
-/// bounds are plausibility limits, wide of any plant (common practice, no source): a value past
-/// them is a unit or typing error, and would make results overflow.
-pub fn condition_range(field: &str) -> (f64, f64, &'static str) {
-    match field {
-        "accumulation_fraction" => (0.0, 1.0, "a fraction from 0 to 1"),
-        "pressure_bar" => (1e-9, 1e5, "a pressure above 0 and up to 100000 bar"),
-        "scale_mol" => (1e-9, 1e12, "an amount above 0 and up to 1e12 mol"),
-        "reaction_mass_kg" => (1e-9, 1e9, "a mass above 0 and up to 1e9 kg"),
-        "cp_kj_per_kg_k" => (0.01, 100.0, "a heat capacity from 0.01 to 100 kJ/(kg·K)"),
-        "dosing_time_h" => (0.0, 1e5, "a time from 0 to 100000 h"),
-        "ua_w_per_k" => (0.0, 1e9, "a number from 0 to 1e9 W/K"),
-        // Temperatures, K.
-        _ => (
-            f64::MIN_POSITIVE,
-            20_000.0,
-            "a temperature above 0 K (−273.15 °C) and below 20000 K",
-        ),
+impl ConditionField {
+    /// Whether `v` is finite and inside the field's range.
+    pub fn accepts(&self, v: f64) -> bool {
+        v.is_finite() && v >= self.min && v <= self.max
     }
+}
+
+macro_rules! declare_conditions {
+    ($( $(#[doc = $doc:literal])* $name:ident: $min:expr, $max:expr, $expected:literal, $celsius:expr; )*) => {
+        /// Process conditions of one case, units in the names. All optional: a field the case
+        /// leaves unset falls back to the batch default (see [`Conditions::or_defaults`]). The
+        /// engine's process view consumes them; they are echoed to the cases table.
+        #[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+        #[serde(deny_unknown_fields)]
+        pub struct Conditions {
+            $(
+                $(#[doc = $doc])*
+                #[serde(default, skip_serializing_if = "Option::is_none")]
+                pub $name: Option<f64>,
+            )*
+            /// Other condition columns of the input, carried through unchanged (name → text).
+            #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
+            pub extra: BTreeMap<String, String>,
+        }
+
+        /// How many typed condition fields there are.
+        pub const CONDITION_COUNT: usize = [$(stringify!($name)),*].len();
+
+        /// The typed condition fields, in table order.
+        pub const CONDITIONS: [ConditionField; CONDITION_COUNT] = [
+            $(ConditionField { name: stringify!($name), min: $min, max: $max, expected: $expected, celsius_column: $celsius },)*
+        ];
+
+        /// Names of the typed condition fields, in table order (each an `Option<f64>`).
+        pub const CONDITION_FIELDS: [&str; CONDITION_COUNT] = [$(stringify!($name)),*];
+
+        impl Conditions {
+            /// The typed fields in [`CONDITION_FIELDS`] order.
+            pub fn values(&self) -> [Option<f64>; CONDITION_COUNT] {
+                [$(self.$name),*]
+            }
+
+            /// Mutable access to a typed field by its name in [`CONDITION_FIELDS`].
+            pub fn field_mut(&mut self, name: &str) -> Option<&mut Option<f64>> {
+                match name {
+                    $(stringify!($name) => Some(&mut self.$name),)*
+                    _ => None,
+                }
+            }
+        }
+    };
+}
+
+condition_fields!(declare_conditions);
+
+/// The declaration of the typed condition field `name`.
+pub fn condition_field(name: &str) -> Option<&'static ConditionField> {
+    CONDITIONS.iter().find(|f| f.name == name)
 }
 
 impl Conditions {
-    /// The typed fields out of their [`condition_range`], as `field: expected …, got …`.
+    /// The typed fields out of their range, as `field: expected …, got …`. The same rule for
+    /// every path: input tables, gRPC cases, batch defaults and ScreenInline.
     pub fn range_errors(&self) -> Vec<String> {
-        CONDITION_FIELDS
+        CONDITIONS
             .iter()
             .zip(self.values())
-            .filter_map(|(field, v)| {
+            .filter_map(|(f, v)| {
                 let v = v?;
-                let (lo, hi, what) = condition_range(field);
-                (!(v.is_finite() && v >= lo && v <= hi)).then(|| format!("{field}: expected {what}, got {v}"))
+                (!f.accepts(v)).then(|| format!("{}: expected {}, got {v}", f.name, f.expected))
             })
             .collect()
-    }
-
-    /// The typed fields in [`CONDITION_FIELDS`] order.
-    pub fn values(&self) -> [Option<f64>; 12] {
-        [
-            self.process_temperature_k,
-            self.pressure_bar,
-            self.scale_mol,
-            self.reaction_mass_kg,
-            self.cp_kj_per_kg_k,
-            self.dosing_time_h,
-            self.accumulation_fraction,
-            self.mtt_k,
-            self.t_d24_k,
-            self.dsc_onset_k,
-            self.coolant_temperature_k,
-            self.ua_w_per_k,
-        ]
-    }
-
-    /// Mutable access to a typed field by its name in [`CONDITION_FIELDS`].
-    pub fn field_mut(&mut self, name: &str) -> Option<&mut Option<f64>> {
-        Some(match name {
-            "process_temperature_k" => &mut self.process_temperature_k,
-            "pressure_bar" => &mut self.pressure_bar,
-            "scale_mol" => &mut self.scale_mol,
-            "reaction_mass_kg" => &mut self.reaction_mass_kg,
-            "cp_kj_per_kg_k" => &mut self.cp_kj_per_kg_k,
-            "dosing_time_h" => &mut self.dosing_time_h,
-            "accumulation_fraction" => &mut self.accumulation_fraction,
-            "mtt_k" => &mut self.mtt_k,
-            "t_d24_k" => &mut self.t_d24_k,
-            "dsc_onset_k" => &mut self.dsc_onset_k,
-            "coolant_temperature_k" => &mut self.coolant_temperature_k,
-            "ua_w_per_k" => &mut self.ua_w_per_k,
-            _ => return None,
-        })
     }
 
     /// These conditions with every unset field taken from `defaults`.

@@ -52,7 +52,7 @@ pub struct CaseRow {
     pub reaction: String,
     pub phase: Option<String>,
     /// The case's process conditions after batch defaults, in [`CONDITION_FIELDS`] order.
-    pub conditions: [Option<f64>; 12],
+    pub conditions: [Option<f64>; thermosieve_queue::CONDITION_COUNT],
     /// Other condition columns, as a JSON object (name → text); `None` when there are none.
     pub conditions_extra_json: Option<String>,
     /// 1-based input row (0 unknown).

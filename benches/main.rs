@@ -17,9 +17,10 @@ use std::process::{Child, Command, Stdio};
 use std::time::{Duration, Instant};
 use thermosieve_engine::{species, Screener, TemperatureGrid};
 use thermosieve_front::{convert, input};
+use thermosieve_model::CaseInput;
+use thermosieve_model::Table;
 use thermosieve_proto::v1 as pb;
 use thermosieve_proto::v1::screening_client::ScreeningClient;
-use thermosieve_queue::CaseInput;
 
 #[derive(Parser, Debug)]
 struct Args {
@@ -115,7 +116,7 @@ fn cases(demo: &[CaseInput], n: usize) -> impl Iterator<Item = CaseInput> + '_ {
 /// also gets its process view at its conditions (what a worker asks of the engine per case).
 fn engine_only(demo: &[CaseInput], n: usize, threads: usize, process: bool) -> f64 {
     let t0 = Instant::now();
-    let defaults = thermosieve_queue::Conditions::default();
+    let defaults = thermosieve_model::Conditions::default();
     std::thread::scope(|s| {
         for t in 0..threads {
             let defaults = &defaults;
@@ -144,10 +145,10 @@ fn stages(demo: &[CaseInput], n: usize, chunk_size: usize) -> anyhow::Result<()>
     use thermosieve_worker::{parts, process::ChunkProcessor, rows};
     let dir = std::env::temp_dir().join(format!("thermosieve-stages-{}", std::process::id()));
     std::fs::create_dir_all(&dir)?;
-    let spec = thermosieve_queue::BatchSpec {
+    let spec = thermosieve_model::BatchSpec {
         batch_id: "0".repeat(32),
         temperatures_k: TemperatureGrid::default_process().temperatures_k().to_vec(),
-        default_conditions: thermosieve_queue::Conditions::default(),
+        default_conditions: thermosieve_model::Conditions::default(),
         chunk_size,
         label: "stages".into(),
         created_unix_ms: 0,
@@ -182,14 +183,14 @@ fn stages(demo: &[CaseInput], n: usize, chunk_size: usize) -> anyhow::Result<()>
         let routes_df = rows::routes_frame(&rows::chunk_routes(&case_rows))?;
         mark(3);
         let seq = seq as u64;
-        parts::write_part(&parts::part_path(&dir, &spec.batch_id, "cases", seq)?, &cases_df)?;
+        parts::write_part(&thermosieve_model::part_path(&dir, &spec.batch_id, Table::Cases, seq)?, &cases_df)?;
         mark(4);
-        parts::write_part(&parts::part_path(&dir, &spec.batch_id, "trends", seq)?, &trends_df)?;
+        parts::write_part(&thermosieve_model::part_path(&dir, &spec.batch_id, Table::Trends, seq)?, &trends_df)?;
         mark(5);
-        parts::write_part(&parts::part_path(&dir, &spec.batch_id, "routes", seq)?, &routes_df)?;
+        parts::write_part(&thermosieve_model::part_path(&dir, &spec.batch_id, Table::Routes, seq)?, &routes_df)?;
         mark(6);
         parts::write_part(
-            &parts::part_path(&dir, &spec.batch_id, "species", seq)?,
+            &thermosieve_model::part_path(&dir, &spec.batch_id, Table::Species, seq)?,
             &rows::species_frame(&case_rows)?,
         )?;
         mark(7);

@@ -8,7 +8,7 @@ use tonic_health::pb::health_client::HealthClient;
 use tonic_health::pb::HealthCheckRequest;
 
 /// The demo's cases under fresh ids, `copies` times: a batch long enough to fault in the middle.
-fn many_cases(copies: usize) -> Vec<thermosieve_queue::CaseInput> {
+fn many_cases(copies: usize) -> Vec<thermosieve_model::CaseInput> {
     let demo = demo_cases();
     (0..copies)
         .flat_map(|k| {

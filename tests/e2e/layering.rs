@@ -4,13 +4,14 @@
 use std::collections::BTreeMap;
 
 /// Layer of each production crate: a crate may use only crates of a lower layer.
-const LAYERS: [(&str, u8); 6] = [
+const LAYERS: [(&str, u8); 7] = [
     ("thermosieve-engine", 0),
     ("thermosieve-proto", 0),
-    ("thermosieve-queue", 0),
-    ("thermosieve-worker", 1),
-    ("thermosieve-front", 2),
-    ("thermosieve-cli", 3),
+    ("thermosieve-model", 0),
+    ("thermosieve-queue", 1),
+    ("thermosieve-worker", 2),
+    ("thermosieve-front", 3),
+    ("thermosieve-cli", 4),
 ];
 
 #[test]

@@ -14,9 +14,10 @@ use thermosieve_engine::structures::DefaultPhase;
 use thermosieve_engine::{species, Screener, TemperatureGrid};
 use thermosieve_front::ingest::{batch_spec, BatchOptions, Ingest, IngestLimits};
 use thermosieve_front::{convert, input, Front, FrontConfig};
+use thermosieve_model::BatchState;
 use thermosieve_proto::v1 as pb;
 use thermosieve_proto::v1::screening_client::ScreeningClient;
-use thermosieve_queue::{BatchState, Queue, RedisConfig, RedisQueue};
+use thermosieve_queue::{Queue, RedisConfig, RedisQueue};
 use thermosieve_worker::WorkerConfig;
 
 mod access;
@@ -25,7 +26,7 @@ mod layering;
 mod queue_conformance;
 mod validation;
 
-fn demo_cases() -> Vec<thermosieve_queue::CaseInput> {
+fn demo_cases() -> Vec<thermosieve_model::CaseInput> {
     input::open(&demo_csv(), None).expect("demo input").collect()
 }
 
@@ -41,7 +42,7 @@ async fn embedded(dir: &Path) -> (DataFrame, DataFrame, DataFrame, DataFrame) {
     )
 }
 
-fn each_case_once(cases: &DataFrame, expected: &[thermosieve_queue::CaseInput]) {
+fn each_case_once(cases: &DataFrame, expected: &[thermosieve_model::CaseInput]) {
     let ids = strings(cases, "case_id");
     let mut seen: HashMap<String, usize> = HashMap::new();
     for id in ids.iter().flatten() {
@@ -93,7 +94,7 @@ async fn embedded_run_on_demo_data_gives_every_case_once_with_the_engines_values
     let t_used = floats(&cases, "process_temperature_used_k");
     let classes = cases.column("criticality_class").expect("criticality_class column");
     assert!(classes.null_count() < cases.height() / 2, "most demo cases give MTT and T_D24");
-    let by_id: HashMap<&str, &thermosieve_queue::CaseInput> = input.iter().map(|c| (c.case_id.as_str(), c)).collect();
+    let by_id: HashMap<&str, &thermosieve_model::CaseInput> = input.iter().map(|c| (c.case_id.as_str(), c)).collect();
     let labels = strings(&cases, "species_labels");
     let mut engine_species: HashMap<String, std::sync::Arc<thermosieve_engine::screen::Prepared>> = HashMap::new();
     for (i, id) in ids.iter().enumerate() {
@@ -190,10 +191,10 @@ fn species_are_the_engines(table: &DataFrame, engine: &HashMap<String, std::sync
 
 /// The routes table, read back, against the engine's own roll-up of the same cases (screened and
 /// evaluated here, not through the worker's rows).
-fn routes_are_the_engines_roll_up(routes: &DataFrame, input: &[thermosieve_queue::CaseInput]) {
+fn routes_are_the_engines_roll_up(routes: &DataFrame, input: &[thermosieve_model::CaseInput]) {
     use thermosieve_engine::routes::{roll_up, RouteStep, StepFacts};
     let mut screener = Screener::new(species::bundled(), TemperatureGrid::default_process());
-    let defaults = thermosieve_queue::Conditions::default();
+    let defaults = thermosieve_model::Conditions::default();
     let results: Vec<Result<StepFacts, String>> = input
         .iter()
         .map(|c| {
@@ -273,7 +274,7 @@ fn routes_are_the_engines_roll_up(routes: &DataFrame, input: &[thermosieve_queue
 
 #[tokio::test(flavor = "multi_thread", worker_threads = 2)]
 async fn a_route_step_that_comes_back_later_fails_its_route_once() {
-    let case = |id: &str, route: &str, step: u32, reaction: &str| thermosieve_queue::CaseInput {
+    let case = |id: &str, route: &str, step: u32, reaction: &str| thermosieve_model::CaseInput {
         case_id: id.into(),
         route_id: Some(route.into()),
         step: Some(step),
@@ -412,7 +413,7 @@ impl Service {
 
 async fn submit(
     client: &mut ScreeningClient<tonic::transport::Channel>,
-    cases: &[thermosieve_queue::CaseInput],
+    cases: &[thermosieve_model::CaseInput],
     chunk_size: u32,
 ) -> String {
     let mut msgs = vec![pb::SubmitBatchRequest {
@@ -654,7 +655,7 @@ async fn a_chunk_delivered_too_often_is_dead_lettered_and_its_cases_are_error_ro
     }
     ing.finish().await.unwrap();
     let held = stolen.await.unwrap();
-    let thermosieve_queue::Task::Chunk(held_chunk) = &held.task else {
+    let thermosieve_model::Task::Chunk(held_chunk) = &held.task else {
         panic!("expected a chunk")
     };
     let held_ids: Vec<String> = held_chunk.cases.iter().map(|c| c.case_id.clone()).collect();
@@ -685,8 +686,8 @@ async fn a_chunk_delivered_too_often_is_dead_lettered_and_its_cases_are_error_ro
 
 /// Ethanol combustion as a reaction SMILES, once per phase, plus salts and names: the case's
 /// `phase` column and the per-species states must reach the engine on every path.
-fn phase_cases() -> Vec<thermosieve_queue::CaseInput> {
-    let case = |id: &str, reaction: &str, phase: Option<&str>| thermosieve_queue::CaseInput {
+fn phase_cases() -> Vec<thermosieve_model::CaseInput> {
+    let case = |id: &str, reaction: &str, phase: Option<&str>| thermosieve_model::CaseInput {
         case_id: id.into(),
         reaction: reaction.into(),
         phase: phase.map(str::to_string),
@@ -704,8 +705,8 @@ fn phase_cases() -> Vec<thermosieve_queue::CaseInput> {
         case("benson", &benson_burn(), Some("gas")),
         // A step charged at once (dosing time 0) that also carries an accumulated fraction: batch
         // means X_acc = 1, so MTSR = T_p + ΔT_ad whatever the fraction says.
-        thermosieve_queue::CaseInput {
-            conditions: thermosieve_queue::Conditions {
+        thermosieve_model::CaseInput {
+            conditions: thermosieve_model::Conditions {
                 process_temperature_k: Some(313.15),
                 dosing_time_h: Some(0.0),
                 accumulation_fraction: Some(0.3),

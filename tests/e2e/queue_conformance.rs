@@ -2,7 +2,8 @@
 //! Redis Streams on a real redis-server. What one backend does, the other must do too.
 
 use super::*;
-use thermosieve_queue::{BatchSpec, CaseInput, Chunk, ChunkReport, Conditions, Delivery, Finalized, MemoryQueue, QueueError, Task};
+use thermosieve_model::{BatchSpec, CaseInput, Chunk, ChunkReport, Conditions, Task};
+use thermosieve_queue::{Delivery, Finalized, MemoryQueue, QueueError};
 
 fn spec(id: &str) -> BatchSpec {
     BatchSpec {
@@ -11,7 +12,7 @@ fn spec(id: &str) -> BatchSpec {
         default_conditions: Conditions::default(),
         chunk_size: 2,
         label: String::new(),
-        created_unix_ms: thermosieve_queue::now_unix_ms(),
+        created_unix_ms: thermosieve_model::now_unix_ms(),
         tenant: String::new(),
     }
 }

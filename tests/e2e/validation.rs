@@ -20,7 +20,7 @@ step-zero,2 H2(g) + O2(g) -> 2 H2O(l),R,0,,,\n\
 vacuum-below-zero,2 H2(g) + O2(g) -> 2 H2O(l),,,,-1,\n\
 huge-mass,2 H2(g) + O2(g) -> 2 H2O(l),,,,,1e308\n";
 
-fn cases() -> Vec<thermosieve_queue::CaseInput> {
+fn cases() -> Vec<thermosieve_model::CaseInput> {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("checks.csv");
     std::fs::write(&path, TABLE).unwrap();

@@ -11,6 +11,7 @@ use thermosieve_front::auth::{Bearer, Tokens};
 use thermosieve_front::ingest::{BatchOptions, IngestLimits};
 use thermosieve_front::input::{self, Format};
 use thermosieve_front::{convert, Access, Front, FrontConfig};
+use thermosieve_model::Table;
 use thermosieve_proto::v1 as pb;
 use thermosieve_proto::v1::screening_client::ScreeningClient;
 use thermosieve_queue::{Queue, RedisConfig, RedisQueue};
@@ -344,14 +345,8 @@ async fn run(a: RunArgs) -> anyhow::Result<()> {
         secs,
         p.cases_done as f64 / secs.max(1e-9)
     );
-    for f in [
-        thermosieve_worker::CASES_FILE,
-        thermosieve_worker::TRENDS_FILE,
-        thermosieve_worker::ROUTES_FILE,
-        thermosieve_worker::SPECIES_FILE,
-        thermosieve_worker::MANIFEST_FILE,
-    ] {
-        println!("  {}", outcome.batch_dir.join(f).display());
+    for t in Table::ALL {
+        println!("  {}", outcome.batch_dir.join(t.file_name()).display());
     }
     println!("caution: {}", thermosieve_engine::CAUTION);
     Ok(())
@@ -650,13 +645,7 @@ async fn fetch(a: FetchArgs) -> anyhow::Result<()> {
     let mut c = client(&a.front).await?;
     std::fs::create_dir_all(&a.out).with_context(|| format!("creating {}", a.out.display()))?;
     // Only these names are written, only inside --out: the name the front sends is checked, never used.
-    for (table, name) in [
-        (pb::Table::Cases, thermosieve_worker::CASES_FILE),
-        (pb::Table::Trends, thermosieve_worker::TRENDS_FILE),
-        (pb::Table::Routes, thermosieve_worker::ROUTES_FILE),
-        (pb::Table::Species, thermosieve_worker::SPECIES_FILE),
-        (pb::Table::Manifest, thermosieve_worker::MANIFEST_FILE),
-    ] {
+    for (table, name) in Table::ALL.map(|t| (convert::table_to_pb(t), t.file_name())) {
         let mut stream = c
             .fetch_table(pb::FetchTableRequest {
                 batch_id: a.batch_id.clone(),

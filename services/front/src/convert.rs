@@ -2,12 +2,12 @@
 //! mapped in one place.
 
 use thermosieve_engine::ThermoPoint;
+use thermosieve_model::{BatchState, CaseInput, Conditions, Progress, Table};
 use thermosieve_proto::v1 as pb;
-use thermosieve_queue::{BatchState, CaseInput, Conditions, Progress};
 use thermosieve_worker::rows::{species_sources, CaseRow, STATUS_ERROR, STATUS_OK};
 
 /// The wire mapping of the typed conditions, made from their one declaration
-/// (`thermosieve_queue::condition_fields!`): the proto's `ProcessConditions` has the same names.
+/// (`thermosieve_model::condition_fields!`): the proto's `ProcessConditions` has the same names.
 macro_rules! conditions_wire {
     ($( $(#[doc = $doc:literal])* $name:ident: $min:expr, $max:expr, $expected:literal, $celsius:expr; )*) => {
         pub fn conditions_from_pb(c: Option<pb::ProcessConditions>) -> Conditions {
@@ -27,7 +27,23 @@ macro_rules! conditions_wire {
     };
 }
 
-thermosieve_queue::condition_fields!(conditions_wire);
+thermosieve_model::condition_fields!(conditions_wire);
+
+/// A batch file on the wire and in the results folder.
+pub fn table_to_pb(t: Table) -> pb::Table {
+    match t {
+        Table::Cases => pb::Table::Cases,
+        Table::Trends => pb::Table::Trends,
+        Table::Routes => pb::Table::Routes,
+        Table::Species => pb::Table::Species,
+        Table::Manifest => pb::Table::Manifest,
+    }
+}
+
+/// The batch file a wire table number names; `None` for an unknown or unspecified one.
+pub fn table_from_pb(t: i32) -> Option<Table> {
+    Table::ALL.into_iter().find(|&x| table_to_pb(x) as i32 == t)
+}
 
 fn non_empty(s: String) -> Option<String> {
     (!s.is_empty()).then_some(s)
@@ -140,7 +156,7 @@ pub fn state_to_pb(s: BatchState) -> pb::BatchState {
 }
 
 pub fn status_to_pb(batch_id: &str, p: &Progress) -> pb::BatchStatus {
-    let end = p.finished_unix_ms.unwrap_or_else(thermosieve_queue::now_unix_ms);
+    let end = p.finished_unix_ms.unwrap_or_else(thermosieve_model::now_unix_ms);
     let tables = if p.state == BatchState::Done {
         vec![
             pb::Table::Cases as i32,

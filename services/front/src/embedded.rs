@@ -7,7 +7,8 @@ use crate::ingest::{batch_spec, BatchOptions, Ingest, IngestLimits, Submitted};
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::time::Duration;
-use thermosieve_queue::{BatchState, CaseInput, MemoryQueue, Progress, Queue};
+use thermosieve_model::{BatchState, CaseInput, Progress};
+use thermosieve_queue::{MemoryQueue, Queue};
 use thermosieve_worker::{WorkerConfig, WorkerStats};
 
 /// The outcome of an embedded run.

@@ -15,7 +15,8 @@ use std::hash::{Hash, Hasher};
 use std::sync::Arc;
 use std::time::{Duration, Instant};
 use thermosieve_engine::thermo::TemperatureGrid;
-use thermosieve_queue::{now_unix_ms, BatchSpec, CaseInput, Chunk, Conditions, Queue, QueueError};
+use thermosieve_model::{now_unix_ms, BatchSpec, CaseInput, Chunk, Conditions};
+use thermosieve_queue::{Queue, QueueError};
 
 /// Most steps in one route.
 pub const MAX_ROUTE_STEPS: usize = 1000;
@@ -345,7 +346,8 @@ pub fn validate_case(case: &mut CaseInput) {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use thermosieve_queue::{MemoryQueue, Task};
+    use thermosieve_model::Task;
+    use thermosieve_queue::MemoryQueue;
 
     fn case(id: &str, route: Option<&str>) -> CaseInput {
         CaseInput {

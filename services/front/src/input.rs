@@ -16,7 +16,7 @@ use std::collections::BTreeMap;
 use std::fs::File;
 use std::io::{BufRead, BufReader};
 use std::path::{Path, PathBuf};
-use thermosieve_queue::{CaseInput, ConditionField, Conditions, CONDITIONS};
+use thermosieve_model::{CaseInput, ConditionField, Conditions, CONDITIONS};
 
 /// Input formats.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -65,7 +65,7 @@ pub enum InputError {
 }
 
 /// The condition columns an input table may carry: each typed field under its own name (in its
-/// unit), or under its °C column where it has one (see `thermosieve_queue::condition_fields!`).
+/// unit), or under its °C column where it has one (see `thermosieve_model::condition_fields!`).
 /// Returns (column, field, whether the column is in °C).
 pub fn condition_columns() -> impl Iterator<Item = (&'static str, &'static ConditionField, bool)> {
     CONDITIONS

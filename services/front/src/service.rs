@@ -12,11 +12,12 @@ use std::sync::{Arc, Mutex};
 use std::time::Duration;
 use thermosieve_engine::species::{self, T_REF_K};
 use thermosieve_engine::{Screener, TemperatureGrid};
+use thermosieve_model::batch_dir;
+use thermosieve_model::{BatchState, Progress};
 use thermosieve_proto::v1 as pb;
 use thermosieve_proto::v1::screening_server::{Screening, ScreeningServer};
-use thermosieve_queue::{BatchState, Progress, Queue};
+use thermosieve_queue::Queue;
 use thermosieve_worker::metrics;
-use thermosieve_worker::parts::batch_dir;
 use thermosieve_worker::process::ChunkProcessor;
 use tokio::io::AsyncReadExt;
 use tokio::net::TcpListener;
@@ -75,7 +76,7 @@ impl Front {
         if k.len() >= KNOWN_BATCHES {
             k.clear();
         }
-        k.insert(id.to_string(), (thermosieve_queue::now_unix_ms(), tenant.to_string()));
+        k.insert(id.to_string(), (thermosieve_model::now_unix_ms(), tenant.to_string()));
     }
 
     fn check_id(id: &str) -> Result<(), FrontError> {
@@ -391,22 +392,17 @@ impl Screening for ScreeningService {
         if p.state != BatchState::Done {
             return Err(FrontError::FailedPrecondition(format!("batch {} is {}, not done", r.batch_id, p.state.as_str())).into());
         }
-        let name = match pb::Table::try_from(r.table) {
-            Ok(pb::Table::Cases) => thermosieve_worker::CASES_FILE,
-            Ok(pb::Table::Trends) => thermosieve_worker::TRENDS_FILE,
-            Ok(pb::Table::Routes) => thermosieve_worker::ROUTES_FILE,
-            Ok(pb::Table::Species) => thermosieve_worker::SPECIES_FILE,
-            Ok(pb::Table::Manifest) => thermosieve_worker::MANIFEST_FILE,
-            _ => {
-                return Err(FrontError::invalid(
-                    "table",
-                    "expected TABLE_CASES, TABLE_TRENDS, TABLE_ROUTES, TABLE_SPECIES or TABLE_MANIFEST",
-                )
-                .into())
-            }
+        let Some(table) = crate::convert::table_from_pb(r.table) else {
+            return Err(FrontError::invalid(
+                "table",
+                "expected TABLE_CASES, TABLE_TRENDS, TABLE_ROUTES, TABLE_SPECIES or TABLE_MANIFEST",
+            )
+            .into());
         };
+        let name = table.file_name();
+        // Not a server-made id: no such batch (authorize has refused it already).
         let path = batch_dir(&self.0.cfg.results_dir, &r.batch_id)
-            .map_err(FrontError::from)?
+            .map_err(|_| FrontError::NotFound(r.batch_id.clone()))?
             .join(name);
         let io = |source| FrontError::Io {
             path: path.display().to_string(),

@@ -1,26 +1,26 @@
-//! thermosieve-queue: the job model of a screen (batches, cases, chunks, progress) and the
-//! [`Queue`] trait that moves chunks from the front to the workers, with two backends.
+//! thermosieve-queue: the [`Queue`] trait that moves a screen's chunks (the job of
+//! `thermosieve-model`) from the front to the workers, with two backends.
 //!
 //! It owns delivery semantics: at-least-once delivery, acknowledgement after the worker says its
 //! results are durable, reclaiming of abandoned entries, dead-lettering, per-batch counters and
 //! state. It must not compute chemistry, read input tables or write result files: the worker and
-//! the front do that. It never imports the front, the worker or the engine.
+//! the front do that. It imports only the model, never the front, the worker or the engine.
 //!
 //! # Layout
-//! - [`model`]: serde types: [`CaseInput`], [`Conditions`], [`BatchSpec`], [`Chunk`], [`Task`],
-//!   [`Progress`].
+//! - [`delivery`]: what the queue hands out and reports: [`Delivery`], [`Finalized`], [`QueueStats`].
 //! - [`memory`]: the in-process backend (embedded mode and unit tests).
 //! - [`redis_streams`]: the Redis Streams backend (one stream, consumer group `workers`).
 
+pub mod delivery;
 pub mod memory;
-pub mod model;
 pub mod redis_streams;
 
+pub use delivery::*;
 pub use memory::MemoryQueue;
-pub use model::*;
 pub use redis_streams::{RedisConfig, RedisQueue};
 
 use std::time::Duration;
+use thermosieve_model::{BatchSpec, BatchState, Chunk, ChunkReport, Progress};
 
 /// Why a queue operation failed. `retryable` says whether the same call may succeed later.
 #[derive(Debug, thiserror::Error)]

@@ -2,11 +2,12 @@
 //! an idle time, idempotent completion per chunk) in a mutex-guarded struct. Used by the
 //! embedded `run` mode and by unit tests.
 
-use crate::model::*;
+use crate::delivery::*;
 use crate::{Queue, QueueError};
 use std::collections::{BTreeMap, HashMap, HashSet, VecDeque};
 use std::sync::Mutex;
 use std::time::{Duration, Instant};
+use thermosieve_model::*;
 use tokio::sync::Notify;
 
 struct Pending {

@@ -16,7 +16,7 @@
 //! then fail with NOGROUP, which becomes [`QueueError::GroupMissing`] (logged loudly by the
 //! worker), and batches in flight report as unknown, never as complete.
 
-use crate::model::*;
+use crate::delivery::*;
 use crate::{Queue, QueueError};
 use redis::aio::{ConnectionManager, ConnectionManagerConfig, MultiplexedConnection};
 use redis::streams::{StreamAutoClaimReply, StreamId, StreamPendingCountReply, StreamReadReply};
@@ -24,6 +24,7 @@ use redis::{AsyncConnectionConfig, Script, Value};
 use std::collections::HashMap;
 use std::sync::Mutex;
 use std::time::Duration;
+use thermosieve_model::*;
 
 /// The JSON of `Task::Chunk(chunk)`, made from a borrowed chunk (no copy of its cases).
 fn chunk_payload(chunk: &Chunk) -> serde_json::Result<String> {

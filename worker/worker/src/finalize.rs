@@ -6,7 +6,7 @@
 //! threads at once.
 
 use crate::concat::Concat;
-use crate::parts::{batch_dir, part_path, read_parquet, read_parquet_columns, write_atomic, FrameWriter};
+use crate::parts::{read_parquet, read_parquet_columns, write_atomic, FrameWriter};
 use crate::route_table::RouteTable;
 use crate::rows::{self, STATUS_OK};
 use crate::WorkerError;
@@ -15,14 +15,7 @@ use serde::{Deserialize, Serialize};
 use std::path::Path;
 use thermosieve_engine::routes::RANK_NOTE;
 use thermosieve_engine::{elements, species, CAUTION, VERSION};
-use thermosieve_queue::{now_unix_ms, BatchSpec, Progress};
-
-/// Final table file names.
-pub const CASES_FILE: &str = "cases.parquet";
-pub const TRENDS_FILE: &str = "trends.parquet";
-pub const ROUTES_FILE: &str = "routes.parquet";
-pub const SPECIES_FILE: &str = "species.parquet";
-pub const MANIFEST_FILE: &str = "manifest.json";
+use thermosieve_model::{batch_dir, now_unix_ms, part_path, BatchSpec, Progress, Table};
 
 /// Key-value metadata written into every table of a batch.
 pub fn table_metadata(spec: &BatchSpec, table: &str) -> Vec<(String, String)> {
@@ -45,7 +38,7 @@ pub fn table_metadata(spec: &BatchSpec, table: &str) -> Vec<(String, String)> {
         ),
         ("thermosieve.caution".to_string(), CAUTION.to_string()),
     ];
-    if table == ROUTES_FILE {
+    if table == Table::Routes.file_name() {
         kv.push(("thermosieve.rank_note".to_string(), RANK_NOTE.to_string()));
     }
     kv
@@ -67,7 +60,7 @@ pub struct Manifest {
     pub engine_version: String,
     pub data_sources: Vec<String>,
     pub temperature_grid_k: Vec<f64>,
-    pub default_conditions: thermosieve_queue::Conditions,
+    pub default_conditions: thermosieve_model::Conditions,
     pub counts: Counts,
     pub files: Vec<FileEntry>,
     pub cautions: Vec<String>,
@@ -96,18 +89,18 @@ pub struct Timings {
     pub finalize_seconds: f64,
 }
 
-/// Concatenate the parts of `table` (`cases` or `trends`) for chunks `0..chunks` into `file`,
+/// Concatenate the parts of `table` (cases or trends) for chunks `0..chunks` into its file,
 /// copying their pages; `each` sees every part's path first. Returns (rows, bytes).
 fn concat_parts(
     results_dir: &Path,
     spec: &BatchSpec,
-    table: &str,
-    file: &str,
+    table: Table,
     chunks: u64,
     empty: &DataFrame,
     mut each: impl FnMut(u64, &Path) -> Result<(), WorkerError>,
 ) -> Result<(u64, u64), WorkerError> {
     let dir = batch_dir(results_dir, &spec.batch_id)?;
+    let file = table.file_name();
     let path = dir.join(file);
     let mut rows = 0u64;
     write_atomic(&path, |f| {
@@ -118,7 +111,7 @@ fn concat_parts(
                 return Err(WorkerError::MissingPart {
                     batch_id: spec.batch_id.clone(),
                     seq,
-                    table: table.to_string(),
+                    table: table.stem(),
                 });
             }
             each(seq, &p)?;
@@ -137,18 +130,18 @@ fn concat_parts(
 /// `species.parquet`: the species parts' rows, each label once (the first seen). A batch holds
 /// as many species as its reactions name, so this is small. Returns (rows, bytes).
 fn species_table(results_dir: &Path, spec: &BatchSpec, chunks: u64) -> Result<(u64, u64), WorkerError> {
-    let path = batch_dir(results_dir, &spec.batch_id)?.join(SPECIES_FILE);
+    let path = batch_dir(results_dir, &spec.batch_id)?.join(Table::Species.file_name());
     let mut seen = std::collections::HashSet::new();
     let mut rows = 0u64;
     write_atomic(&path, |f| {
         let mut w = FrameWriter::new(f, rows::species_frame(&[])?.schema())?;
         for seq in 0..chunks {
-            let part = part_path(results_dir, &spec.batch_id, "species", seq)?;
+            let part = part_path(results_dir, &spec.batch_id, Table::Species, seq)?;
             if !part.exists() {
                 return Err(WorkerError::MissingPart {
                     batch_id: spec.batch_id.clone(),
                     seq,
-                    table: "species".into(),
+                    table: Table::Species.stem(),
                 });
             }
             let df = read_parquet(&part)?;
@@ -160,7 +153,7 @@ fn species_table(results_dir: &Path, spec: &BatchSpec, chunks: u64) -> Result<(u
             rows += df.height() as u64;
             w.write(&df)?;
         }
-        w.finish(table_metadata(spec, SPECIES_FILE))
+        w.finish(table_metadata(spec, Table::Species.file_name()))
     })?;
     Ok((rows, std::fs::metadata(&path).map_or(0, |m| m.len())))
 }
@@ -168,7 +161,7 @@ fn species_table(results_dir: &Path, spec: &BatchSpec, chunks: u64) -> Result<(u
 /// The manifest of an earlier, complete run of this finalization: written last (atomically),
 /// so its presence with every table it lists means the tables are whole.
 fn finished_before(dir: &Path, spec: &BatchSpec, progress: &Progress) -> Option<Manifest> {
-    let m: Manifest = serde_json::from_slice(&std::fs::read(dir.join(MANIFEST_FILE)).ok()?).ok()?;
+    let m: Manifest = serde_json::from_slice(&std::fs::read(dir.join(Table::Manifest.file_name())).ok()?).ok()?;
     let whole = m.batch_id == spec.batch_id
         && m.counts.chunks == progress.chunks_total
         && m.files
@@ -206,8 +199,8 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress) -> Re
     // The trends table is copied on a second thread while this one copies the cases and reads
     // the route scores: they share nothing.
     let (cases_written, trends_written) = std::thread::scope(|scope| {
-        let trends = scope.spawn(|| concat_parts(results_dir, spec, "trends", TRENDS_FILE, chunks, &empty_trends, |_, _| Ok(())));
-        let cases = concat_parts(results_dir, spec, "cases", CASES_FILE, chunks, &empty_cases, |seq, part| {
+        let trends = scope.spawn(|| concat_parts(results_dir, spec, Table::Trends, chunks, &empty_trends, |_, _| Ok(())));
+        let cases = concat_parts(results_dir, spec, Table::Cases, chunks, &empty_cases, |seq, part| {
             let df = read_parquet_columns(part, &["status"])?;
             let status = df.column("status")?.str()?;
             ok += (0..df.height()).filter(|&i| status.get(i) == Some(STATUS_OK)).count() as u64;
@@ -218,11 +211,11 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress) -> Re
     let (cases, cases_bytes) = cases_written?;
     let (trend_rows, trends_bytes) = trends_written?;
     let route_count = routes.routes() as u64;
-    let routes_path = dir.join(ROUTES_FILE);
+    let routes_path = dir.join(Table::Routes.file_name());
     write_atomic(&routes_path, |f| {
         let mut w = FrameWriter::new(f, rows::routes_frame(&[])?.schema())?;
         routes.finish(|df| w.write(df))?;
-        w.finish(table_metadata(spec, ROUTES_FILE))
+        w.finish(table_metadata(spec, Table::Routes.file_name()))
     })?;
     let routes_bytes = std::fs::metadata(&routes_path).map_or(0, |m| m.len());
     let (species_rows, species_bytes) = species_table(results_dir, spec, chunks)?;
@@ -245,22 +238,22 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress) -> Re
         counts,
         files: vec![
             FileEntry {
-                name: CASES_FILE.into(),
+                name: Table::Cases.file_name().into(),
                 rows: cases,
                 bytes: cases_bytes,
             },
             FileEntry {
-                name: TRENDS_FILE.into(),
+                name: Table::Trends.file_name().into(),
                 rows: trend_rows,
                 bytes: trends_bytes,
             },
             FileEntry {
-                name: ROUTES_FILE.into(),
+                name: Table::Routes.file_name().into(),
                 rows: route_count,
                 bytes: routes_bytes,
             },
             FileEntry {
-                name: SPECIES_FILE.into(),
+                name: Table::Species.file_name().into(),
                 rows: species_rows,
                 bytes: species_bytes,
             },
@@ -275,9 +268,9 @@ pub fn finalize(results_dir: &Path, spec: &BatchSpec, progress: &Progress) -> Re
         },
     };
     let json = serde_json::to_vec_pretty(&manifest)?;
-    write_atomic(&dir.join(MANIFEST_FILE), |f| {
+    write_atomic(&dir.join(Table::Manifest.file_name()), |f| {
         std::io::Write::write_all(f, &json).map_err(|source| WorkerError::Io {
-            path: dir.join(MANIFEST_FILE),
+            path: dir.join(Table::Manifest.file_name()),
             source,
         })
     })?;

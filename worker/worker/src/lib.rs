@@ -27,7 +27,7 @@ pub mod route_table;
 pub mod rows;
 pub mod run;
 
-pub use finalize::{finalize, Manifest, CASES_FILE, MANIFEST_FILE, ROUTES_FILE, SPECIES_FILE, TRENDS_FILE};
+pub use finalize::{finalize, Manifest};
 pub use run::{run, WorkerConfig, WorkerStats};
 
 use std::path::PathBuf;
@@ -41,10 +41,10 @@ pub enum WorkerError {
     Polars(#[from] polars::prelude::PolarsError),
     #[error("{0}")]
     Queue(#[from] thermosieve_queue::QueueError),
-    #[error("batch id {0:?} is not a server-made id (lowercase hex)")]
-    BadBatchId(String),
+    #[error("{0}")]
+    BadBatchId(#[from] thermosieve_model::BadBatchId),
     #[error("batch {batch_id}: chunk {seq} has no committed {table} part")]
-    MissingPart { batch_id: String, seq: u64, table: String },
+    MissingPart { batch_id: String, seq: u64, table: &'static str },
     #[error("manifest: {0}")]
     Json(#[from] serde_json::Error),
     #[error("{path}: cannot copy into the table: {reason}")]

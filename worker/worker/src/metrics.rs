@@ -262,7 +262,7 @@ mod tests {
                     waiting: 4,
                     in_flight: 1,
                     dead_letters: 0,
-                    batches: vec![(thermosieve_queue::BatchState::Running, 2)],
+                    batches: vec![(thermosieve_model::BatchState::Running, 2)],
                 }),
             }),
         );

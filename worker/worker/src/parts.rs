@@ -13,31 +13,8 @@ use polars_parquet::write::{
 };
 use std::fs::File;
 use std::io::BufWriter;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::sync::atomic::{AtomicU64, Ordering};
-
-/// The folder of one batch. Batch ids are server-made hex; anything else is refused so that an
-/// id can never walk out of the results folder.
-///
-/// # Errors
-/// `BadBatchId` for an id that is not 1 to 64 lowercase hex digits.
-pub fn batch_dir(results_dir: &Path, batch_id: &str) -> Result<PathBuf, WorkerError> {
-    let ok = !batch_id.is_empty() && batch_id.len() <= 64 && batch_id.bytes().all(|b| b.is_ascii_digit() || (b'a'..=b'f').contains(&b));
-    if !ok {
-        return Err(WorkerError::BadBatchId(batch_id.to_string()));
-    }
-    Ok(results_dir.join(batch_id))
-}
-
-/// `parts/<table>-<seq>.parquet` inside the batch folder.
-///
-/// # Errors
-/// As [`batch_dir`].
-pub fn part_path(results_dir: &Path, batch_id: &str, table: &str, seq: u64) -> Result<PathBuf, WorkerError> {
-    Ok(batch_dir(results_dir, batch_id)?
-        .join("parts")
-        .join(format!("{table}-{seq:08}.parquet")))
-}
 
 fn io(path: &Path) -> impl FnOnce(std::io::Error) -> WorkerError + '_ {
     move |source| WorkerError::Io {

@@ -5,7 +5,7 @@ use crate::rows::{self, build_row, CaseRow};
 use std::panic::{catch_unwind, AssertUnwindSafe};
 use thermosieve_engine::structures::DefaultPhase;
 use thermosieve_engine::{species, Screener, TemperatureGrid};
-use thermosieve_queue::{BatchSpec, CaseInput};
+use thermosieve_model::{BatchSpec, CaseInput};
 
 /// Grids kept per processor; batches of one service nearly always share one grid.
 const SCREENERS_KEPT: usize = 4;

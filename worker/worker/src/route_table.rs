@@ -10,13 +10,15 @@
 //! cases parts of every chunk it appears in, and its one row replaces the fragments' rows. That
 //! only happens for that input error.
 
-use crate::parts::{part_path, read_parquet, read_parquet_columns};
+use crate::parts::{read_parquet, read_parquet_columns};
 use crate::rows;
 use crate::WorkerError;
 use polars::prelude::*;
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 use thermosieve_engine::routes::{ranks, summarise, RouteScore, RouteStep, RouteSummary};
+use thermosieve_model::part_path;
+use thermosieve_model::Table;
 
 /// Marks a part row that is a later fragment of a route seen in an earlier chunk.
 const FRAGMENT: u32 = u32::MAX;
@@ -47,8 +49,8 @@ impl<'a> RouteTable<'a> {
         }
     }
 
-    fn part(&self, table: &str, seq: u64) -> Result<PathBuf, WorkerError> {
-        part_path(self.results_dir, self.batch_id, table, seq)
+    fn part(&self, table: Table, seq: u64) -> Result<PathBuf, WorkerError> {
+        Ok(part_path(self.results_dir, self.batch_id, table, seq)?)
     }
 
     /// Read the scores of chunk `seq`'s routes part.
@@ -56,12 +58,12 @@ impl<'a> RouteTable<'a> {
     /// # Errors
     /// `MissingPart`, Polars and I/O errors.
     pub fn add(&mut self, seq: u64) -> Result<(), WorkerError> {
-        let path = self.part("routes", seq)?;
+        let path = self.part(Table::Routes, seq)?;
         if !path.exists() {
             return Err(WorkerError::MissingPart {
                 batch_id: self.batch_id.to_string(),
                 seq,
-                table: "routes".into(),
+                table: Table::Routes.stem(),
             });
         }
         let scores = rows::route_scores(&read_parquet_columns(&path, &rows::ROUTE_SCORE_COLUMNS)?)?;
@@ -92,7 +94,7 @@ impl<'a> RouteTable<'a> {
     fn whole(&self, route_id: &str, chunks: &[u64]) -> Result<RouteSummary, WorkerError> {
         let frames = chunks
             .iter()
-            .map(|&seq| read_parquet_columns(&self.part("cases", seq)?, &rows::ROUTE_STEP_COLUMNS))
+            .map(|&seq| read_parquet_columns(&self.part(Table::Cases, seq)?, &rows::ROUTE_STEP_COLUMNS))
             .collect::<Result<Vec<DataFrame>, WorkerError>>()?;
         let mut steps: Vec<RouteStep> = Vec::new();
         for df in &frames {
@@ -125,7 +127,7 @@ impl<'a> RouteTable<'a> {
         self.index = HashMap::new();
         let ranks = ranks(&self.scores);
         for (seq, at) in &self.parts {
-            let mut df = read_parquet(&self.part("routes", *seq)?)?;
+            let mut df = read_parquet(&self.part(Table::Routes, *seq)?)?;
             let keep = |i: &u32| *i != FRAGMENT && !self.split.contains_key(i);
             let rank: Vec<u32> = at.iter().map(|&i| if keep(&i) { ranks[i as usize] as u32 } else { 0 }).collect();
             df.with_column(Column::new("rank".into(), rank))?;

@@ -16,7 +16,7 @@ use thermosieve_engine::routes::{roll_up, HeatPerProduct, RouteScore, RouteStep,
 use thermosieve_engine::screen::Prepared;
 use thermosieve_engine::species::{Origin, T_REF_K};
 use thermosieve_engine::{ScreenError, Screened, ThermoPoint};
-use thermosieve_queue::{CaseInput, CONDITION_FIELDS};
+use thermosieve_model::{CaseInput, CONDITION_FIELDS};
 
 /// `status` of a case row.
 pub const STATUS_OK: &str = "ok";
@@ -52,7 +52,7 @@ pub struct CaseRow {
     pub reaction: String,
     pub phase: Option<String>,
     /// The case's process conditions after batch defaults, in [`CONDITION_FIELDS`] order.
-    pub conditions: [Option<f64>; thermosieve_queue::CONDITION_COUNT],
+    pub conditions: [Option<f64>; thermosieve_model::CONDITION_COUNT],
     /// Other condition columns, as a JSON object (name → text); `None` when there are none.
     pub conditions_extra_json: Option<String>,
     /// 1-based input row (0 unknown).
@@ -106,7 +106,7 @@ pub struct ProcessColumns {
 /// "all charged at once": it means batch, not an invalid semi-batch. Only a positive dosing time
 /// makes a step semi-batch; an accumulated fraction on a batch step is ignored (X_acc = 1, noted
 /// by the engine), so a batch step's MTSR is never lowered by it.
-pub fn process_conditions(c: &thermosieve_queue::Conditions) -> ProcessConditions {
+pub fn process_conditions(c: &thermosieve_model::Conditions) -> ProcessConditions {
     let dosing = c.dosing_time_h.filter(|&h| h != 0.0);
     // A negative time stays semi-batch so that the engine's range check rejects it.
     let operation = c.dosing_time_h.map(|h| {
@@ -195,7 +195,7 @@ pub fn missing_reaction_message(case: &CaseInput) -> String {
 }
 
 /// The row of one case. `conditions` are the case's conditions merged with the batch defaults.
-pub fn build_row(case: &CaseInput, conditions: &thermosieve_queue::Conditions, result: Result<Screened, String>) -> CaseRow {
+pub fn build_row(case: &CaseInput, conditions: &thermosieve_model::Conditions, result: Result<Screened, String>) -> CaseRow {
     let mut row = CaseRow {
         case_id: case.case_id.clone(),
         route_id: case.route_id.clone(),
@@ -753,7 +753,7 @@ mod tests {
         // Processes, 2008, ch. 3, from memory): an accumulated fraction on a step charged at once
         // must not lower it.
         let with = |dosing: Option<f64>, acc: Option<f64>| {
-            process_conditions(&thermosieve_queue::Conditions {
+            process_conditions(&thermosieve_model::Conditions {
                 dosing_time_h: dosing,
                 accumulation_fraction: acc,
                 ..Default::default()

@@ -9,7 +9,7 @@
 //! reclaimed by another after `reclaim_idle`.
 
 use crate::finalize::{finalize, remove_parts, Manifest};
-use crate::parts::{part_path, write_part};
+use crate::parts::write_part;
 use crate::process::ChunkProcessor;
 use crate::rows::{self, build_row};
 use crate::WorkerError;
@@ -18,7 +18,10 @@ use std::future::Future;
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::time::{Duration, Instant};
-use thermosieve_queue::{BatchSpec, BatchState, Chunk, ChunkReport, Delivery, Finalized, Progress, Queue, QueueError, Task};
+use thermosieve_model::part_path;
+use thermosieve_model::Table;
+use thermosieve_model::{BatchSpec, BatchState, Chunk, ChunkReport, Progress, Task};
+use thermosieve_queue::{Delivery, Finalized, Queue, QueueError};
 use tokio::sync::{oneshot, watch};
 
 /// Worker settings.
@@ -117,16 +120,22 @@ fn write_parts(results_dir: &Path, spec: &BatchSpec, seq: u64, cases: &[rows::Ca
     let errors = cases.iter().filter(|r| !r.ok).count() as u64;
     // Trends, species and routes first: the cases part is what the finalizer checks for, so it
     // lands last.
-    write_part(&part_path(results_dir, &spec.batch_id, "trends", seq)?, &rows::trends_frame(cases)?)?;
     write_part(
-        &part_path(results_dir, &spec.batch_id, "species", seq)?,
+        &part_path(results_dir, &spec.batch_id, Table::Trends, seq)?,
+        &rows::trends_frame(cases)?,
+    )?;
+    write_part(
+        &part_path(results_dir, &spec.batch_id, Table::Species, seq)?,
         &rows::species_frame(cases)?,
     )?;
     write_part(
-        &part_path(results_dir, &spec.batch_id, "routes", seq)?,
+        &part_path(results_dir, &spec.batch_id, Table::Routes, seq)?,
         &rows::routes_frame(&rows::chunk_routes(cases))?,
     )?;
-    write_part(&part_path(results_dir, &spec.batch_id, "cases", seq)?, &rows::cases_frame(cases)?)?;
+    write_part(
+        &part_path(results_dir, &spec.batch_id, Table::Cases, seq)?,
+        &rows::cases_frame(cases)?,
+    )?;
     Ok(ChunkReport {
         cases: cases.len() as u64,
         errors,
@@ -254,7 +263,7 @@ fn leftover_candidates(results_dir: &Path) -> Vec<String> {
     entries
         .flatten()
         .filter_map(|e| e.file_name().to_str().map(str::to_string))
-        .filter(|id| crate::parts::batch_dir(results_dir, id).is_ok())
+        .filter(|id| thermosieve_model::batch_dir(results_dir, id).is_ok())
         .filter(|id| {
             let dir = results_dir.join(id);
             dir.join("parts").is_dir() || !temporaries(&dir).is_empty()

@@ -5,12 +5,14 @@
 #![allow(clippy::unwrap_used, reason = "test helpers: a failed unwrap is a failed test")]
 
 use std::path::Path;
-use thermosieve_queue::{BatchSpec, BatchState, CaseInput, Chunk, Conditions, Progress};
+use thermosieve_model::batch_dir;
+use thermosieve_model::Table;
+use thermosieve_model::{BatchSpec, BatchState, CaseInput, Chunk, Conditions, Progress};
 use thermosieve_worker::finalize::{finalize, remove_parts};
-use thermosieve_worker::parts::{batch_dir, read_parquet};
+use thermosieve_worker::parts::read_parquet;
 use thermosieve_worker::process::ChunkProcessor;
 use thermosieve_worker::run::commit_chunk;
-use thermosieve_worker::{WorkerError, CASES_FILE, MANIFEST_FILE, SPECIES_FILE};
+use thermosieve_worker::WorkerError;
 
 const ID: &str = "5eed0000000000000000000000000001";
 
@@ -71,7 +73,7 @@ fn commit_parts(dir: &Path) {
 /// The cases table holds each case once with the measured answer: 2 ΔfH°(H2O, l) =
 /// 2 × −285.830 kJ/mol (CODATA Key Values for Thermodynamics, Cox, Wagman & Medvedev 1989).
 fn assert_whole(dir: &Path) {
-    let cases = read_parquet(&batch_dir(dir, ID).unwrap().join(CASES_FILE)).unwrap();
+    let cases = read_parquet(&batch_dir(dir, ID).unwrap().join(Table::Cases.file_name())).unwrap();
     let id_column = cases.column("case_id").unwrap().str().unwrap();
     let ids: Vec<_> = (0..cases.height())
         .map(|i| id_column.get(i).unwrap_or_default().to_string())
@@ -79,7 +81,7 @@ fn assert_whole(dir: &Path) {
     assert_eq!(ids, ["burn-h2", "burn-co", "burn-h2-again"]);
     let dh = cases.column("delta_h_298_kj_per_mol").unwrap().f64().unwrap().get(0).unwrap();
     assert!((dh + 571.66).abs() < 0.5, "{dh}");
-    let species = read_parquet(&batch_dir(dir, ID).unwrap().join(SPECIES_FILE)).unwrap();
+    let species = read_parquet(&batch_dir(dir, ID).unwrap().join(Table::Species.file_name())).unwrap();
     assert_eq!(species.height(), 5, "{species}");
 }
 
@@ -98,20 +100,20 @@ fn a_finalization_run_again_after_any_crash_point_completes_the_batch() {
 
     // Crash after the manifest, before DONE: the redelivered task recognises the finished run
     // and leaves the tables as they are.
-    let before = std::fs::read(batch.join(CASES_FILE)).unwrap();
+    let before = std::fs::read(batch.join(Table::Cases.file_name())).unwrap();
     let again = finalize(dir, &spec(), &progress()).unwrap();
     assert_eq!(again.timings.finished_unix_ms, first.timings.finished_unix_ms);
-    assert_eq!(std::fs::read(batch.join(CASES_FILE)).unwrap(), before);
+    assert_eq!(std::fs::read(batch.join(Table::Cases.file_name())).unwrap(), before);
 
     // Crash mid-table: the cases table cut short and no manifest yet. Run again: whole tables.
-    std::fs::remove_file(batch.join(MANIFEST_FILE)).unwrap();
-    std::fs::write(batch.join(CASES_FILE), &before[..before.len() / 3]).unwrap();
+    std::fs::remove_file(batch.join(Table::Manifest.file_name())).unwrap();
+    std::fs::write(batch.join(Table::Cases.file_name()), &before[..before.len() / 3]).unwrap();
     finalize(dir, &spec(), &progress()).unwrap();
     assert_whole(dir);
 
     // A manifest whose tables do not match it (a table replaced after it was written) is not
     // taken as finished.
-    std::fs::write(batch.join(CASES_FILE), b"not parquet").unwrap();
+    std::fs::write(batch.join(Table::Cases.file_name()), b"not parquet").unwrap();
     finalize(dir, &spec(), &progress()).unwrap();
     assert_whole(dir);
 
@@ -124,7 +126,7 @@ fn a_finalization_run_again_after_any_crash_point_completes_the_batch() {
 
     // Without parts and without a finished run there is nothing to finalize: an error, never
     // an empty table reported done.
-    std::fs::remove_file(batch.join(MANIFEST_FILE)).unwrap();
+    std::fs::remove_file(batch.join(Table::Manifest.file_name())).unwrap();
     match finalize(dir, &spec(), &progress()) {
         Err(WorkerError::MissingPart { seq: 0, .. }) => {}
         other => panic!("{other:?}"),

@@ -139,7 +139,7 @@ redis.call('XACK', KEYS[1], ARGV[1], ARGV[2])
 redis.call('XDEL', KEYS[1], ARGV[2])
 if redis.call('EXISTS', KEYS[2]) == 0 then return -1 end
 local state = redis.call('HGET', KEYS[2], 'state')
-if state ~= 'done' and state ~= 'failed' and state ~= 'cancelled' then
+if not FINAL[state] then
   redis.call('HSET', KEYS[2], 'state', ARGV[3], 'message', ARGV[4], 'finished_unix_ms', ARGV[5])
 end
 redis.call('EXPIRE', KEYS[2], ARGV[6])
@@ -150,7 +150,7 @@ return 1
 const STOP_LUA: &str = r#"
 if redis.call('EXISTS', KEYS[1]) == 0 then return -1 end
 local state = redis.call('HGET', KEYS[1], 'state')
-if state ~= 'done' and state ~= 'failed' and state ~= 'cancelled' then
+if not FINAL[state] then
   redis.call('HSET', KEYS[1], 'state', ARGV[1], 'message', ARGV[2], 'finished_unix_ms', ARGV[3])
   redis.call('EXPIRE', KEYS[1], ARGV[4])
   redis.call('EXPIRE', KEYS[2], ARGV[4])
@@ -177,12 +177,20 @@ impl RedisQueue {
             )
             .await?;
         let with_finalize = |body: &str| format!("{MAYBE_FINALIZE_LUA}\n{body}");
+        // The final-state rule is the model's (`BatchState::is_final`), handed to the scripts as
+        // a Lua set, not written out again.
+        let final_states: Vec<String> = BatchState::ALL
+            .iter()
+            .filter(|s| s.is_final())
+            .map(|s| format!("['{}'] = true", s.as_str()))
+            .collect();
+        let with_final = |body: &str| format!("local FINAL = {{{}}}\n{body}", final_states.join(", "));
         let scripts = Scripts {
             enqueue: Script::new(ENQUEUE_LUA),
             seal: Script::new(&with_finalize(SEAL_LUA)),
             complete_chunk: Script::new(&with_finalize(COMPLETE_CHUNK_LUA)),
-            finish: Script::new(FINISH_LUA),
-            stop: Script::new(STOP_LUA),
+            finish: Script::new(&with_final(FINISH_LUA)),
+            stop: Script::new(&with_final(STOP_LUA)),
         };
         let q = RedisQueue {
             client,

@@ -4,6 +4,7 @@
 use crate::rows::{self, build_row, CaseRow};
 use std::panic::{catch_unwind, AssertUnwindSafe};
 use thermosieve_engine::structures::DefaultPhase;
+use thermosieve_engine::thermo::GridError;
 use thermosieve_engine::{species, Screener, TemperatureGrid};
 use thermosieve_model::{BatchSpec, CaseInput};
 
@@ -25,12 +26,12 @@ impl ChunkProcessor {
         ChunkProcessor::default()
     }
 
-    fn screener(&mut self, temperatures_k: &[f64]) -> Result<&mut Screener<'static>, String> {
+    fn screener(&mut self, temperatures_k: &[f64]) -> Result<&mut Screener<'static>, GridError> {
         let key = grid_key(temperatures_k);
         let pos = match self.screeners.iter().position(|(k, _)| *k == key) {
             Some(p) => p,
             None => {
-                let grid = TemperatureGrid::new(temperatures_k.to_vec()).map_err(|e| format!("temperature grid: {e}"))?;
+                let grid = TemperatureGrid::new(temperatures_k.to_vec())?;
                 if self.screeners.len() >= SCREENERS_KEPT {
                     self.screeners.remove(0);
                 }
@@ -49,7 +50,7 @@ impl ChunkProcessor {
             let conditions = case.conditions.or_defaults(&spec.default_conditions);
             let result = match (&mut screener, &case.input_error) {
                 (_, Some(e)) => Err(e.clone()),
-                (Err(e), None) => Err(e.clone()),
+                (Err(e), None) => Err(format!("temperature grid: {e}")),
                 (Ok(_), None) if case.reaction.trim().is_empty() => Err(rows::missing_reaction_message(case)),
                 (Ok(s), None) => {
                     // The case's phase is the state of its SMILES and named species; the table

@@ -15,8 +15,8 @@ use clap::Parser;
 use std::path::PathBuf;
 use std::process::{Child, Command, Stdio};
 use std::time::{Duration, Instant};
+use thermosieve_cli::input;
 use thermosieve_engine::{species, Screener, TemperatureGrid};
-use thermosieve_front::{convert, input};
 use thermosieve_model::CaseInput;
 use thermosieve_model::Table;
 use thermosieve_proto::v1 as pb;
@@ -225,7 +225,7 @@ async fn embedded(demo: &[CaseInput], n: usize, threads: usize, chunk_size: usiz
         chunk_size,
         ..Default::default()
     };
-    let out = thermosieve_front::embedded::run_cases(cases(demo, n), options, &dir, threads).await?;
+    let out = thermosieve_cli::embedded::run_cases(cases(demo, n), options, &dir, threads).await?;
     let run_s = t0.elapsed().as_secs_f64();
     let run_cpu = cpu_seconds("self", ticks) - cpu0;
     let rss_mb = vm_hwm_kb(std::process::id()) / 1024;
@@ -345,7 +345,7 @@ async fn main() -> anyhow::Result<()> {
                 ..Default::default()
             })),
         });
-        for message in convert::case_messages(cases(&demo2, n)) {
+        for message in thermosieve_cli::submit::case_messages(cases(&demo2, n)) {
             if tx.blocking_send(message).is_err() {
                 break;
             }

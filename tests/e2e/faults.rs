@@ -161,7 +161,7 @@ async fn a_submission_that_breaks_off_fails_its_batch_and_leaves_no_parts() {
     })
     .await
     .unwrap();
-    for m in convert::case_messages(cases[..300].iter().cloned()) {
+    for m in thermosieve_cli::submit::case_messages(cases[..300].iter().cloned()) {
         tx.send(m).await.unwrap();
     }
     let mut redis = redis::Client::open(svc.redis.url())

@@ -9,11 +9,12 @@ use std::collections::HashMap;
 use std::path::Path;
 use std::sync::Arc;
 use std::time::Duration;
+use thermosieve_cli::input;
 use thermosieve_e2e::*;
 use thermosieve_engine::structures::DefaultPhase;
 use thermosieve_engine::{species, Screener, TemperatureGrid};
 use thermosieve_front::ingest::{batch_spec, BatchOptions, Ingest, IngestLimits};
-use thermosieve_front::{convert, input, Front, FrontConfig};
+use thermosieve_front::{convert, Front, FrontConfig};
 use thermosieve_model::BatchState;
 use thermosieve_proto::v1 as pb;
 use thermosieve_proto::v1::screening_client::ScreeningClient;
@@ -31,7 +32,7 @@ fn demo_cases() -> Vec<thermosieve_model::CaseInput> {
 }
 
 async fn embedded(dir: &Path) -> (DataFrame, DataFrame, DataFrame, DataFrame) {
-    let out = thermosieve_front::embedded::run_cases(demo_cases().into_iter(), BatchOptions::default(), dir, 2)
+    let out = thermosieve_cli::embedded::run_cases(demo_cases().into_iter(), BatchOptions::default(), dir, 2)
         .await
         .expect("embedded run");
     (
@@ -295,7 +296,7 @@ async fn a_route_step_that_comes_back_later_fails_its_route_once() {
         chunk_size: 2,
         ..BatchOptions::default()
     };
-    let out = thermosieve_front::embedded::run_cases(cases.into_iter(), options, dir.path(), 2)
+    let out = thermosieve_cli::embedded::run_cases(cases.into_iter(), options, dir.path(), 2)
         .await
         .expect("embedded run");
     let routes = read_table(&out.batch_dir.join("routes.parquet"));
@@ -427,7 +428,7 @@ async fn submit(
     msgs.extend(single.iter().map(|c| pb::SubmitBatchRequest {
         item: Some(pb::submit_batch_request::Item::Case(convert::case_to_pb(c))),
     }));
-    msgs.extend(convert::case_messages(listed.iter().cloned()));
+    msgs.extend(thermosieve_cli::submit::case_messages(listed.iter().cloned()));
     let r = client.submit_batch(tokio_stream::iter(msgs)).await.expect("submit").into_inner();
     assert_eq!(r.cases_received, cases.len() as u64);
     r.batch_id
@@ -809,7 +810,7 @@ fn assert_phase_results(cases: &DataFrame, path: &str) {
 async fn the_phase_asked_reaches_the_engine_on_every_path() {
     // Embedded.
     let dir = tempfile::tempdir().unwrap();
-    let out = thermosieve_front::embedded::run_cases(phase_cases().into_iter(), BatchOptions::default(), dir.path(), 1)
+    let out = thermosieve_cli::embedded::run_cases(phase_cases().into_iter(), BatchOptions::default(), dir.path(), 1)
         .await
         .expect("embedded run");
     let embedded_cases = read_table(&out.batch_dir.join("cases.parquet"));

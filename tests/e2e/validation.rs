@@ -90,7 +90,7 @@ fn table_rows(df: &DataFrame) -> Vec<(String, String, String, Option<f64>)> {
 #[tokio::test(flavor = "multi_thread", worker_threads = 2)]
 async fn every_path_applies_the_same_input_checks() {
     let dir = tempfile::tempdir().unwrap();
-    let out = thermosieve_front::embedded::run_cases(cases().into_iter(), BatchOptions::default(), dir.path(), 1)
+    let out = thermosieve_cli::embedded::run_cases(cases().into_iter(), BatchOptions::default(), dir.path(), 1)
         .await
         .expect("embedded run");
     assert_rows("embedded", &table_rows(&read_table(&out.batch_dir.join("cases.parquet"))));

@@ -75,23 +75,6 @@ pub fn case_from_pb(c: pb::Case) -> CaseInput {
     }
 }
 
-/// Cases per `SubmitBatchRequest` a client sends (well under the 4 MiB message limit).
-pub const CASES_PER_MESSAGE: usize = 256;
-
-/// The case messages of a submission: cases in order, [`CASES_PER_MESSAGE`] to a message.
-pub fn case_messages<I: IntoIterator<Item = CaseInput>>(cases: I) -> impl Iterator<Item = pb::SubmitBatchRequest> {
-    let mut cases = cases.into_iter();
-    std::iter::from_fn(move || {
-        let list: Vec<pb::Case> = cases.by_ref().take(CASES_PER_MESSAGE).map(|c| case_to_pb(&c)).collect();
-        if list.is_empty() {
-            return None;
-        }
-        Some(pb::SubmitBatchRequest {
-            item: Some(pb::submit_batch_request::Item::Cases(pb::CaseList { cases: list })),
-        })
-    })
-}
-
 /// A model case on the wire (the CLI's `submit`).
 pub fn case_to_pb(c: &CaseInput) -> pb::Case {
     pb::Case {

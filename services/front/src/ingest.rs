@@ -331,7 +331,7 @@ pub fn validate_case(case: &mut CaseInput) {
         Some(e)
     } else if case.step == Some(0) {
         Some("column step: expected a whole number ≥ 1, got 0".to_string())
-    } else if let Some(p) = case.phase.as_deref().filter(|p| !crate::input::PHASES.contains(p)) {
+    } else if let Some(p) = case.phase.as_deref().filter(|p| !thermosieve_model::PHASES.contains(p)) {
         Some(format!("column phase: expected one of gas, liquid, solid, standard, got {p:?}"))
     } else if !ranges.is_empty() {
         Some(format!("conditions: {}", ranges.join("; ")))

@@ -148,6 +148,10 @@ impl Conditions {
     }
 }
 
+/// Phases a case may name (`phase` column, `Case.phase`): the state its SMILES and named
+/// species take (`standard`: the stable state at 298.15 K).
+pub const PHASES: [&str; 4] = ["gas", "liquid", "solid", "standard"];
+
 /// One case as the queue carries it: already validated by the front, or carrying the reason it
 /// is an error (`input_error`), so that it still gets its row.
 #[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]

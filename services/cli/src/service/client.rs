@@ -80,7 +80,7 @@ pub(super) async fn submit(a: SubmitArgs) -> anyhow::Result<()> {
         {
             return;
         }
-        for message in convert::case_messages(cases) {
+        for message in thermosieve_cli::submit::case_messages(cases) {
             if tx.blocking_send(message).is_err() {
                 return;
             }

@@ -12,7 +12,7 @@ pub(super) async fn run(a: RunArgs) -> anyhow::Result<()> {
     };
     std::fs::create_dir_all(&a.out).with_context(|| format!("creating {}", a.out.display()))?;
     let t0 = std::time::Instant::now();
-    let outcome = thermosieve_front::embedded::run_cases(cases, options, &a.out, threads(a.threads))
+    let outcome = thermosieve_cli::embedded::run_cases(cases, options, &a.out, threads(a.threads))
         .await
         .map_err(|e| match e {
             thermosieve_front::FrontError::InvalidArgument { field, reason } => {

@@ -16,7 +16,7 @@ use std::collections::BTreeMap;
 use std::fs::File;
 use std::io::{BufRead, BufReader};
 use std::path::{Path, PathBuf};
-use thermosieve_model::{CaseInput, ConditionField, Conditions, CONDITIONS};
+use thermosieve_model::{CaseInput, ConditionField, Conditions, CONDITIONS, PHASES};
 
 /// Input formats.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -72,9 +72,6 @@ pub fn condition_columns() -> impl Iterator<Item = (&'static str, &'static Condi
         .iter()
         .flat_map(|f| std::iter::once((f.name, f, false)).chain(f.celsius_column.map(|c| (c, f, true))))
 }
-
-/// Phases accepted in the `phase` column.
-pub const PHASES: [&str; 4] = ["gas", "liquid", "solid", "standard"];
 
 /// Turn one row into a case. `get` returns a cell (trimmed, `None` when empty); `columns` lists
 /// the row's column names (for the extra conditions).

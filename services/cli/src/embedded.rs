@@ -2,11 +2,11 @@
 //! `thermosieve run` command and the tests use it; it goes through the same ingest, queue
 //! semantics, worker and finalizer as the service.
 
-use crate::error::FrontError;
-use crate::ingest::{batch_spec, BatchOptions, Ingest, IngestLimits, Submitted};
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::time::Duration;
+use thermosieve_front::ingest::{batch_spec, BatchOptions, Ingest, IngestLimits, Submitted};
+use thermosieve_front::FrontError;
 use thermosieve_model::{BatchState, CaseInput, Progress};
 use thermosieve_queue::{MemoryQueue, Queue};
 use thermosieve_worker::{WorkerConfig, WorkerStats};

@@ -116,13 +116,13 @@ fn library() -> &'static Library {
 }
 
 impl Library {
-    fn parse(text: &str) -> Result<Library, String> {
+    fn parse(text: &str) -> Result<Library, crate::tsv::DataError> {
         let t = crate::tsv::read(text, "benson_groups.tsv");
         let mut lib = Library {
             values: Map::default(),
             remaps: Map::default(),
         };
-        let num = |row: &crate::tsv::Row, c: &str| -> Result<Option<f64>, String> {
+        let num = |row: &crate::tsv::Row, c: &str| -> Result<Option<f64>, crate::tsv::DataError> {
             let v = row.get(c)?.trim();
             if v.is_empty() {
                 return Ok(None);

@@ -41,6 +41,7 @@ pub mod species;
 pub mod structures;
 pub mod thermo;
 mod tsv;
+pub use tsv::DataError;
 
 pub use process::{evaluate as evaluate_process, CaseProcess, ProcessConditions, ProcessError};
 pub use routes::{ranks, roll_up, summarise, RouteScore, RouteStep, RouteSummary, StepFacts};

@@ -15,6 +15,7 @@
 //! for the name index.
 
 use crate::smiles::Molecule;
+use crate::tsv::DataError;
 use std::borrow::Cow;
 use std::collections::HashMap;
 use std::sync::{Mutex, OnceLock};
@@ -129,8 +130,8 @@ impl Names {
     /// `boiling_source`.
     ///
     /// # Errors
-    /// A message naming the line for a malformed row.
-    pub fn from_tsv(tsv: &'static str) -> Result<Names, String> {
+    /// [`crate::DataError`] naming the line for a malformed row.
+    pub fn from_tsv(tsv: &'static str) -> Result<Names, DataError> {
         let mut provenance = String::new();
         let mut header: Option<Vec<&str>> = None;
         let mut compounds = Vec::new();
@@ -148,15 +149,18 @@ impl Names {
                 header = Some(fields);
                 continue;
             };
-            let err = |what: &str| format!("names.tsv line {}: {what}", i + 1);
-            let col = |name: &str| -> Result<&'static str, String> {
-                let k = h
-                    .iter()
-                    .position(|c| *c == name)
-                    .ok_or_else(|| format!("names.tsv: no column {name}"))?;
+            let err = |what: &str| DataError {
+                place: format!("names.tsv line {}", i + 1),
+                reason: what.to_string(),
+            };
+            let col = |name: &str| -> Result<&'static str, DataError> {
+                let k = h.iter().position(|c| *c == name).ok_or_else(|| DataError {
+                    place: "names.tsv".into(),
+                    reason: format!("no column {name}"),
+                })?;
                 fields.get(k).copied().ok_or_else(|| err(&format!("missing {name}")))
             };
-            let point = |v: &str, src: &str| -> Result<Option<(f64, &'static str)>, String> {
+            let point = |v: &str, src: &str| -> Result<Option<(f64, &'static str)>, DataError> {
                 let t = col(v)?;
                 if t.is_empty() {
                     return Ok(None);

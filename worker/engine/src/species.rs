@@ -14,6 +14,7 @@
 //! records of one compound form a polymorph series, and the one valid at 298.15 K is the reference.
 
 use crate::formula::{parse_species, Formula, Phase, SpeciesSpec};
+use crate::tsv::DataError;
 use std::collections::HashMap;
 use std::sync::OnceLock;
 
@@ -435,7 +436,7 @@ pub fn bundled() -> &'static Table {
 }
 
 /// Append the records of one table in the `nasa_species.tsv` layout.
-fn parse_records(tsv: &str, source_name: &str, records: &mut Vec<Record>, provenance: &mut String) -> Result<(), String> {
+fn parse_records(tsv: &str, source_name: &str, records: &mut Vec<Record>, provenance: &mut String) -> Result<(), DataError> {
     let table = crate::tsv::read(tsv, source_name);
     provenance.push_str(&table.comments);
     for row in table.rows() {
@@ -452,8 +453,8 @@ fn parse_records(tsv: &str, source_name: &str, records: &mut Vec<Record>, proven
             Ok(f) => f,
             // Fractional compositions (non-stoichiometric solids) cannot be balanced in
             // integers, and deuterium is not an element of the table: leave those out.
-            Err(e) if e.starts_with("non-integer") || e.contains("'D'") => continue,
-            Err(e) => return Err(err(&e)),
+            Err(CompositionError::NonInteger | CompositionError::NotAnElement) => continue,
+            Err(e) => return Err(err(&e.to_string())),
         };
         let nasa7 = match col("model")? {
             "nasa9" => false,
@@ -509,7 +510,7 @@ fn parse_records(tsv: &str, source_name: &str, records: &mut Vec<Record>, proven
 }
 
 /// Set ΔfH° uncertainties from an overlay keyed by record name.
-fn apply_uncertainties(tsv: &str, records: &mut [Record], provenance: &mut String) -> Result<(), String> {
+fn apply_uncertainties(tsv: &str, records: &mut [Record], provenance: &mut String) -> Result<(), DataError> {
     let by_name: HashMap<String, usize> = records.iter().enumerate().map(|(k, r)| (r.name.clone(), k)).collect();
     let table = crate::tsv::read(tsv, "uncertainty overlay");
     provenance.push_str(&table.comments);
@@ -540,13 +541,26 @@ fn form_matches(form: &str, tag: &str) -> bool {
     tags.contains(&tag)
 }
 
-fn parse_composition(s: &str, charge: i32) -> Result<Formula, String> {
+/// Why a record's composition cell does not give a formula.
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
+enum CompositionError {
+    #[error("composition {0:?}: expected `El:n` pairs with numbers")]
+    Malformed(String),
+    /// A non-stoichiometric solid: no integer balance is possible.
+    #[error("non-integer composition")]
+    NonInteger,
+    /// A symbol the element table does not hold (deuterium `D`).
+    #[error("an element the table does not hold")]
+    NotAnElement,
+}
+
+fn parse_composition(s: &str, charge: i32) -> Result<Formula, CompositionError> {
     let mut text = String::new();
     for part in s.split_whitespace() {
-        let (el, n) = part.split_once(':').ok_or_else(|| format!("bad composition {s:?}"))?;
-        let n: f64 = n.parse().map_err(|_| format!("bad count in {s:?}"))?;
+        let (el, n) = part.split_once(':').ok_or_else(|| CompositionError::Malformed(s.to_string()))?;
+        let n: f64 = n.parse().map_err(|_| CompositionError::Malformed(s.to_string()))?;
         if n.fract() != 0.0 {
-            return Err(format!("non-integer composition {s:?}"));
+            return Err(CompositionError::NonInteger);
         }
         text.push_str(el);
         text.push_str(&(n as u64).to_string());
@@ -554,7 +568,10 @@ fn parse_composition(s: &str, charge: i32) -> Result<Formula, String> {
     if text.is_empty() {
         return Ok(Formula { atoms: Vec::new(), charge });
     }
-    let mut f = parse_species(&text, 0).map_err(|e| e.to_string())?.formula.ok_or("no formula")?;
+    let mut f = parse_species(&text, 0)
+        .map_err(|_| CompositionError::NotAnElement)?
+        .formula
+        .ok_or_else(|| CompositionError::Malformed(s.to_string()))?;
     f.charge = charge;
     Ok(f)
 }
@@ -568,8 +585,8 @@ impl Table {
     /// unless a `source` column does.
     ///
     /// # Errors
-    /// A message naming the line when a row is malformed.
-    pub fn from_tsv(tsv: &str, source_name: &str) -> Result<Table, String> {
+    /// [`crate::DataError`] naming the line when a row is malformed.
+    pub fn from_tsv(tsv: &str, source_name: &str) -> Result<Table, DataError> {
         Table::from_sources(&[(tsv, source_name)], None)
     }
 
@@ -578,8 +595,8 @@ impl Table {
     /// `atct_uncertainty_kj_per_mol` columns).
     ///
     /// # Errors
-    /// A message naming the file and line when a row is malformed.
-    pub fn from_sources(tables: &[(&str, &str)], uncertainties: Option<&str>) -> Result<Table, String> {
+    /// [`crate::DataError`] naming the file and line when a row is malformed.
+    pub fn from_sources(tables: &[(&str, &str)], uncertainties: Option<&str>) -> Result<Table, DataError> {
         let mut provenance = String::new();
         let mut records = Vec::new();
         let mut sources = Vec::new();

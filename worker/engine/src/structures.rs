@@ -94,8 +94,8 @@ impl Structures {
     /// Parse the `structures.tsv` layout: `name`, `smiles` columns (others are checks).
     ///
     /// # Errors
-    /// A message naming the line for a row that does not parse.
-    pub fn from_tsv(tsv: &str) -> Result<Structures, String> {
+    /// [`crate::DataError`] naming the line for a row that does not parse.
+    pub fn from_tsv(tsv: &str) -> Result<Structures, crate::tsv::DataError> {
         let table = crate::tsv::read(tsv, "structures.tsv");
         let provenance = table.comments.clone();
         let mut by_key: HashMap<String, Vec<String>> = HashMap::new();

@@ -1,6 +1,16 @@
 //! The layout every bundled data file shares: `#` comment lines (generator, versions, terms),
 //! one header row, then tab-separated rows. Read once, looked up by column name.
 
+/// A bundled data file that does not read: where (file, and line when a row is at fault) and
+/// what is wrong.
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
+#[error("{place}: {reason}")]
+pub struct DataError {
+    /// `file` or `file line N`.
+    pub place: String,
+    pub reason: String,
+}
+
 /// A parsed data file.
 pub struct Tsv<'a> {
     /// The comment lines, without `#`, one per line.
@@ -56,22 +66,20 @@ impl<'a> Row<'_, 'a> {
     /// The cell in column `name`.
     ///
     /// # Errors
-    /// A message naming the file and line when the column or the cell is missing.
-    pub fn get(&self, name: &str) -> Result<&'a str, String> {
-        let k = self
-            .tsv
-            .header
-            .iter()
-            .position(|c| *c == name)
-            .ok_or_else(|| format!("{}: no column {name}", self.tsv.file))?;
-        self.fields
-            .get(k)
-            .copied()
-            .ok_or_else(|| format!("{} line {}: missing {name}", self.tsv.file, self.line))
+    /// [`DataError`] naming the file (and line) when the column or the cell is missing.
+    pub fn get(&self, name: &str) -> Result<&'a str, DataError> {
+        let k = self.tsv.header.iter().position(|c| *c == name).ok_or_else(|| DataError {
+            place: self.tsv.file.to_string(),
+            reason: format!("no column {name}"),
+        })?;
+        self.fields.get(k).copied().ok_or_else(|| self.error(&format!("missing {name}")))
     }
 
-    /// An error message about this row.
-    pub fn error(&self, what: &str) -> String {
-        format!("{} line {}: {what}", self.tsv.file, self.line)
+    /// An error about this row.
+    pub fn error(&self, what: &str) -> DataError {
+        DataError {
+            place: format!("{} line {}", self.tsv.file, self.line),
+            reason: what.to_string(),
+        }
     }
 }

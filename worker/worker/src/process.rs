@@ -1,7 +1,7 @@
 //! The engine applied to cases: one [`ChunkProcessor`] per engine thread, holding a
 //! [`Screener`] per temperature grid so the species cache carries over from chunk to chunk.
 
-use crate::rows::{self, build_row, CaseRow};
+use crate::rows::{build_row, CaseError, CaseRow};
 use std::panic::{catch_unwind, AssertUnwindSafe};
 use thermosieve_engine::structures::DefaultPhase;
 use thermosieve_engine::thermo::GridError;
@@ -49,9 +49,9 @@ impl ChunkProcessor {
         for case in cases {
             let conditions = case.conditions.or_defaults(&spec.default_conditions);
             let result = match (&mut screener, &case.input_error) {
-                (_, Some(e)) => Err(e.clone()),
-                (Err(e), None) => Err(format!("temperature grid: {e}")),
-                (Ok(_), None) if case.reaction.trim().is_empty() => Err(rows::missing_reaction_message(case)),
+                (_, Some(e)) => Err(CaseError::Input(e.clone())),
+                (Err(e), None) => Err(CaseError::Grid(e.clone())),
+                (Ok(_), None) if case.reaction.trim().is_empty() => Err(CaseError::MissingReaction),
                 (Ok(s), None) => {
                     // The case's phase is the state of its SMILES and named species; the table
                     // readers and the gRPC conversion have already refused unknown phase words.
@@ -59,11 +59,8 @@ impl ChunkProcessor {
                     // A panic in the engine must cost one case, not the chunk or the worker.
                     match catch_unwind(AssertUnwindSafe(|| s.screen_with(&case.reaction, phase))) {
                         Ok(Ok(screened)) => Ok(screened),
-                        Ok(Err(e)) => Err(rows::engine_error_message(case, &e)),
-                        Err(_) => Err(format!(
-                            "internal error: the engine panicked on this reaction ({:?}); please report it",
-                            case.reaction
-                        )),
+                        Ok(Err(e)) => Err(CaseError::Engine(e)),
+                        Err(_) => Err(CaseError::Panicked),
                     }
                 }
             };

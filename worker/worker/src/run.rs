@@ -11,7 +11,7 @@
 use crate::finalize::{finalize, remove_parts, Manifest};
 use crate::parts::write_part;
 use crate::process::ChunkProcessor;
-use crate::rows::{self, build_row};
+use crate::rows::{self, build_row, CaseError};
 use crate::WorkerError;
 use std::collections::HashMap;
 use std::future::Future;
@@ -110,7 +110,13 @@ pub fn commit_dead_chunk(results_dir: &Path, spec: &BatchSpec, chunk: &Chunk, re
     let cases: Vec<rows::CaseRow> = chunk
         .cases
         .iter()
-        .map(|c| build_row(c, &c.conditions.or_defaults(&spec.default_conditions), Err(reason.to_string())))
+        .map(|c| {
+            build_row(
+                c,
+                &c.conditions.or_defaults(&spec.default_conditions),
+                Err(CaseError::DeadLettered(reason.to_string())),
+            )
+        })
         .collect();
     crate::metrics::registry().errors_dead_letter.add(cases.len() as u64);
     write_parts(results_dir, spec, chunk.seq, &cases, true)

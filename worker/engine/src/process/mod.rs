@@ -415,7 +415,7 @@ pub struct CaseProcess {
     pub estimated_species: Vec<String>,
     /// What a decomposition of the reaction mass after reaction could release, or why it cannot
     /// be said.
-    pub decomposition: Result<MassDecomposition, String>,
+    pub decomposition: Result<MassDecomposition, MassDecompositionError>,
     /// Things to know about this result (out-of-range data, process above MTT, ...).
     pub notes: Vec<String>,
     /// [`CAUTION`], carried with every result.

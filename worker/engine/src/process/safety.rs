@@ -106,6 +106,15 @@ pub const EXPLOSIVE_SCREENING_KJ_PER_KG: f64 = 500.0;
 /// The same Appendix: below 300 J/g a substance is screened out as a self-reactive candidate.
 pub const SELF_REACTIVE_SCREENING_KJ_PER_KG: f64 = 300.0;
 
+/// Why the decomposition heat of the mass after reaction cannot be said: a species of it has
+/// none.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[error("{species}: no decomposition heat ({source})")]
+pub struct MassDecompositionError {
+    pub species: String,
+    pub source: crate::decomposition::DecompositionError,
+}
+
 /// The reaction mass after reaction, as a decomposition hazard.
 #[derive(Clone, Debug, PartialEq)]
 pub struct MassDecomposition {
@@ -125,7 +134,7 @@ pub struct MassDecomposition {
     pub flags: Vec<String>,
 }
 
-pub(super) fn mass_decomposition(screened: &Screened, c: &EffectiveConditions) -> Result<MassDecomposition, String> {
+pub(super) fn mass_decomposition(screened: &Screened, c: &EffectiveConditions) -> Result<MassDecomposition, MassDecompositionError> {
     // After a batch step the mass is its products; a semi-batch step may still hold the
     // accumulated fraction of its reagents unreacted, so the larger of the two mixtures counts.
     let reagents_count = c.operation == Operation::SemiBatch && c.accumulation_fraction > 0.0;
@@ -138,10 +147,10 @@ pub(super) fn mass_decomposition(screened: &Screened, c: &EffectiveConditions) -
         if nu < 0.0 && !reagents_count {
             continue;
         }
-        let d = p
-            .decomposition
-            .as_ref()
-            .map_err(|e| format!("{}: no decomposition heat ({e})", p.resolved.label))?;
+        let d = p.decomposition.as_ref().map_err(|e| MassDecompositionError {
+            species: p.resolved.label.clone(),
+            source: e.clone(),
+        })?;
         if nu > 0.0 {
             products += nu * d.heat_kj_per_mol;
         } else {

@@ -21,6 +21,7 @@ use thermosieve_engine::process::{self, Assessment, CaseProcess, CriticalityClas
 use thermosieve_engine::routes::{roll_up, HeatPerProduct, RouteScore, RouteStep, RouteSummary, StepFacts};
 use thermosieve_engine::screen::Prepared;
 use thermosieve_engine::species::{Origin, T_REF_K};
+use thermosieve_engine::thermo::GridError;
 use thermosieve_engine::{ScreenError, Screened, ThermoPoint};
 use thermosieve_model::{CaseInput, CONDITION_FIELDS};
 
@@ -180,14 +181,46 @@ fn process_columns(p: &CaseProcess) -> ProcessColumns {
                 v.extend(d.flags.iter().cloned());
                 (!v.is_empty()).then(|| v.join(JOIN))
             }
-            Err(e) => Some(e.clone()),
+            Err(e) => Some(e.to_string()),
         },
     }
 }
 
-/// The message of an engine error for one case, naming the input row and column.
-pub fn engine_error_message(case: &CaseInput, e: &ScreenError) -> String {
-    format!("{}column reaction: {e}", row_prefix(case.row))
+/// Why a case has no result. Its row's `error_message` says it, naming the input row and
+/// column where there is one.
+#[derive(Debug)]
+pub enum CaseError {
+    /// Refused on the way in (table reader, front checks): the message is already complete.
+    Input(String),
+    /// No reaction given.
+    MissingReaction,
+    /// The engine rejected the reaction.
+    Engine(ScreenError),
+    /// The batch's temperature grid is not usable.
+    Grid(GridError),
+    /// The engine panicked on this reaction (one case lost, not the chunk).
+    Panicked,
+    /// Not computed: the chunk was dead-lettered (the reason says why).
+    DeadLettered(String),
+}
+
+impl CaseError {
+    /// The row's `error_message`.
+    pub fn message(&self, case: &CaseInput) -> String {
+        let at = row_prefix(case.row);
+        match self {
+            CaseError::Input(m) | CaseError::DeadLettered(m) => m.clone(),
+            CaseError::MissingReaction => {
+                format!("{at}column reaction: missing (expected a reaction equation such as \"CO(g) + H2O(g) -> CO2(g) + H2(g)\")")
+            }
+            CaseError::Engine(e) => format!("{at}column reaction: {e}"),
+            CaseError::Grid(e) => format!("temperature grid: {e}"),
+            CaseError::Panicked => format!(
+                "internal error: the engine panicked on this reaction ({:?}); please report it",
+                case.reaction
+            ),
+        }
+    }
 }
 
 fn row_prefix(row: u64) -> String {
@@ -198,16 +231,8 @@ fn row_prefix(row: u64) -> String {
     }
 }
 
-/// The message of a case that has no reaction.
-pub fn missing_reaction_message(case: &CaseInput) -> String {
-    format!(
-        "{}column reaction: missing (expected a reaction equation such as \"CO(g) + H2O(g) -> CO2(g) + H2(g)\")",
-        row_prefix(case.row)
-    )
-}
-
 /// The row of one case. `conditions` are the case's conditions merged with the batch defaults.
-pub fn build_row(case: &CaseInput, conditions: &thermosieve_model::Conditions, result: Result<Screened, String>) -> CaseRow {
+pub fn build_row(case: &CaseInput, conditions: &thermosieve_model::Conditions, result: Result<Screened, CaseError>) -> CaseRow {
     let mut row = CaseRow {
         case_id: case.case_id.clone(),
         route_id: case.route_id.clone(),
@@ -236,8 +261,8 @@ pub fn build_row(case: &CaseInput, conditions: &thermosieve_model::Conditions, r
     };
     let s = match result {
         Ok(s) => s,
-        Err(message) => {
-            row.error_message = Some(message);
+        Err(e) => {
+            row.error_message = Some(e.message(case));
             return row;
         }
     };

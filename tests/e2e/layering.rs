@@ -14,16 +14,22 @@ const LAYERS: [(&str, u8); 7] = [
     ("thermosieve-cli", 4),
 ];
 
-#[test]
-fn no_crate_depends_on_a_crate_of_its_own_layer_or_above() {
+/// `cargo metadata` of the workspace, offline, with `extra` arguments.
+fn cargo_metadata(extra: &[&str]) -> serde_json::Value {
     let cargo = std::env::var("CARGO").unwrap_or_else(|_| "cargo".into());
     let out = std::process::Command::new(cargo)
-        .args(["metadata", "--format-version", "1", "--no-deps", "--offline"])
+        .args(["metadata", "--format-version", "1", "--offline"])
+        .args(extra)
         .current_dir(thermosieve_e2e::root())
         .output()
         .expect("cargo metadata runs");
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
-    let meta: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    serde_json::from_slice(&out.stdout).unwrap()
+}
+
+#[test]
+fn no_crate_depends_on_a_crate_of_its_own_layer_or_above() {
+    let meta = cargo_metadata(&["--no-deps"]);
     let layer: BTreeMap<&str, u8> = LAYERS.into_iter().collect();
     let mut checked = 0;
     let mut wrong = Vec::new();
@@ -62,14 +68,7 @@ fn version(v: &str) -> (u32, u32, u32) {
 /// dependency in Cargo.lock declares (a dependency needing a newer compiler breaks the promise).
 #[test]
 fn the_declared_rust_version_covers_every_dependency() {
-    let cargo = std::env::var("CARGO").unwrap_or_else(|_| "cargo".into());
-    let out = std::process::Command::new(cargo)
-        .args(["metadata", "--format-version", "1", "--offline", "--locked"])
-        .current_dir(thermosieve_e2e::root())
-        .output()
-        .expect("cargo metadata runs");
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
-    let meta: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let meta = cargo_metadata(&["--locked"]);
     let members: Vec<&str> = meta["workspace_members"]
         .as_array()
         .unwrap()

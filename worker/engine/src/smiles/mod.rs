@@ -200,6 +200,22 @@ const AROMATIC_SYMBOLS: [(&[u8], Z); 8] = [
 ];
 
 impl Molecule {
+    /// A molecule of these atoms and bonds with its adjacency built; rings, aromaticity and
+    /// ranks are left to the caller's steps.
+    fn from_graph(atoms: Vec<Atom>, bonds: Vec<Bond>) -> Molecule {
+        let mut m = Molecule {
+            atoms,
+            bonds,
+            adj_start: Vec::new(),
+            adjacency: Vec::new(),
+            ring_list: Vec::new(),
+            components: 0,
+            ranked: Ranked::default(),
+        };
+        m.build_adjacency();
+        m
+    }
+
     /// The atoms, hydrogens folded into counts; indices are the graph's vertex numbers.
     pub fn atoms(&self) -> &[Atom] {
         &self.atoms
@@ -287,16 +303,7 @@ impl Molecule {
                 ..*b
             })
             .collect();
-        let mut m = Molecule {
-            atoms,
-            bonds,
-            adj_start: Vec::new(),
-            adjacency: Vec::new(),
-            ring_list: Vec::new(),
-            components: 0,
-            ranked: Ranked::default(),
-        };
-        m.build_adjacency();
+        let mut m = Molecule::from_graph(atoms, bonds);
         m.perceive_rings();
         m.ring_list = m.find_rings(MAX_RING_SIZE);
         m

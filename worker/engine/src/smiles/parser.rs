@@ -26,16 +26,7 @@ impl Molecule {
         if heavy > MAX_HEAVY_ATOMS {
             return err(base, format!("more than {MAX_HEAVY_ATOMS} heavy atoms"));
         }
-        let mut m = Molecule {
-            atoms: p.atoms,
-            bonds: p.bonds,
-            adj_start: Vec::new(),
-            adjacency: Vec::new(),
-            ring_list: Vec::new(),
-            components: 0,
-            ranked: Ranked::default(),
-        };
-        m.build_adjacency();
+        let mut m = Molecule::from_graph(p.atoms, p.bonds);
         m.kekulize()?;
         m.implicit_hydrogens();
         m.charge_separate();

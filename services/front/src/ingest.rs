@@ -251,7 +251,7 @@ impl Ingest {
         let chunk = Chunk {
             batch_id: self.spec.batch_id.clone(),
             seq: self.seq,
-            cases: std::mem::take(&mut self.chunk),
+            cases: std::mem::take(&mut self.chunk).into(),
         };
         // The queue checks its depth and adds in one step; a full queue is waited on up to
         // `enqueue_wait`, then the submission is refused.

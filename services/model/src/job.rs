@@ -3,6 +3,7 @@
 
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
+use std::sync::Arc;
 
 /// The typed process conditions, declared once: field name (units in the name), plausibility
 /// range, what the range means for an error message, and the °C column an input table may use
@@ -98,6 +99,15 @@ macro_rules! declare_conditions {
                 [$(self.$name),*]
             }
 
+            /// The typed fields, each unset one taken from `defaults`; `extra` is left empty
+            /// (no copy of the text map per case: see [`Conditions::extra_json_or_defaults`]).
+            pub fn numbers_or_defaults(&self, defaults: &Conditions) -> Conditions {
+                Conditions {
+                    $($name: self.$name.or(defaults.$name),)*
+                    extra: BTreeMap::new(),
+                }
+            }
+
             /// Mutable access to a typed field by its name in [`CONDITION_FIELDS`].
             pub fn field_mut(&mut self, name: &str) -> Option<&mut Option<f64>> {
                 match name {
@@ -132,19 +142,28 @@ impl Conditions {
 
     /// These conditions with every unset field taken from `defaults`.
     pub fn or_defaults(&self, defaults: &Conditions) -> Conditions {
-        let mut out = self.clone();
-        let given = defaults.values();
-        for (name, d) in CONDITION_FIELDS.iter().zip(given) {
-            if let Some(slot) = out.field_mut(name) {
-                if slot.is_none() {
-                    *slot = d;
-                }
-            }
-        }
+        let mut out = self.numbers_or_defaults(defaults);
+        out.extra = self.extra.clone();
         for (k, v) in &defaults.extra {
             out.extra.entry(k.clone()).or_insert_with(|| v.clone());
         }
         out
+    }
+
+    /// The `extra` map of [`Conditions::or_defaults`] as a JSON object, without building it;
+    /// `None` when it is empty.
+    pub fn extra_json_or_defaults(&self, defaults: &Conditions) -> Option<String> {
+        let json = if defaults.extra.is_empty() {
+            if self.extra.is_empty() {
+                return None;
+            }
+            serde_json::to_string(&self.extra)
+        } else {
+            let mut merged: BTreeMap<&str, &str> = defaults.extra.iter().map(|(k, v)| (k.as_str(), v.as_str())).collect();
+            merged.extend(self.extra.iter().map(|(k, v)| (k.as_str(), v.as_str())));
+            serde_json::to_string(&merged)
+        };
+        json.ok()
     }
 }
 
@@ -197,7 +216,26 @@ pub struct BatchSpec {
 pub struct Chunk {
     pub batch_id: String,
     pub seq: u64,
-    pub cases: Vec<CaseInput>,
+    /// Shared, not copied: the in-process queue, its pending list and the worker slot holding
+    /// a delivery all point at the same cases.
+    #[serde(with = "shared_cases")]
+    pub cases: Arc<[CaseInput]>,
+}
+
+/// `Arc<[CaseInput]>` as a plain JSON list (serde's own `Arc` support needs a feature that
+/// would change every crate's build).
+mod shared_cases {
+    use super::CaseInput;
+    use serde::{Deserialize, Deserializer, Serialize, Serializer};
+    use std::sync::Arc;
+
+    pub fn serialize<S: Serializer>(cases: &Arc<[CaseInput]>, s: S) -> Result<S::Ok, S::Error> {
+        cases.as_ref().serialize(s)
+    }
+
+    pub fn deserialize<'de, D: Deserializer<'de>>(d: D) -> Result<Arc<[CaseInput]>, D::Error> {
+        Vec::<CaseInput>::deserialize(d).map(Arc::from)
+    }
 }
 
 /// What a queue entry asks a worker to do: `{"chunk": {...}}` or `{"finalize": {...}}`.

@@ -740,7 +740,8 @@ mod tests {
                 step: Some(2),
                 row: 3,
                 ..Default::default()
-            }],
+            }]
+            .into(),
         };
         let task: Task = serde_json::from_str(&chunk_payload(&chunk).unwrap()).unwrap();
         assert_eq!(task, Task::Chunk(chunk));

@@ -47,7 +47,6 @@ impl ChunkProcessor {
         let mut case_rows = Vec::with_capacity(cases.len());
         let mut screener = self.screener(&spec.temperatures_k);
         for case in cases {
-            let conditions = case.conditions.or_defaults(&spec.default_conditions);
             let result = match (&mut screener, &case.input_error) {
                 (_, Some(e)) => Err(CaseError::Input(e.clone())),
                 (Err(e), None) => Err(CaseError::Grid(e.clone())),
@@ -64,7 +63,7 @@ impl ChunkProcessor {
                     }
                 }
             };
-            case_rows.push(build_row(case, &conditions, result));
+            case_rows.push(build_row(case, &spec.default_conditions, result));
         }
         case_rows
     }

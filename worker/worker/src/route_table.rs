@@ -14,25 +14,66 @@ use crate::parts::{read_parquet, read_parquet_columns};
 use crate::rows;
 use crate::WorkerError;
 use polars::prelude::*;
+use std::collections::hash_map::{Entry, RandomState};
 use std::collections::HashMap;
+use std::hash::BuildHasher;
 use std::path::{Path, PathBuf};
-use thermosieve_engine::routes::{ranks, summarise, RouteScore, RouteStep, RouteSummary};
+use thermosieve_engine::routes::{summarise, RouteScore, RouteStep, RouteSummary};
 use thermosieve_model::part_path;
 use thermosieve_model::Table;
 
 /// Marks a part row that is a later fragment of a route seen in an earlier chunk.
 const FRAGMENT: u32 = u32::MAX;
 
-/// Pass 1 state.
+/// A route's score keys without its id (the id is kept once, in [`RouteTable::ids`]).
+#[derive(Clone, Copy)]
+struct Keys {
+    failed: bool,
+    class: u8,
+    worst_rise_k: f64,
+    total_heat_kj: f64,
+}
+
+impl Keys {
+    fn of(s: &RouteScore) -> Keys {
+        Keys {
+            failed: s.failed,
+            class: s.class,
+            worst_rise_k: s.worst_rise_k,
+            total_heat_kj: s.total_heat_kj,
+        }
+    }
+
+    /// The engine's score with an empty id (no allocation), for its ordering.
+    fn score(self) -> RouteScore {
+        RouteScore {
+            failed: self.failed,
+            class: self.class,
+            worst_rise_k: self.worst_rise_k,
+            total_heat_kj: self.total_heat_kj,
+            route_id: String::new(),
+        }
+    }
+}
+
+/// Pass 1 state: some 60 bytes per route (keys, the id's bytes and offset, a hash slot), so a
+/// batch of a million routes ranks in about 60 MB.
 pub struct RouteTable<'a> {
     results_dir: &'a Path,
     batch_id: &'a str,
-    /// Score of each route, in first-appearance order.
-    scores: Vec<RouteScore>,
+    /// Score keys of each route, in first-appearance order.
+    keys: Vec<Keys>,
+    /// Every route id, one after the other; route `i` is `ids[ends[i - 1]..ends[i]]`.
+    ids: String,
+    ends: Vec<usize>,
     /// Per chunk: the route index of each row of its routes part ([`FRAGMENT`] for later
     /// fragments).
     parts: Vec<(u64, Vec<u32>)>,
-    index: HashMap<Box<str>, u32>,
+    /// Route index by the hash of its id (the id itself is compared on a hit).
+    index: HashMap<u64, u32>,
+    /// Routes whose id hash is another route's: by id.
+    collided: HashMap<Box<str>, u32>,
+    hasher: RandomState,
     /// Routes seen in more than one chunk: route index → the chunks.
     split: HashMap<u32, Vec<u64>>,
 }
@@ -42,11 +83,47 @@ impl<'a> RouteTable<'a> {
         RouteTable {
             results_dir,
             batch_id,
-            scores: Vec::new(),
+            keys: Vec::new(),
+            ids: String::new(),
+            ends: Vec::new(),
             parts: Vec::new(),
             index: HashMap::new(),
+            collided: HashMap::new(),
+            hasher: RandomState::new(),
             split: HashMap::new(),
         }
+    }
+
+    fn id(&self, i: u32) -> &str {
+        let i = i as usize;
+        let start = if i == 0 { 0 } else { self.ends[i - 1] };
+        &self.ids[start..self.ends[i]]
+    }
+
+    /// The index of the route `id`, if seen.
+    fn find(&self, id: &str, hash: u64) -> Option<u32> {
+        match self.index.get(&hash) {
+            Some(&i) if self.id(i) == id => Some(i),
+            Some(_) => self.collided.get(id).copied(),
+            None => None,
+        }
+    }
+
+    /// Record a new route; returns its index.
+    fn insert(&mut self, score: &RouteScore, hash: u64) -> u32 {
+        let i = self.keys.len() as u32;
+        self.keys.push(Keys::of(score));
+        self.ids.push_str(&score.route_id);
+        self.ends.push(self.ids.len());
+        match self.index.entry(hash) {
+            Entry::Vacant(e) => {
+                e.insert(i);
+            }
+            Entry::Occupied(_) => {
+                self.collided.insert(score.route_id.as_str().into(), i);
+            }
+        }
+        i
     }
 
     fn part(&self, table: Table, seq: u64) -> Result<PathBuf, WorkerError> {
@@ -69,17 +146,13 @@ impl<'a> RouteTable<'a> {
         let scores = rows::route_scores(&read_parquet_columns(&path, &rows::ROUTE_SCORE_COLUMNS)?)?;
         let mut at = Vec::with_capacity(scores.len());
         for score in scores {
-            match self.index.get(score.route_id.as_str()) {
-                Some(&i) => {
+            let hash = self.hasher.hash_one(score.route_id.as_str());
+            match self.find(&score.route_id, hash) {
+                Some(i) => {
                     self.split.entry(i).or_default().push(seq);
                     at.push(FRAGMENT);
                 }
-                None => {
-                    let i = self.scores.len() as u32;
-                    self.index.insert(score.route_id.as_str().into(), i);
-                    self.scores.push(score);
-                    at.push(i);
-                }
+                None => at.push(self.insert(&score, hash)),
             }
         }
         self.parts.push((seq, at));
@@ -87,7 +160,22 @@ impl<'a> RouteTable<'a> {
     }
 
     pub fn routes(&self) -> usize {
-        self.scores.len()
+        self.keys.len()
+    }
+
+    /// The 1-based rank of every route: the engine's order ([`RouteScore::rank_order`]),
+    /// ties broken by id as there.
+    fn ranks(&self) -> Vec<u32> {
+        let mut order: Vec<u32> = (0..self.keys.len() as u32).collect();
+        order.sort_by(|&a, &b| {
+            let (ka, kb) = (self.keys[a as usize], self.keys[b as usize]);
+            ka.score().rank_order(&kb.score()).then_with(|| self.id(a).cmp(self.id(b)))
+        });
+        let mut ranks = vec![0u32; order.len()];
+        for (position, &i) in order.iter().enumerate() {
+            ranks[i as usize] = position as u32 + 1;
+        }
+        ranks
     }
 
     /// The whole of a route that came in several chunks, from the cases parts of those chunks.
@@ -118,18 +206,19 @@ impl<'a> RouteTable<'a> {
             let mut chunks = vec![first_chunk[&i]];
             chunks.extend(later.iter().copied());
             chunks.dedup();
-            let whole = self.whole(&self.scores[i as usize].route_id, &chunks)?;
+            let whole = self.whole(self.id(i), &chunks)?;
             merged.push((i, whole));
         }
         for (i, whole) in &merged {
-            self.scores[*i as usize] = whole.score();
+            self.keys[*i as usize] = Keys::of(&whole.score());
         }
         self.index = HashMap::new();
-        let ranks = ranks(&self.scores);
+        self.collided = HashMap::new();
+        let ranks = self.ranks();
         for (seq, at) in &self.parts {
             let mut df = read_parquet(&self.part(Table::Routes, *seq)?)?;
             let keep = |i: &u32| *i != FRAGMENT && !self.split.contains_key(i);
-            let rank: Vec<u32> = at.iter().map(|&i| if keep(&i) { ranks[i as usize] as u32 } else { 0 }).collect();
+            let rank: Vec<u32> = at.iter().map(|&i| if keep(&i) { ranks[i as usize] } else { 0 }).collect();
             df.with_column(Column::new("rank".into(), rank))?;
             if !at.iter().all(keep) {
                 let mask: BooleanChunked = at.iter().map(keep).collect();
@@ -143,7 +232,7 @@ impl<'a> RouteTable<'a> {
             let mut whole: Vec<RouteSummary> = merged
                 .into_iter()
                 .map(|(i, mut s)| {
-                    s.rank = ranks[i as usize];
+                    s.rank = ranks[i as usize] as usize;
                     s
                 })
                 .collect();

@@ -110,13 +110,7 @@ pub fn commit_dead_chunk(results_dir: &Path, spec: &BatchSpec, chunk: &Chunk, re
     let cases: Vec<rows::CaseRow> = chunk
         .cases
         .iter()
-        .map(|c| {
-            build_row(
-                c,
-                &c.conditions.or_defaults(&spec.default_conditions),
-                Err(CaseError::DeadLettered(reason.to_string())),
-            )
-        })
+        .map(|c| build_row(c, &spec.default_conditions, Err(CaseError::DeadLettered(reason.to_string()))))
         .collect();
     crate::metrics::registry().errors_dead_letter.add(cases.len() as u64);
     write_parts(results_dir, spec, chunk.seq, &cases, true)

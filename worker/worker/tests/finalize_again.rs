@@ -64,7 +64,7 @@ fn commit_parts(dir: &Path) {
         let chunk = Chunk {
             batch_id: ID.into(),
             seq: seq as u64,
-            cases,
+            cases: cases.into(),
         };
         commit_chunk(dir, &mut p, &spec(), &chunk).unwrap();
     }

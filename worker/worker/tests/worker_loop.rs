@@ -30,7 +30,7 @@ fn spec() -> BatchSpec {
 /// One chunk of three combustions, queued and sealed.
 async fn one_chunk(q: &dyn Queue) {
     q.create_batch(&spec()).await.unwrap();
-    let cases = (0..3)
+    let cases: Vec<CaseInput> = (0..3)
         .map(|i| CaseInput {
             case_id: format!("burn-{i}"),
             reaction: "2 H2(g) + O2(g) -> 2 H2O(l)".into(),
@@ -42,7 +42,7 @@ async fn one_chunk(q: &dyn Queue) {
         &Chunk {
             batch_id: ID.into(),
             seq: 0,
-            cases,
+            cases: cases.into(),
         },
         u64::MAX,
     )

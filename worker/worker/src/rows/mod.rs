@@ -231,8 +231,9 @@ fn row_prefix(row: u64) -> String {
     }
 }
 
-/// The row of one case. `conditions` are the case's conditions merged with the batch defaults.
-pub fn build_row(case: &CaseInput, conditions: &thermosieve_model::Conditions, result: Result<Screened, CaseError>) -> CaseRow {
+/// The row of one case; its conditions are merged with the batch's `defaults`.
+pub fn build_row(case: &CaseInput, defaults: &thermosieve_model::Conditions, result: Result<Screened, CaseError>) -> CaseRow {
+    let conditions = &case.conditions.numbers_or_defaults(defaults);
     let mut row = CaseRow {
         case_id: case.case_id.clone(),
         route_id: case.route_id.clone(),
@@ -253,7 +254,7 @@ pub fn build_row(case: &CaseInput, conditions: &thermosieve_model::Conditions, r
         reaction: case.reaction.clone(),
         phase: case.phase.clone(),
         conditions: conditions.values(),
-        conditions_extra_json: (!conditions.extra.is_empty()).then(|| serde_json::to_string(&conditions.extra).unwrap_or_default()),
+        conditions_extra_json: case.conditions.extra_json_or_defaults(defaults),
         input_row: case.row,
         process: ProcessColumns::default(),
         step_facts: None,

@@ -345,3 +345,44 @@ pub fn now_unix_ms() -> u64 {
         .duration_since(std::time::UNIX_EPOCH)
         .map_or(0, |d| d.as_millis() as u64)
 }
+
+#[cfg(test)]
+mod tests {
+    #![allow(clippy::unwrap_used, reason = "tests")]
+    use super::*;
+
+    fn with_extra(pairs: &[(&str, &str)]) -> Conditions {
+        Conditions {
+            extra: pairs.iter().map(|(k, v)| (k.to_string(), v.to_string())).collect(),
+            ..Conditions::default()
+        }
+    }
+
+    #[test]
+    fn the_extra_json_is_that_of_the_merged_map() {
+        let row = with_extra(&[("solvent", "water"), ("reactor", "R-1")]);
+        let defaults = with_extra(&[("solvent", "toluene"), ("site", "B")]);
+        let json = row.extra_json_or_defaults(&defaults).unwrap();
+        assert_eq!(json, serde_json::to_string(&row.or_defaults(&defaults).extra).unwrap());
+        assert_eq!(json, r#"{"reactor":"R-1","site":"B","solvent":"water"}"#);
+        assert_eq!(row.extra_json_or_defaults(&Conditions::default()).unwrap(), r#"{"reactor":"R-1","solvent":"water"}"#);
+        assert_eq!(Conditions::default().extra_json_or_defaults(&Conditions::default()), None);
+    }
+
+    #[test]
+    fn numbers_fall_back_to_the_defaults_without_the_text_map() {
+        let row = Conditions {
+            scale_mol: Some(2.0),
+            ..with_extra(&[("solvent", "water")])
+        };
+        let defaults = Conditions {
+            scale_mol: Some(9.0),
+            pressure_bar: Some(1.5),
+            ..Conditions::default()
+        };
+        let merged = row.numbers_or_defaults(&defaults);
+        assert_eq!((merged.scale_mol, merged.pressure_bar), (Some(2.0), Some(1.5)));
+        assert!(merged.extra.is_empty());
+        assert_eq!(merged.values(), row.or_defaults(&defaults).values());
+    }
+}

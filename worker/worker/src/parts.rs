@@ -108,6 +108,11 @@ fn compress_page(page: Page) -> PolarsResult<CompressedPage> {
     )))
 }
 
+/// Bytes (in memory, before encoding) at which a frame writer closes its row group even short
+/// of [`ROW_GROUP_ROWS`]: 65,536 routes rows are some 80 MB of text, and the frame, its rechunked
+/// copy and its encoded pages were all held at once (the finalizer's peak memory at 2 M cases).
+const ROW_GROUP_BYTES: usize = 8 << 20;
+
 /// A column chunk's compressed pages, handed to the file writer one by one.
 struct PageList {
     pages: std::vec::IntoIter<CompressedPage>,
@@ -129,7 +134,7 @@ impl FallibleStreamingIterator for PageList {
 }
 
 /// A Parquet file written frame by frame (frames gathered into row groups of about
-/// [`ROW_GROUP_ROWS`] rows), single-threaded, with
+/// [`ROW_GROUP_ROWS`] rows or [`ROW_GROUP_BYTES`] bytes), single-threaded, with
 /// plain encoding and zstd level 1. Part files and the tables made from
 /// them share these settings, so the finalizer can copy pages from one into the other.
 pub struct FrameWriter<W: std::io::Write> {
@@ -148,7 +153,13 @@ impl<W: std::io::Write> FrameWriter<W> {
     pub fn new(out: W, schema: &Schema) -> Result<FrameWriter<W>, WorkerError> {
         let schema = schema.to_arrow(CompatLevel::newest());
         let options = WriteOptions {
-            statistics: StatisticsOptions::default(),
+            // Text bounds cut to 64 bytes (as parquet-mr does for its page index): a page's
+            // bounds of a notes column were two copies of kilobyte strings, kept per page by the
+            // finalizer's writer until the footer.
+            statistics: StatisticsOptions {
+                binary_statistics_truncate_length: Some(64),
+                ..StatisticsOptions::default()
+            },
             // Pages are encoded uncompressed and then compressed here (`compress_page`).
             compression: CompressionOptions::Uncompressed,
             version: Version::V1,
@@ -177,7 +188,11 @@ impl<W: std::io::Write> FrameWriter<W> {
             }
             None => self.pending = Some(df.clone()),
         }
-        if self.pending.as_ref().is_some_and(|p| p.height() as u64 >= ROW_GROUP_ROWS) {
+        if self
+            .pending
+            .as_ref()
+            .is_some_and(|p| p.height() as u64 >= ROW_GROUP_ROWS || p.estimated_size() >= ROW_GROUP_BYTES)
+        {
             self.flush()?;
         }
         Ok(())

@@ -73,9 +73,20 @@ pub fn condition_columns() -> impl Iterator<Item = (&'static str, &'static Condi
         .flat_map(|f| std::iter::once((f.name, f, false)).chain(f.celsius_column.map(|c| (c, f, true))))
 }
 
-/// Turn one row into a case. `get` returns a cell (trimmed, `None` when empty); `columns` lists
-/// the row's column names (for the extra conditions).
-pub fn case_from_cells<'a>(row: u64, columns: impl Iterator<Item = &'a str>, get: impl Fn(&str) -> Option<String>) -> CaseInput {
+/// Whether the readers interpret column `c` (every other column is an extra condition).
+fn is_known(c: &str) -> bool {
+    matches!(c, "case_id" | "reaction" | "route_id" | "step" | "phase") || condition_columns().any(|(n, _, _)| n == c)
+}
+
+/// The columns of `headers` that are extra conditions, in order.
+fn extra_columns(headers: &[String]) -> Vec<String> {
+    headers.iter().filter(|h| !is_known(h)).cloned().collect()
+}
+
+/// Turn one row into a case. `get` returns a cell (trimmed, `None` when empty); `extra` lists
+/// the row's columns that are not read as case fields or typed conditions (they are carried as
+/// extra conditions).
+pub fn case_from_cells<'a>(row: u64, extra: impl Iterator<Item = &'a str>, get: impl Fn(&str) -> Option<String>) -> CaseInput {
     let mut errors: Vec<String> = Vec::new();
     let mut case = CaseInput {
         row,
@@ -129,13 +140,9 @@ pub fn case_from_cells<'a>(row: u64, columns: impl Iterator<Item = &'a str>, get
             *slot = Some(v);
         }
     }
-    let known =
-        |c: &str| matches!(c, "case_id" | "reaction" | "route_id" | "step" | "phase") || condition_columns().any(|(n, _, _)| n == c);
-    for c in columns {
-        if !known(c) {
-            if let Some(v) = get(c) {
-                conditions.extra.insert(c.to_string(), v);
-            }
+    for c in extra {
+        if let Some(v) = get(c) {
+            conditions.extra.insert(c.to_string(), v);
         }
     }
     case.conditions = conditions;
@@ -200,13 +207,14 @@ fn delimited(path: &Path, file: File, delimiter: u8) -> Result<Cases, InputError
         .map(|h| h.trim().trim_start_matches('\u{feff}').to_string())
         .collect();
     require(path, &headers)?;
+    let extra = extra_columns(&headers);
     let mut row = 0u64;
     Ok(Box::new(reader.into_records().map(move |rec| {
         row += 1;
         match rec {
             Ok(rec) => {
                 let get = |name: &str| headers.iter().position(|h| h == name).and_then(|k| rec.get(k)).and_then(cell);
-                let mut case = case_from_cells(row, headers.iter().map(String::as_str), get);
+                let mut case = case_from_cells(row, extra.iter().map(String::as_str), get);
                 if rec.len() != headers.len() && case.input_error.is_none() {
                     case.input_error = Some(format!("row {row}: has {} fields, the header has {}", rec.len(), headers.len()));
                 }
@@ -248,7 +256,9 @@ fn json_lines(reader: impl BufRead + Send + 'static) -> Cases {
         };
         row += 1;
         Some(match serde_json::from_str::<serde_json::Map<String, serde_json::Value>>(&line) {
-            Ok(obj) => case_from_cells(row, obj.keys().map(String::as_str), |k| obj.get(k).and_then(json_text)),
+            Ok(obj) => case_from_cells(row, obj.keys().map(String::as_str).filter(|k| !is_known(k)), |k| {
+                obj.get(k).and_then(json_text)
+            }),
             Err(e) => CaseInput {
                 case_id: format!("row-{row}"),
                 row,
@@ -276,9 +286,10 @@ fn parquet(path: &Path, file: File) -> Result<Cases, InputError> {
         columns.push(v);
     }
     let n = df.height();
+    let extra = extra_columns(&headers);
     Ok(Box::new((0..n).map(move |i| {
         let get = |name: &str| headers.iter().position(|h| h == name).and_then(|k| columns[k][i].clone());
-        case_from_cells(i as u64 + 1, headers.iter().map(String::as_str), get)
+        case_from_cells(i as u64 + 1, extra.iter().map(String::as_str), get)
     })))
 }
 

@@ -365,7 +365,10 @@ mod tests {
         let json = row.extra_json_or_defaults(&defaults).unwrap();
         assert_eq!(json, serde_json::to_string(&row.or_defaults(&defaults).extra).unwrap());
         assert_eq!(json, r#"{"reactor":"R-1","site":"B","solvent":"water"}"#);
-        assert_eq!(row.extra_json_or_defaults(&Conditions::default()).unwrap(), r#"{"reactor":"R-1","solvent":"water"}"#);
+        assert_eq!(
+            row.extra_json_or_defaults(&Conditions::default()).unwrap(),
+            r#"{"reactor":"R-1","solvent":"water"}"#
+        );
         assert_eq!(Conditions::default().extra_json_or_defaults(&Conditions::default()), None);
     }
 

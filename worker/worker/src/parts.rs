@@ -111,7 +111,7 @@ fn compress_page(page: Page) -> PolarsResult<CompressedPage> {
 /// Bytes (in memory, before encoding) at which a frame writer closes its row group even short
 /// of [`ROW_GROUP_ROWS`]: 65,536 routes rows are some 80 MB of text, and the frame, its rechunked
 /// copy and its encoded pages were all held at once (the finalizer's peak memory at 2 M cases).
-const ROW_GROUP_BYTES: usize = 8 << 20;
+pub const ROW_GROUP_BYTES: usize = 8 << 20;
 
 /// A column chunk's compressed pages, handed to the file writer one by one.
 struct PageList {

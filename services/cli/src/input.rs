@@ -86,7 +86,7 @@ fn extra_columns(headers: &[String]) -> Vec<String> {
 /// Turn one row into a case. `get` returns a cell (trimmed, `None` when empty); `extra` lists
 /// the row's columns that are not read as case fields or typed conditions (they are carried as
 /// extra conditions).
-pub fn case_from_cells<'a>(row: u64, extra: impl Iterator<Item = &'a str>, get: impl Fn(&str) -> Option<String>) -> CaseInput {
+fn case_from_cells<'a>(row: u64, extra: impl Iterator<Item = &'a str>, get: impl Fn(&str) -> Option<String>) -> CaseInput {
     let mut errors: Vec<String> = Vec::new();
     let mut case = CaseInput {
         row,

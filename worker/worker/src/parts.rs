@@ -109,8 +109,10 @@ fn compress_page(page: Page) -> PolarsResult<CompressedPage> {
 }
 
 /// Bytes (in memory, before encoding) at which a frame writer closes its row group even short
-/// of [`ROW_GROUP_ROWS`]: 65,536 routes rows are some 80 MB of text, and the frame, its rechunked
-/// copy and its encoded pages were all held at once (the finalizer's peak memory at 2 M cases).
+/// of [`ROW_GROUP_ROWS`]: 65,536 routes rows are some 80 MB of text, held as the gathered frame,
+/// its rechunked copy and a column's encoded page at once (the finalizer's peak memory at 2 M
+/// cases). Only the tables a frame writer writes (routes, species) are cut this way; cases and
+/// trends are joined from parts by [`crate::concat::Concat`], by rows.
 pub const ROW_GROUP_BYTES: usize = 8 << 20;
 
 /// A column chunk's compressed pages, handed to the file writer one by one.
@@ -153,13 +155,7 @@ impl<W: std::io::Write> FrameWriter<W> {
     pub fn new(out: W, schema: &Schema) -> Result<FrameWriter<W>, WorkerError> {
         let schema = schema.to_arrow(CompatLevel::newest());
         let options = WriteOptions {
-            // Text bounds cut to 64 bytes (as parquet-mr does for its page index): a page's
-            // bounds of a notes column were two copies of kilobyte strings, kept per page by the
-            // finalizer's writer until the footer.
-            statistics: StatisticsOptions {
-                binary_statistics_truncate_length: Some(64),
-                ..StatisticsOptions::default()
-            },
+            statistics: StatisticsOptions::default(),
             // Pages are encoded uncompressed and then compressed here (`compress_page`).
             compression: CompressionOptions::Uncompressed,
             version: Version::V1,

@@ -13,8 +13,9 @@
 use crate::parts::{read_parquet, read_parquet_columns};
 use crate::rows;
 use crate::WorkerError;
+use hashbrown::HashTable;
 use polars::prelude::*;
-use std::collections::hash_map::{Entry, RandomState};
+use std::collections::hash_map::RandomState;
 use std::collections::HashMap;
 use std::hash::BuildHasher;
 use std::path::{Path, PathBuf};
@@ -56,7 +57,14 @@ impl Keys {
     }
 }
 
-/// Pass 1 state: some 60 bytes per route (keys, the id's bytes and offset, a hash slot), so a
+/// Route `i`'s id in the shared id buffer.
+fn id_in<'a>(ids: &'a str, ends: &[usize], i: u32) -> &'a str {
+    let i = i as usize;
+    let start = if i == 0 { 0 } else { ends[i - 1] };
+    &ids[start..ends[i]]
+}
+
+/// Pass 1 state: some 60 bytes per route (keys, the id's bytes and end, a slot of the index), so a
 /// batch of a million routes ranks in about 60 MB.
 pub struct RouteTable<'a> {
     results_dir: &'a Path,
@@ -69,10 +77,8 @@ pub struct RouteTable<'a> {
     /// Per chunk: the route index of each row of its routes part ([`FRAGMENT`] for later
     /// fragments).
     parts: Vec<(u64, Vec<u32>)>,
-    /// Route index by the hash of its id (the id itself is compared on a hit).
-    index: HashMap<u64, u32>,
-    /// Routes whose id hash is another route's: by id.
-    collided: HashMap<Box<str>, u32>,
+    /// Route indices, hashed and compared by the id they point at in `ids`.
+    index: HashTable<u32>,
     hasher: RandomState,
     /// Routes seen in more than one chunk: route index → the chunks.
     split: HashMap<u32, Vec<u64>>,
@@ -87,26 +93,23 @@ impl<'a> RouteTable<'a> {
             ids: String::new(),
             ends: Vec::new(),
             parts: Vec::new(),
-            index: HashMap::new(),
-            collided: HashMap::new(),
+            index: HashTable::new(),
             hasher: RandomState::new(),
             split: HashMap::new(),
         }
     }
 
+    fn part(&self, table: Table, seq: u64) -> Result<PathBuf, WorkerError> {
+        Ok(part_path(self.results_dir, self.batch_id, table, seq)?)
+    }
+
     fn id(&self, i: u32) -> &str {
-        let i = i as usize;
-        let start = if i == 0 { 0 } else { self.ends[i - 1] };
-        &self.ids[start..self.ends[i]]
+        id_in(&self.ids, &self.ends, i)
     }
 
     /// The index of the route `id`, if seen.
     fn find(&self, id: &str, hash: u64) -> Option<u32> {
-        match self.index.get(&hash) {
-            Some(&i) if self.id(i) == id => Some(i),
-            Some(_) => self.collided.get(id).copied(),
-            None => None,
-        }
+        self.index.find(hash, |&i| self.id(i) == id).copied()
     }
 
     /// Record a new route; returns its index.
@@ -115,19 +118,9 @@ impl<'a> RouteTable<'a> {
         self.keys.push(Keys::of(score));
         self.ids.push_str(&score.route_id);
         self.ends.push(self.ids.len());
-        match self.index.entry(hash) {
-            Entry::Vacant(e) => {
-                e.insert(i);
-            }
-            Entry::Occupied(_) => {
-                self.collided.insert(score.route_id.as_str().into(), i);
-            }
-        }
+        let (ids, ends, hasher) = (&self.ids, &self.ends, &self.hasher);
+        self.index.insert_unique(hash, i, |&j| hasher.hash_one(id_in(ids, ends, j)));
         i
-    }
-
-    fn part(&self, table: Table, seq: u64) -> Result<PathBuf, WorkerError> {
-        Ok(part_path(self.results_dir, self.batch_id, table, seq)?)
     }
 
     /// Read the scores of chunk `seq`'s routes part.
@@ -212,8 +205,7 @@ impl<'a> RouteTable<'a> {
         for (i, whole) in &merged {
             self.keys[*i as usize] = Keys::of(&whole.score());
         }
-        self.index = HashMap::new();
-        self.collided = HashMap::new();
+        self.index = HashTable::new();
         let ranks = self.ranks();
         for (seq, at) in &self.parts {
             let mut df = read_parquet(&self.part(Table::Routes, *seq)?)?;

@@ -6,12 +6,13 @@
 use crate::WorkerError;
 use polars_buffer::Buffer;
 use polars_parquet::parquet::error::ParquetError;
-use polars_parquet::parquet::metadata::{FileMetadata, KeyValue, SchemaDescriptor};
+use polars_parquet::parquet::metadata::{FileMetadata, KeyValue, SchemaDescriptor, ThriftFileMetadata};
 use polars_parquet::parquet::page::CompressedPage;
 use polars_parquet::parquet::read::PageReader;
 use polars_parquet::parquet::read::{get_page_iterator, read_metadata};
 use polars_parquet::parquet::write::{DynIter, DynStreamingIterator, FileWriter, Version, WriteOptions};
-use polars_parquet::parquet::FallibleStreamingIterator;
+use polars_parquet::parquet::{FallibleStreamingIterator, FOOTER_SIZE, HEADER_SIZE, PARQUET_MAGIC};
+use polars_parquet_format::thrift::protocol::TCompactOutputProtocol;
 use std::io::{Cursor, Write};
 use std::path::{Path, PathBuf};
 
@@ -74,12 +75,23 @@ struct Part {
 /// [`ROW_GROUP_ROWS`] rows: a column chunk of the output is the pages of that column in each
 /// part, one after the other. That needs parts without dictionary pages (a column chunk holds
 /// one dictionary at most): the part writer writes plain pages only.
+///
+/// Each row group is written by polars-parquet's own writer into a buffer (so the chunk
+/// statistics are merged by polars) and copied out with its offsets moved; the footer is that
+/// writer's footer with every row group in it. The page index (column and offset indexes) is
+/// left out: polars' writer keeps a page header with statistics for every page until the
+/// footer, about 1 kB each, which grew the finalizer by tens of MB per million cases. Readers
+/// use the chunk statistics to skip row groups as before.
 pub struct Concat<W: Write> {
-    writer: Option<FileWriter<W>>,
-    out: Option<W>,
+    out: W,
+    /// Bytes written to `out` so far (0 before the first part).
+    offset: u64,
     /// The first part's key-value metadata (polars keeps its Arrow schema there).
     kv: Vec<KeyValue>,
     schema: Option<SchemaDescriptor>,
+    created_by: Option<String>,
+    /// The footer so far: the first row group's writer's metadata, gathering every row group.
+    footer: Option<ThriftFileMetadata>,
     pending: Vec<Part>,
     pending_rows: u64,
     /// Rows appended so far.
@@ -89,10 +101,12 @@ pub struct Concat<W: Write> {
 impl<W: Write> Concat<W> {
     pub fn new(out: W) -> Concat<W> {
         Concat {
-            writer: None,
-            out: Some(out),
+            out,
+            offset: 0,
             kv: Vec::new(),
             schema: None,
+            created_by: None,
+            footer: None,
             pending: Vec::new(),
             pending_rows: 0,
             rows: 0,
@@ -132,22 +146,16 @@ impl<W: Write> Concat<W> {
                 c.descriptor().path_in_schema
             )));
         }
-        if self.writer.is_none() {
-            self.kv = meta.key_value_metadata().clone().unwrap_or_default();
-            self.schema = Some(meta.schema().clone());
-            let out = self.out.take().expect("output taken once");
-            let options = WriteOptions {
-                write_statistics: true,
-                version: Version::V1,
-            };
-            self.writer = Some(FileWriter::new(
-                out,
-                meta.schema().clone(),
-                options,
-                Some(meta.created_by.clone().unwrap_or_default()),
-            ));
-        } else if self.schema.as_ref().map(|s| s.columns()) != Some(meta.schema().columns()) {
-            return Err(refuse("its schema differs from the first part's".into()));
+        match &self.schema {
+            None => {
+                self.kv = meta.key_value_metadata().clone().unwrap_or_default();
+                self.schema = Some(meta.schema().clone());
+                self.created_by = Some(meta.created_by.clone().unwrap_or_default());
+            }
+            Some(schema) if schema.columns() != meta.schema().columns() => {
+                return Err(refuse("its schema differs from the first part's".into()));
+            }
+            Some(_) => {}
         }
         self.pending_rows += meta.num_rows as u64;
         self.rows += meta.num_rows as u64;
@@ -164,14 +172,13 @@ impl<W: Write> Concat<W> {
 
     /// Write the pending parts as one row group.
     fn flush(&mut self) -> Result<(), WorkerError> {
-        let (Some(writer), Some(last)) = (self.writer.as_mut(), self.pending.last()) else {
+        let (Some(schema), Some(last)) = (self.schema.as_ref(), self.pending.last()) else {
             return Ok(());
         };
         let path = last.path.clone();
         let n = self.pending_rows;
         let parts = std::mem::take(&mut self.pending);
-        let width = self.schema.as_ref().map_or(0, |s| s.columns().len());
-        let columns = (0..width).map(|j| {
+        let columns = (0..schema.columns().len()).map(|j| {
             let readers = parts
                 .iter()
                 .flat_map(|p| p.meta.row_groups.iter().map(move |g| (p, g)))
@@ -185,7 +192,64 @@ impl<W: Write> Concat<W> {
                 current: None,
             }))
         });
+        let options = WriteOptions {
+            write_statistics: true,
+            version: Version::V1,
+        };
+        let mut writer = FileWriter::new(Vec::new(), schema.clone(), options, self.created_by.clone());
         writer.write(n, DynIter::new(columns)).map_err(parquet_err(&path))?;
+        writer.end(None).map_err(parquet_err(&path))?;
+        let (buffer, mut meta) = writer.into_inner_and_metadata();
+        drop(parts);
+        let Some(mut group) = meta.row_groups.pop() else {
+            return Ok(());
+        };
+        // The buffer is: magic, the row group, then the page index and the footer. The row group
+        // ends where the first index begins.
+        let end = group
+            .columns
+            .iter()
+            .flat_map(|c| [c.column_index_offset, c.offset_index_offset])
+            .flatten()
+            .min()
+            .and_then(|e| usize::try_from(e).ok())
+            .unwrap_or(buffer.len());
+        let io = |source| WorkerError::Io {
+            path: path.clone(),
+            source,
+        };
+        if self.offset == 0 {
+            self.out.write_all(&PARQUET_MAGIC).map_err(io)?;
+            self.offset = HEADER_SIZE;
+        }
+        // Every offset in the row group's metadata counted from the buffer's start.
+        let shift = |o: &mut i64| *o += self.offset as i64 - HEADER_SIZE as i64;
+        for c in &mut group.columns {
+            shift(&mut c.file_offset);
+            if let Some(m) = c.meta_data.as_mut() {
+                shift(&mut m.data_page_offset);
+                if let Some(o) = m.dictionary_page_offset.as_mut() {
+                    shift(o);
+                }
+                if let Some(o) = m.index_page_offset.as_mut() {
+                    shift(o);
+                }
+            }
+            c.column_index_offset = None;
+            c.column_index_length = None;
+            c.offset_index_offset = None;
+            c.offset_index_length = None;
+        }
+        if let Some(o) = group.file_offset.as_mut() {
+            shift(o);
+        }
+        let footer = self.footer.get_or_insert(meta);
+        group.ordinal = i16::try_from(footer.row_groups.len()).ok();
+        footer.num_rows += group.num_rows;
+        footer.row_groups.push(group);
+        let bytes = &buffer[HEADER_SIZE as usize..end];
+        self.out.write_all(bytes).map_err(io)?;
+        self.offset += bytes.len() as u64;
         self.pending_rows = 0;
         Ok(())
     }
@@ -197,10 +261,26 @@ impl<W: Write> Concat<W> {
     /// I/O errors.
     pub fn finish(mut self, extra: Vec<(String, String)>, path: &Path) -> Result<Option<u64>, WorkerError> {
         self.flush()?;
-        let Some(mut writer) = self.writer else { return Ok(None) };
+        let Some(mut footer) = self.footer else { return Ok(None) };
         let mut kv: Vec<KeyValue> = self.kv.into_iter().filter(|k| !extra.iter().any(|(e, _)| *e == k.key)).collect();
         kv.extend(extra.into_iter().map(|(key, value)| KeyValue { key, value: Some(value) }));
-        let size = writer.end(Some(kv)).map_err(parquet_err(path))?;
-        Ok(Some(size))
+        footer.key_value_metadata = Some(kv);
+        let mut body = Vec::new();
+        let len = footer
+            .write_to_out_protocol(&mut TCompactOutputProtocol::new(&mut body))
+            .map_err(|e| parquet_err(path)(e.into()))?;
+        let len = i32::try_from(len).map_err(|_| WorkerError::Concat {
+            path: path.to_path_buf(),
+            reason: format!("footer of {len} bytes is too large"),
+        })?;
+        let io = |source| WorkerError::Io {
+            path: path.to_path_buf(),
+            source,
+        };
+        self.out.write_all(&body).map_err(io)?;
+        self.out.write_all(&len.to_le_bytes()).map_err(io)?;
+        self.out.write_all(&PARQUET_MAGIC).map_err(io)?;
+        self.out.flush().map_err(io)?;
+        Ok(Some(self.offset + body.len() as u64 + FOOTER_SIZE))
     }
 }

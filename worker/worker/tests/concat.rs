@@ -76,3 +76,68 @@ fn a_part_with_dictionary_pages_is_an_error() {
     let e = c.append(&dictionary).unwrap_err();
     assert!(e.to_string().contains("dictionary page"), "{e}");
 }
+
+/// Rows `from..to`: an id, a float that rises with the row (every seventh missing) and a count.
+fn numbered(from: u32, to: u32) -> DataFrame {
+    let ids: Vec<String> = (from..to).map(|i| format!("case-{i:06}")).collect();
+    let values: Vec<Option<f64>> = (from..to).map(|i| (i % 7 != 0).then(|| f64::from(i) * 0.5 - 1000.0)).collect();
+    let counts: Vec<u32> = (from..to).map(|i| i * 3).collect();
+    df!("case_id" => ids, "value" => values, "count" => counts).unwrap()
+}
+
+#[test]
+fn row_groups_past_the_first_read_back_with_their_own_statistics() {
+    use polars_parquet::parquet::read::read_metadata;
+    use polars_parquet::parquet::statistics::Statistics;
+
+    let dir = tempfile::tempdir().unwrap();
+    // 40,000 + 30,000 rows pass ROW_GROUP_ROWS (65,536): the first row group closes after the
+    // second part, the third part makes the second row group, written at an offset of its own.
+    let bounds = [(0u32, 40_000u32), (40_000, 70_000), (70_000, 90_000)];
+    let mut paths = Vec::new();
+    for (i, (from, to)) in bounds.iter().enumerate() {
+        let p = dir.path().join(format!("part-{i}.parquet"));
+        write_part(&p, &numbered(*from, *to)).unwrap();
+        paths.push(p);
+    }
+    let out = dir.path().join("table.parquet");
+    let mut file = std::fs::File::create(&out).unwrap();
+    let mut c = Concat::new(&mut file);
+    for p in &paths {
+        c.append(p).unwrap();
+    }
+    let size = c.finish(Vec::new(), &out).unwrap().unwrap();
+    drop(file);
+    assert_eq!(size, std::fs::metadata(&out).unwrap().len(), "returned size is the file's");
+
+    let whole = numbered(0, 90_000);
+    assert!(read_parquet(&out).unwrap().equals_missing(&whole));
+
+    // Each row group's chunk statistics describe its own rows: a reader that skips row groups
+    // by them (a filter on value or count) must not skip rows it needs.
+    let meta = read_metadata(&mut std::fs::File::open(&out).unwrap()).unwrap();
+    let groups: Vec<(u32, u32)> = vec![(0, 70_000), (70_000, 90_000)];
+    assert_eq!(meta.row_groups.len(), groups.len());
+    for (g, (from, to)) in meta.row_groups.iter().zip(&groups) {
+        assert_eq!(g.num_rows(), (to - from) as usize);
+        let rows = numbered(*from, *to);
+        let cols = g.parquet_columns();
+        let Statistics::Binary(ids) = cols[0].statistics(&meta.footer_buf).unwrap().unwrap() else {
+            panic!("case_id statistics")
+        };
+        assert_eq!(ids.min_value.as_deref(), Some(format!("case-{from:06}").as_bytes()));
+        assert_eq!(ids.max_value.as_deref(), Some(format!("case-{:06}", to - 1).as_bytes()));
+        let Statistics::Double(values) = cols[1].statistics(&meta.footer_buf).unwrap().unwrap() else {
+            panic!("value statistics")
+        };
+        let v = rows.column("value").unwrap().f64().unwrap();
+        assert_eq!(values.min_value, v.min());
+        assert_eq!(values.max_value, v.max());
+        assert_eq!(values.null_count, Some(v.null_count() as i64));
+        let Statistics::Int32(counts) = cols[2].statistics(&meta.footer_buf).unwrap().unwrap() else {
+            panic!("count statistics")
+        };
+        assert_eq!(counts.min_value, Some((from * 3) as i32));
+        assert_eq!(counts.max_value, Some(((to - 1) * 3) as i32));
+    }
+}

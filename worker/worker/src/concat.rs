@@ -175,6 +175,11 @@ impl<W: Write> Concat<W> {
         let (Some(schema), Some(last)) = (self.schema.as_ref(), self.pending.last()) else {
             return Ok(());
         };
+        if self.pending_rows == 0 {
+            // Only empty parts: no row group (an empty one would have no pages to point at).
+            self.pending.clear();
+            return Ok(());
+        }
         let path = last.path.clone();
         let n = self.pending_rows;
         let parts = std::mem::take(&mut self.pending);
@@ -192,8 +197,10 @@ impl<W: Write> Concat<W> {
                 current: None,
             }))
         });
+        // Chunk statistics are merged from the page statistics either way; `write_statistics`
+        // only adds the column index, which is cut off below.
         let options = WriteOptions {
-            write_statistics: true,
+            write_statistics: false,
             version: Version::V1,
         };
         let mut writer = FileWriter::new(Vec::new(), schema.clone(), options, self.created_by.clone());
@@ -202,10 +209,14 @@ impl<W: Write> Concat<W> {
         let (buffer, mut meta) = writer.into_inner_and_metadata();
         drop(parts);
         let Some(mut group) = meta.row_groups.pop() else {
-            return Ok(());
+            return Err(WorkerError::Concat {
+                path,
+                reason: "the row group writer wrote no row group".into(),
+            });
         };
-        // The buffer is: magic, the row group, then the page index and the footer. The row group
-        // ends where the first index begins.
+        // The buffer is: magic, the row group, then the offset index and the footer. The row
+        // group ends where the first index begins. (Each column chunk's pages are followed by a
+        // copy of its metadata; those copies keep the buffer's offsets. Readers use the footer.)
         let end = group
             .columns
             .iter()
@@ -245,7 +256,6 @@ impl<W: Write> Concat<W> {
         }
         let footer = self.footer.get_or_insert(meta);
         group.ordinal = i16::try_from(footer.row_groups.len()).ok();
-        footer.num_rows += group.num_rows;
         footer.row_groups.push(group);
         let bytes = &buffer[HEADER_SIZE as usize..end];
         self.out.write_all(bytes).map_err(io)?;
@@ -265,6 +275,7 @@ impl<W: Write> Concat<W> {
         let mut kv: Vec<KeyValue> = self.kv.into_iter().filter(|k| !extra.iter().any(|(e, _)| *e == k.key)).collect();
         kv.extend(extra.into_iter().map(|(key, value)| KeyValue { key, value: Some(value) }));
         footer.key_value_metadata = Some(kv);
+        footer.num_rows = footer.row_groups.iter().map(|g| g.num_rows).sum();
         let mut body = Vec::new();
         let len = footer
             .write_to_out_protocol(&mut TCompactOutputProtocol::new(&mut body))

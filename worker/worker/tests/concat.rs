@@ -116,6 +116,7 @@ fn row_groups_past_the_first_read_back_with_their_own_statistics() {
     // Each row group's chunk statistics describe its own rows: a reader that skips row groups
     // by them (a filter on value or count) must not skip rows it needs.
     let meta = read_metadata(&mut std::fs::File::open(&out).unwrap()).unwrap();
+    assert_eq!(meta.num_rows, 90_000, "the footer's row count is the row groups' sum");
     let groups: Vec<(u32, u32)> = vec![(0, 70_000), (70_000, 90_000)];
     assert_eq!(meta.row_groups.len(), groups.len());
     for (g, (from, to)) in meta.row_groups.iter().zip(&groups) {
@@ -140,4 +141,18 @@ fn row_groups_past_the_first_read_back_with_their_own_statistics() {
         assert_eq!(counts.min_value, Some((from * 3) as i32));
         assert_eq!(counts.max_value, Some(((to - 1) * 3) as i32));
     }
+}
+
+#[test]
+fn only_empty_parts_make_no_row_group() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("empty.parquet");
+    write_part(&p, &frame(&[], &[])).unwrap();
+    let mut sink = Vec::new();
+    let mut c = Concat::new(&mut sink);
+    c.append(&p).unwrap();
+    c.append(&p).unwrap();
+    // None: the caller writes its empty table instead.
+    assert_eq!(c.finish(Vec::new(), &p).unwrap(), None);
+    assert!(sink.is_empty());
 }

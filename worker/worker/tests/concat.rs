@@ -11,27 +11,34 @@ fn frame(ids: &[&str], values: &[Option<f64>]) -> DataFrame {
     df!("case_id" => ids, "value" => values).unwrap()
 }
 
+/// Write `parts` as part files in `dir` and join them into `dir/table.parquet` with the table
+/// metadata `extra`. Returns the table's path, the rows `Concat` counted and the size it returned.
+fn join(dir: &std::path::Path, parts: &[DataFrame], extra: Vec<(String, String)>) -> (std::path::PathBuf, u64, u64) {
+    let out = dir.join("table.parquet");
+    let mut file = std::fs::File::create(&out).unwrap();
+    let mut c = Concat::new(&mut file);
+    for (i, df) in parts.iter().enumerate() {
+        let p = dir.join(format!("part-{i}.parquet"));
+        write_part(&p, df).unwrap();
+        c.append(&p).unwrap();
+    }
+    let rows = c.rows;
+    let size = c.finish(extra, &out).unwrap().unwrap();
+    (out, rows, size)
+}
+
 #[test]
 fn copied_pages_read_back_as_the_parts_stacked_with_the_tables_metadata() {
     let dir = tempfile::tempdir().unwrap();
     let a = frame(&["a", "b"], &[Some(1.5), None]);
     let b = frame(&["c"], &[Some(-2.25)]);
     let empty = frame(&[], &[]);
-    let mut paths = Vec::new();
-    for (i, df) in [a.clone(), empty, b.clone()].into_iter().enumerate() {
-        let p = dir.path().join(format!("part-{i}.parquet"));
-        write_part(&p, &df).unwrap();
-        paths.push(p);
-    }
-    let out = dir.path().join("table.parquet");
-    let mut file = std::fs::File::create(&out).unwrap();
-    let mut c = Concat::new(&mut file);
-    for p in &paths {
-        c.append(p).unwrap();
-    }
-    assert_eq!(c.rows, 3);
-    c.finish(vec![("thermosieve.table".into(), "test".into())], &out).unwrap().unwrap();
-    drop(file);
+    let (out, rows, _) = join(
+        dir.path(),
+        &[a.clone(), empty, b.clone()],
+        vec![("thermosieve.table".into(), "test".into())],
+    );
+    assert_eq!(rows, 3);
 
     let back = read_parquet(&out).unwrap();
     assert!(back.equals_missing(&a.vstack(&b).unwrap()), "{back}");
@@ -94,20 +101,8 @@ fn row_groups_past_the_first_read_back_with_their_own_statistics() {
     // 40,000 + 30,000 rows pass ROW_GROUP_ROWS (65,536): the first row group closes after the
     // second part, the third part makes the second row group, written at an offset of its own.
     let bounds = [(0u32, 40_000u32), (40_000, 70_000), (70_000, 90_000)];
-    let mut paths = Vec::new();
-    for (i, (from, to)) in bounds.iter().enumerate() {
-        let p = dir.path().join(format!("part-{i}.parquet"));
-        write_part(&p, &numbered(*from, *to)).unwrap();
-        paths.push(p);
-    }
-    let out = dir.path().join("table.parquet");
-    let mut file = std::fs::File::create(&out).unwrap();
-    let mut c = Concat::new(&mut file);
-    for p in &paths {
-        c.append(p).unwrap();
-    }
-    let size = c.finish(Vec::new(), &out).unwrap().unwrap();
-    drop(file);
+    let parts: Vec<DataFrame> = bounds.iter().map(|(from, to)| numbered(*from, *to)).collect();
+    let (out, _, size) = join(dir.path(), &parts, Vec::new());
     assert_eq!(size, std::fs::metadata(&out).unwrap().len(), "returned size is the file's");
 
     let whole = numbered(0, 90_000);

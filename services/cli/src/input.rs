@@ -73,44 +73,81 @@ pub fn condition_columns() -> impl Iterator<Item = (&'static str, &'static Condi
         .flat_map(|f| std::iter::once((f.name, f, false)).chain(f.celsius_column.map(|c| (c, f, true))))
 }
 
+/// The columns the readers interpret, in the order [`case_from_cells`] asks for them by index:
+/// the case fields ([`CASE_ID`] to [`PHASE`]), then the condition columns from
+/// [`FIRST_CONDITION`] on, in [`condition_columns`] order. Every other column is an extra
+/// condition.
+fn known_columns() -> impl Iterator<Item = &'static str> {
+    ["case_id", "reaction", "route_id", "step", "phase"]
+        .into_iter()
+        .chain(condition_columns().map(|(n, _, _)| n))
+}
+const CASE_ID: usize = 0;
+const REACTION: usize = 1;
+const ROUTE_ID: usize = 2;
+const STEP: usize = 3;
+const PHASE: usize = 4;
+const FIRST_CONDITION: usize = 5;
+
 /// Whether the readers interpret column `c` (every other column is an extra condition).
 fn is_known(c: &str) -> bool {
-    matches!(c, "case_id" | "reaction" | "route_id" | "step" | "phase") || condition_columns().any(|(n, _, _)| n == c)
+    known_columns().any(|n| n == c)
 }
 
-/// The columns of `headers` that are extra conditions, in order.
-fn extra_columns(headers: &[String]) -> Vec<String> {
-    headers.iter().filter(|h| !is_known(h)).cloned().collect()
+/// Where a table's columns sit, worked out once per file: the position of each known column
+/// (by [`known_columns`] index) and the extra-condition columns with their positions. A name
+/// given twice is read from its first column, as a lookup by name would.
+struct Positions {
+    known: Vec<Option<usize>>,
+    extra: Vec<(String, usize)>,
 }
 
-/// Turn one row into a case. `get` returns a cell (trimmed, `None` when empty); `extra` lists
-/// the row's columns that are not read as case fields or typed conditions (they are carried as
-/// extra conditions).
-fn case_from_cells<'a>(row: u64, extra: impl Iterator<Item = &'a str>, get: impl Fn(&str) -> Option<String>) -> CaseInput {
+impl Positions {
+    fn new(headers: &[String]) -> Positions {
+        let first = |name: &str| headers.iter().position(|h| h == name);
+        Positions {
+            known: known_columns().map(first).collect(),
+            extra: headers
+                .iter()
+                .filter(|h| !is_known(h))
+                .filter_map(|h| Some((h.clone(), first(h)?)))
+                .collect(),
+        }
+    }
+}
+
+/// Turn one row into a case. `get` returns the cell of a known column by its index in
+/// [`known_columns`] (trimmed, `None` when empty); `extra` gives the row's other columns with
+/// their cells (they are carried as extra conditions).
+fn case_from_cells<'a>(
+    row: u64,
+    extra: impl Iterator<Item = (&'a str, Option<String>)>,
+    get: impl Fn(usize) -> Option<String>,
+) -> CaseInput {
     let mut errors: Vec<String> = Vec::new();
     let mut case = CaseInput {
         row,
         ..CaseInput::default()
     };
-    match get("case_id") {
+    match get(CASE_ID) {
         Some(id) => case.case_id = id,
         None => {
             case.case_id = format!("row-{row}");
             errors.push("column case_id: missing (every case needs an id; this row is reported as row-N)".into());
         }
     }
-    match get("reaction") {
+    match get(REACTION) {
         Some(r) => case.reaction = r,
         None => errors.push("column reaction: missing (expected a reaction equation such as \"CO(g) + H2O(g) -> CO2(g) + H2(g)\")".into()),
     }
-    case.route_id = get("route_id");
-    if let Some(s) = get("step") {
+    case.route_id = get(ROUTE_ID);
+    if let Some(s) = get(STEP) {
         match s.parse::<u32>() {
             Ok(n) if n >= 1 => case.step = Some(n),
             _ => errors.push(format!("column step: expected a whole number ≥ 1, got {s:?}")),
         }
     }
-    if let Some(p) = get("phase") {
+    if let Some(p) = get(PHASE) {
         let p = p.to_ascii_lowercase();
         if PHASES.contains(&p.as_str()) {
             case.phase = Some(p);
@@ -120,8 +157,8 @@ fn case_from_cells<'a>(row: u64, extra: impl Iterator<Item = &'a str>, get: impl
     }
     let mut conditions = Conditions::default();
     let mut given_by: BTreeMap<&str, &str> = BTreeMap::new();
-    for (column, declared, celsius) in condition_columns() {
-        let Some(text) = get(column) else { continue };
+    for (k, (column, declared, celsius)) in condition_columns().enumerate() {
+        let Some(text) = get(FIRST_CONDITION + k) else { continue };
         let Ok(v) = text.parse::<f64>() else {
             errors.push(format!("column {column}: expected a number, got {text:?}"));
             continue;
@@ -140,8 +177,8 @@ fn case_from_cells<'a>(row: u64, extra: impl Iterator<Item = &'a str>, get: impl
             *slot = Some(v);
         }
     }
-    for c in extra {
-        if let Some(v) = get(c) {
+    for (c, v) in extra {
+        if let Some(v) = v {
             conditions.extra.insert(c.to_string(), v);
         }
     }
@@ -207,16 +244,18 @@ fn delimited(path: &Path, file: File, delimiter: u8) -> Result<Cases, InputError
         .map(|h| h.trim().trim_start_matches('\u{feff}').to_string())
         .collect();
     require(path, &headers)?;
-    let extra = extra_columns(&headers);
+    let at = Positions::new(&headers);
+    let width = headers.len();
     let mut row = 0u64;
     Ok(Box::new(reader.into_records().map(move |rec| {
         row += 1;
         match rec {
             Ok(rec) => {
-                let get = |name: &str| headers.iter().position(|h| h == name).and_then(|k| rec.get(k)).and_then(cell);
-                let mut case = case_from_cells(row, extra.iter().map(String::as_str), get);
-                if rec.len() != headers.len() && case.input_error.is_none() {
-                    case.input_error = Some(format!("row {row}: has {} fields, the header has {}", rec.len(), headers.len()));
+                let extra = at.extra.iter().map(|(name, i)| (name.as_str(), rec.get(*i).and_then(cell)));
+                let get = |k: usize| at.known[k].and_then(|i| rec.get(i)).and_then(cell);
+                let mut case = case_from_cells(row, extra, get);
+                if rec.len() != width && case.input_error.is_none() {
+                    case.input_error = Some(format!("row {row}: has {} fields, the header has {width}", rec.len()));
                 }
                 case
             }
@@ -239,6 +278,7 @@ fn json_text(v: &serde_json::Value) -> Option<String> {
 }
 
 fn json_lines(reader: impl BufRead + Send + 'static) -> Cases {
+    let known: Vec<&str> = known_columns().collect();
     let mut row = 0u64;
     Box::new(reader.lines().filter_map(move |line| {
         let line = match line {
@@ -256,9 +296,10 @@ fn json_lines(reader: impl BufRead + Send + 'static) -> Cases {
         };
         row += 1;
         Some(match serde_json::from_str::<serde_json::Map<String, serde_json::Value>>(&line) {
-            Ok(obj) => case_from_cells(row, obj.keys().map(String::as_str).filter(|k| !is_known(k)), |k| {
-                obj.get(k).and_then(json_text)
-            }),
+            Ok(obj) => {
+                let extra = obj.iter().filter(|(k, _)| !is_known(k)).map(|(k, v)| (k.as_str(), json_text(v)));
+                case_from_cells(row, extra, |k| obj.get(known[k]).and_then(json_text))
+            }
             Err(e) => CaseInput {
                 case_id: format!("row-{row}"),
                 row,
@@ -286,10 +327,11 @@ fn parquet(path: &Path, file: File) -> Result<Cases, InputError> {
         columns.push(v);
     }
     let n = df.height();
-    let extra = extra_columns(&headers);
+    let at = Positions::new(&headers);
     Ok(Box::new((0..n).map(move |i| {
-        let get = |name: &str| headers.iter().position(|h| h == name).and_then(|k| columns[k][i].clone());
-        case_from_cells(i as u64 + 1, extra.iter().map(String::as_str), get)
+        let extra = at.extra.iter().map(|(name, k)| (name.as_str(), columns[*k][i].clone()));
+        let get = |k: usize| at.known[k].and_then(|c| columns[c][i].clone());
+        case_from_cells(i as u64 + 1, extra, get)
     })))
 }
 

@@ -31,7 +31,8 @@ pub async fn run_cases(
     out_dir: &Path,
     threads: usize,
 ) -> Result<RunOutcome, FrontError> {
-    let queue: Arc<dyn Queue> = Arc::new(MemoryQueue::new());
+    let memory = Arc::new(MemoryQueue::new());
+    let queue: Arc<dyn Queue> = memory.clone();
     // Embedded mode has no other submitters: the queue may hold any depth, but stays bounded by
     // the workers' pace through the same backpressure as the service.
     let limits = IngestLimits {
@@ -54,23 +55,11 @@ pub async fn run_cases(
         ingest.push(case).await?;
     }
     let submitted = ingest.finish().await?;
-    // Looked at after 1 ms, then ever less often up to every 20 ms: a small batch ends within
-    // milliseconds, and a fixed 20 ms wait was most of a one-case run.
-    let mut wait = Duration::from_millis(1);
-    let progress = loop {
-        match queue.progress(&batch_id).await? {
-            Some(p) if p.state.is_final() => break p,
-            Some(_) => {
-                tokio::time::sleep(wait).await;
-                wait = (wait * 2).min(Duration::from_millis(20));
-            }
-            None => {
-                return Err(FrontError::BatchEnded {
-                    state: "lost",
-                    message: "the in-process queue lost the batch".into(),
-                })
-            }
-        }
+    let Some(progress) = memory.wait_final(&batch_id).await else {
+        return Err(FrontError::BatchEnded {
+            state: "lost",
+            message: "the in-process queue lost the batch".into(),
+        });
     };
     let _ = stop_tx.send(());
     let worker = worker.await.map_err(|source| FrontError::Task {

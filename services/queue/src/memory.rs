@@ -64,6 +64,8 @@ impl Inner {
 pub struct MemoryQueue {
     inner: Mutex<Inner>,
     wake: Notify,
+    /// Notified whenever a batch reaches a final state ([`MemoryQueue::wait_final`]).
+    ended: Notify,
 }
 
 impl MemoryQueue {
@@ -74,6 +76,23 @@ impl MemoryQueue {
     fn lock(&self) -> std::sync::MutexGuard<'_, Inner> {
         // A panic while holding the lock leaves plain data behind; keep serving it.
         self.inner.lock().unwrap_or_else(|e| e.into_inner())
+    }
+
+    /// The progress of a batch once it is final (done, failed or cancelled); `None` for a batch
+    /// the queue does not know. Woken by the change itself, not by polling: a one-case embedded
+    /// run lost up to a polling interval here.
+    pub async fn wait_final(&self, batch_id: &str) -> Option<Progress> {
+        loop {
+            // Registered before the state is read, so a change in between still wakes this.
+            let ended = self.ended.notified();
+            tokio::pin!(ended);
+            ended.as_mut().enable();
+            let progress = self.lock().batches.get(batch_id).map(|b| b.progress.clone())?;
+            if progress.state.is_final() {
+                return Some(progress);
+            }
+            ended.await;
+        }
     }
 
     /// Tasks dead-lettered so far, with their reasons (for tests and the embedded report).
@@ -251,6 +270,10 @@ impl Queue for MemoryQueue {
                 out.push(id.clone());
             }
         }
+        drop(g);
+        if !out.is_empty() {
+            self.ended.notify_waiters();
+        }
         Ok(out)
     }
 
@@ -302,6 +325,8 @@ impl Queue for MemoryQueue {
                 b.progress.finished_unix_ms = Some(now_unix_ms());
             }
         }
+        drop(g);
+        self.ended.notify_waiters();
         Ok(())
     }
 
@@ -325,7 +350,10 @@ impl Queue for MemoryQueue {
             b.progress.message = message.to_string();
             b.progress.finished_unix_ms = Some(now_unix_ms());
         }
-        Ok(b.progress.state)
+        let state = b.progress.state;
+        drop(g);
+        self.ended.notify_waiters();
+        Ok(state)
     }
 
     async fn recover(&self) -> Result<(), QueueError> {

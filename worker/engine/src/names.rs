@@ -15,7 +15,7 @@
 //! for the name index.
 
 use crate::smiles::Molecule;
-use crate::tsv::DataError;
+use crate::tsv::{Column, DataError};
 use std::borrow::Cow;
 use std::collections::HashMap;
 use std::sync::{Mutex, OnceLock};
@@ -132,50 +132,31 @@ impl Names {
     /// # Errors
     /// [`crate::DataError`] naming the line for a malformed row.
     pub fn from_tsv(tsv: &'static str) -> Result<Names, DataError> {
-        let mut provenance = String::new();
-        let mut header: Option<Vec<&str>> = None;
+        let table = crate::tsv::read(tsv, "names.tsv");
+        let col = |name| table.column(name);
+        let (smiles, cas, formula, names) = (col("smiles")?, col("cas")?, col("formula")?, col("names")?);
+        let melting = (col("melting_k")?, col("melting_source")?);
+        let boiling = (col("boiling_k")?, col("boiling_source")?);
         let mut compounds = Vec::new();
-        for (i, line) in tsv.lines().enumerate() {
-            if let Some(c) = line.strip_prefix('#') {
-                provenance.push_str(c.trim());
-                provenance.push('\n');
-                continue;
-            }
-            if line.trim().is_empty() {
-                continue;
-            }
-            let fields: Vec<&'static str> = line.split('\t').collect();
-            let Some(h) = &header else {
-                header = Some(fields);
-                continue;
-            };
-            let err = |what: &str| DataError {
-                place: format!("names.tsv line {}", i + 1),
-                reason: what.to_string(),
-            };
-            let col = |name: &str| -> Result<&'static str, DataError> {
-                let k = h.iter().position(|c| *c == name).ok_or_else(|| DataError {
-                    place: "names.tsv".into(),
-                    reason: format!("no column {name}"),
-                })?;
-                fields.get(k).copied().ok_or_else(|| err(&format!("missing {name}")))
-            };
-            let point = |v: &str, src: &str| -> Result<Option<(f64, &'static str)>, DataError> {
-                let t = col(v)?;
+        for row in table.rows() {
+            let point = |(v, src): (Column, Column)| -> Result<Option<(f64, &'static str)>, DataError> {
+                let t = row.at(v)?;
                 if t.is_empty() {
                     return Ok(None);
                 }
-                Ok(Some((t.parse().map_err(|_| err(&format!("bad number in {v}")))?, col(src)?)))
+                let value = t.parse().map_err(|_| row.error(&format!("bad number in {}", v.name())))?;
+                Ok(Some((value, row.at(src)?)))
             };
             compounds.push(Compound {
-                smiles: col("smiles")?,
-                cas: col("cas")?,
-                formula: col("formula")?,
-                names: col("names")?,
-                melting_k: point("melting_k", "melting_source")?,
-                boiling_k: point("boiling_k", "boiling_source")?,
+                smiles: row.at(smiles)?,
+                cas: row.at(cas)?,
+                formula: row.at(formula)?,
+                names: row.at(names)?,
+                melting_k: point(melting)?,
+                boiling_k: point(boiling)?,
             });
         }
+        let provenance = table.comments;
         Ok(Names {
             compounds,
             by_name: OnceLock::new(),

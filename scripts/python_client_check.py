@@ -13,6 +13,7 @@ import sys
 import time
 
 import grpc
+from parquet_check import check_table
 from thermosieve.v1 import screening_pb2 as pb
 from thermosieve.v1 import screening_pb2_grpc as rpc
 
@@ -101,38 +102,12 @@ def main():
     assert manifest["counts"]["cases"] == len(all_cases), manifest["counts"]
     print(f"python client: fetched cases.parquet ({len(data)} bytes); {manifest['counts']['cases']} cases, "
           f"{manifest['counts']['cases_error']} errors")
-    check_table(os.path.join(a.out, "cases.parquet"), all_cases)
+    rows, groups, checked = check_table(os.path.join(a.out, "cases.parquet"), rows=len(all_cases),
+                                        case_ids=[c.case_id for c in all_cases])
+    print(f"python client: pyarrow reads {rows} rows in {groups} row group(s); "
+          f"{checked} numeric column statistics bound their rows")
     print("1 passed, 0 failed")
     return 0
-
-
-def check_table(path, sent):
-    """Read the joined table with pyarrow, not the library that wrote it: the footer's row count,
-    the row groups', the case ids in order, and each row group's statistics against its rows."""
-    import pyarrow.parquet as pq
-
-    f = pq.ParquetFile(path)
-    md = f.metadata
-    groups = sum(md.row_group(i).num_rows for i in range(md.num_row_groups))
-    assert md.num_rows == groups == len(sent), (md.num_rows, groups, len(sent))
-    table = f.read()
-    assert table.column("case_id").to_pylist() == [c.case_id for c in sent], "case ids in input order"
-    checked = 0
-    for g in range(md.num_row_groups):
-        rows = f.read_row_group(g)
-        for j in range(md.num_columns):
-            st = md.row_group(g).column(j).statistics
-            col = rows.column(j)
-            if st is None:
-                continue
-            assert st.null_count == col.null_count, (md.schema.column(j).name, st.null_count, col.null_count)
-            values = [v for v in col.drop_null().to_pylist() if v == v]  # without NaN
-            if not st.has_min_max or not values or isinstance(values[0], str):
-                continue  # text bounds may be truncated; numbers must be exact
-            assert st.min <= min(values) and st.max >= max(values), (md.schema.column(j).name, st.min, st.max)
-            checked += 1
-    print(f"python client: pyarrow reads {md.num_rows} rows in {md.num_row_groups} row group(s); "
-          f"{checked} numeric column statistics bound their rows")
 
 
 if __name__ == "__main__":

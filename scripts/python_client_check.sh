@@ -1,7 +1,8 @@
 #!/usr/bin/env bash
 # A Python gRPC client generated from the .proto submits the demo batch to a real front
 # (redis-server + `thermosieve serve` + `thermosieve work`, all on loopback, all stopped at the
-# end) and fetches cases.parquet. Needs python3 with venv, redis-server, and the registry for pip.
+# end) and fetches cases.parquet; then reads an embedded run's tables with pyarrow. Needs python3
+# with venv, redis-server, and the registry for pip.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 ROOT=$(pwd)
@@ -103,3 +104,31 @@ assert f['thermosieve_queue_tasks{stage="waiting"}'] == 0 and f['thermosieve_que
 assert f['thermosieve_batches{state="done"}'] == 2 and f['thermosieve_batches{state="running"}'] == 0, f
 print(f"metrics: worker {cases:.0f} cases in {w['thermosieve_chunks_total']:.0f} chunks, front 2 submissions, 2 batches done, queue empty")
 PY
+
+# The embedded run's tables, read with pyarrow (scripts/parquet_check.py): the demo three times
+# over (ids made unique), 5,997 cases in chunks of 500, so the trends table is joined from 12
+# parts into 2 row groups and every offset past the first row group is read.
+"$VENV/bin/python" - examples/nightly_screen.csv "$WORK/thrice.csv" <<'PY'
+import csv
+import sys
+
+with open(sys.argv[1], newline="", encoding="utf-8") as f:
+    rows = list(csv.DictReader(f))
+with open(sys.argv[2], "w", newline="", encoding="utf-8") as f:
+    w = csv.DictWriter(f, fieldnames=list(rows[0]))
+    w.writeheader()
+    for copy in range(3):
+        for r in rows:
+            r = dict(r)
+            for k in ("case_id", "route_id"):
+                if copy and r[k]:
+                    r[k] = f"{r[k]}-copy{copy}"
+            w.writerow(r)
+PY
+"$BIN" run "$WORK/thrice.csv" --out "$WORK/embedded" --chunk-size 500 >/dev/null 2>&1
+CHECK=$("$VENV/bin/python" scripts/parquet_check.py "$WORK"/embedded/*/ "$WORK/thrice.csv")
+echo "$CHECK"
+if ! grep -q "trends.parquet: .* in 2 row group(s)" <<<"$CHECK"; then
+    echo "embedded check: the trends table should span 2 row groups" >&2
+    exit 1
+fi

@@ -1,7 +1,11 @@
-//! `thermosieve-bench`: N cases end to end (a `thermosieve serve` front + redis-server + 2
-//! `thermosieve work` processes + Parquet), then the same cases through the engine alone on the
-//! same number of threads, and the ratio. Reports cases/s and peak RSS (VmHWM) of the front
-//! and the workers. Everything runs on loopback and stops at the end.
+//! `thermosieve-bench`: the throughput targets in one run. N cases (the demo repeated)
+//! - through the embedded run in this process, against the engine alone on the same threads;
+//! - end to end through a `thermosieve serve` front, redis-server and 2 `thermosieve work`
+//!   processes, against the engine alone (CPU seconds and peak RSS of every process);
+//! - then a one-case `run` and an `eval` (median wall time of 15 each) and the binary's size;
+//!
+//! and a closing table of the six targets with the machine's core count. Everything runs on
+//! loopback and stops at the end. `--embedded` and `--stages` run one part alone.
 //!
 //! Build and run (release): `cargo build --release --locked -p thermosieve-cli -p thermosieve-bench`
 //! then `target/release/thermosieve-bench --cases 1000000`.
@@ -12,7 +16,8 @@ use anyhow::{bail, Context};
 #[global_allocator]
 static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
 use clap::Parser;
-use std::path::PathBuf;
+use std::ffi::OsStr;
+use std::path::{Path, PathBuf};
 use std::process::{Child, Command, Stdio};
 use std::time::{Duration, Instant};
 use thermosieve_cli::input;
@@ -212,9 +217,17 @@ fn stages(demo: &[CaseInput], n: usize, chunk_size: usize) -> anyhow::Result<()>
     Ok(())
 }
 
+/// What the embedded run measured.
+struct EmbeddedFigures {
+    /// Embedded cases/s over the engine's with the process view, same threads (target 1).
+    ratio: f64,
+    /// Peak RSS of this process, MB (target 5).
+    rss_mb: u64,
+}
+
 /// The embedded run against the engine alone, same threads, same process: the ratio the
 /// pipeline keeps of the engine's rate.
-async fn embedded(demo: &[CaseInput], n: usize, threads: usize, chunk_size: usize) -> anyhow::Result<()> {
+async fn embedded(demo: &[CaseInput], n: usize, threads: usize, chunk_size: usize) -> anyhow::Result<EmbeddedFigures> {
     let dir = std::env::temp_dir().join(format!("thermosieve-embedded-{}", std::process::id()));
     std::fs::create_dir_all(&dir)?;
     let ticks = clock_ticks_per_second();
@@ -252,7 +265,53 @@ async fn embedded(demo: &[CaseInput], n: usize, threads: usize, chunk_size: usiz
     println!("  peak RSS (VmHWM, this process): {rss_mb} MB");
     println!("engine with the process view, {threads} threads: {engine_rate:.0} cases/s, {engine_cpu:.1} CPU s");
     println!("ratio embedded / engine: {:.2} (target >= 0.50)", run_rate / engine_rate);
-    Ok(())
+    Ok(EmbeddedFigures {
+        ratio: run_rate / engine_rate,
+        rss_mb,
+    })
+}
+
+/// What the service run measured.
+struct ServiceFigures {
+    /// CPU seconds of all workers over the engine's for the same cases (target 2).
+    worker_cpu_ratio: f64,
+    /// Wall seconds × cores over the CPU seconds of every process (target 3).
+    idle_ratio: f64,
+    front_mb: u64,
+    workers_mb: Vec<u64>,
+}
+
+/// Median wall milliseconds of `runs` runs of `bin` with `args` (each after `before`).
+fn median_ms(bin: &Path, args: &[&OsStr], runs: usize, before: impl Fn()) -> anyhow::Result<f64> {
+    let mut ms = Vec::with_capacity(runs);
+    for _ in 0..runs {
+        before();
+        let t0 = Instant::now();
+        let status = Command::new(bin).args(args).stdout(Stdio::null()).stderr(Stdio::null()).status()?;
+        ms.push(t0.elapsed().as_secs_f64() * 1e3);
+        if !status.success() {
+            bail!("{} {:?} failed: {status}", bin.display(), args);
+        }
+    }
+    ms.sort_by(f64::total_cmp);
+    Ok(ms[runs / 2])
+}
+
+/// Target 4: the median wall time of a one-case `run` (the input's first row; the file cache
+/// warm after the first run) and of an `eval` of a formula reaction, 15 runs each.
+fn fixed_costs(bin: &Path, input: &Path) -> anyhow::Result<(f64, f64)> {
+    let dir = std::env::temp_dir().join(format!("thermosieve-fixed-{}", std::process::id()));
+    std::fs::create_dir_all(&dir)?;
+    let text = std::fs::read_to_string(input).with_context(|| format!("reading {}", input.display()))?;
+    let one = dir.join(input.file_name().context("input file name")?);
+    std::fs::write(&one, text.lines().take(2).map(|l| format!("{l}\n")).collect::<String>())?;
+    let out = dir.join("out");
+    let run_args = [OsStr::new("run"), one.as_os_str(), OsStr::new("--out"), out.as_os_str()];
+    let run = median_ms(bin, &run_args, 15, || drop(std::fs::remove_dir_all(&out)))?;
+    let eval_args = [OsStr::new("eval"), OsStr::new("CH4 + 2 O2 -> CO2 + 2 H2O")];
+    let eval = median_ms(bin, &eval_args, 15, || ())?;
+    let _ = std::fs::remove_dir_all(&dir);
+    Ok((run, eval))
 }
 
 #[tokio::main]
@@ -268,9 +327,56 @@ async fn main() -> anyhow::Result<()> {
         let threads = a
             .threads
             .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()));
-        return embedded(&demo, a.cases, threads, a.chunk_size as usize).await;
+        embedded(&demo, a.cases, threads, a.chunk_size as usize).await?;
+        return Ok(());
     }
-    let bin = match a.thermosieve {
+    let bin = thermosieve_binary(a.thermosieve.clone())?;
+    let demo: Vec<CaseInput> = input::open(&a.input, None)?.collect();
+    let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
+    let embedded = embedded(&demo, a.cases, threads, a.chunk_size as usize).await?;
+    let service = service(&bin, &demo, &a).await?;
+    let (run_ms, eval_ms) = fixed_costs(&bin, &a.input)?;
+    let binary_mb = std::fs::metadata(&bin)?.len() as f64 / 1e6;
+    let met = |ok: bool| if ok { "met" } else { "not met" };
+    println!();
+    println!("targets, {} cases, {threads} cores:", a.cases);
+    println!(
+        "  1. embedded / engine                {:>6.2}   (>= 0.50)  {}",
+        embedded.ratio,
+        met(embedded.ratio >= 0.5)
+    );
+    println!(
+        "  2. worker CPU / engine CPU          {:>6.2}x  (<= 1.5x)  {}",
+        service.worker_cpu_ratio,
+        met(service.worker_cpu_ratio <= 1.5)
+    );
+    println!(
+        "  3. wall x cores / CPU of all        {:>6.2}   (<= 1.25)  {}",
+        service.idle_ratio,
+        met(service.idle_ratio <= 1.25)
+    );
+    println!(
+        "  4. one-case run {run_ms:.0} ms (< 50), eval {eval_ms:.0} ms (< 20)  {}",
+        met(run_ms < 50.0 && eval_ms < 20.0)
+    );
+    let peak = embedded
+        .rss_mb
+        .max(service.front_mb)
+        .max(service.workers_mb.iter().copied().max().unwrap_or(0));
+    println!(
+        "  5. peak RSS: embedded {} MB, front {} MB, workers {:?} MB (< 300; flat: compare with --cases 5000000)  {}",
+        embedded.rss_mb,
+        service.front_mb,
+        service.workers_mb,
+        met(peak < 300)
+    );
+    println!("  6. binary {binary_mb:.1} MB (<= 60)  {}", met(binary_mb <= 60.0));
+    Ok(())
+}
+
+/// The thermosieve binary the service run starts.
+fn thermosieve_binary(given: Option<PathBuf>) -> anyhow::Result<PathBuf> {
+    let bin = match given {
         Some(b) => b,
         None => std::env::current_exe()?.parent().context("exe dir")?.join("thermosieve"),
     };
@@ -280,7 +386,14 @@ async fn main() -> anyhow::Result<()> {
             bin.display()
         );
     }
-    let demo: Vec<CaseInput> = input::open(&a.input, None)?.collect();
+    Ok(bin)
+}
+
+/// N cases through a front, redis-server and the workers, against the engine alone.
+async fn service(bin: &Path, demo: &[CaseInput], a: &Args) -> anyhow::Result<ServiceFigures> {
+    let ticks = clock_ticks_per_second();
+    // This process's CPU before the run: the embedded run may have come first.
+    let cpu_self0 = cpu_seconds("self", ticks);
     let dir = std::env::temp_dir().join(format!("thermosieve-bench-{}", std::process::id()));
     std::fs::create_dir_all(&dir)?;
     let rport = free_port()?;
@@ -310,7 +423,7 @@ async fn main() -> anyhow::Result<()> {
         ("THERMOSIEVE_LOG", "warn".into()),
     ];
     let front = Proc(
-        Command::new(&bin)
+        Command::new(bin)
             .args(["serve", "--listen", &format!("127.0.0.1:{fport}")])
             .envs(env.clone())
             .stdout(Stdio::null())
@@ -319,7 +432,7 @@ async fn main() -> anyhow::Result<()> {
     let mut workers = Vec::new();
     for w in 0..a.workers {
         workers.push(Proc(
-            Command::new(&bin)
+            Command::new(bin)
                 .args(["work", "--threads", "1", "--consumer", &format!("bench-{w}")])
                 .envs(env.clone())
                 .stdout(Stdio::null())
@@ -336,12 +449,13 @@ async fn main() -> anyhow::Result<()> {
     let t0 = Instant::now();
     let (tx, rx) = tokio::sync::mpsc::channel(1024);
     let n = a.cases;
-    let demo2 = demo.clone();
+    let demo2 = demo.to_vec();
+    let chunk_size = a.chunk_size;
     let feeder = tokio::task::spawn_blocking(move || {
         let _ = tx.blocking_send(pb::SubmitBatchRequest {
             item: Some(pb::submit_batch_request::Item::Header(pb::BatchHeader {
                 label: "bench".into(),
-                chunk_size: a.chunk_size,
+                chunk_size,
                 ..Default::default()
             })),
         });
@@ -373,9 +487,8 @@ async fn main() -> anyhow::Result<()> {
     }
     let manifest: serde_json::Value = serde_json::from_slice(&std::fs::read(dir.join("results").join(&id).join("manifest.json"))?)?;
     let finalize_s = manifest["timings"]["finalize_seconds"].as_f64().unwrap_or(f64::NAN);
-    let ticks = clock_ticks_per_second();
     let cpu = |pid: u32| cpu_seconds(&pid.to_string(), ticks);
-    let (cpu_front, cpu_redis, cpu_client) = (cpu(front.0.id()), cpu(redis.0.id()), cpu_seconds("self", ticks));
+    let (cpu_front, cpu_redis, cpu_client) = (cpu(front.0.id()), cpu(redis.0.id()), cpu_seconds("self", ticks) - cpu_self0);
     let cpu_workers: Vec<f64> = workers.iter().map(|w| cpu(w.0.id())).collect();
     let front_kb = vm_hwm_kb(front.0.id());
     let worker_kb: Vec<u64> = workers.iter().map(|w| vm_hwm_kb(w.0.id())).collect();
@@ -383,8 +496,8 @@ async fn main() -> anyhow::Result<()> {
     drop(workers);
     drop(front);
     drop(redis);
-    let engine_rate = engine_only(&demo, n, a.workers, false);
-    let engine_process_rate = engine_only(&demo, n, a.workers, true);
+    let engine_rate = engine_only(demo, n, a.workers, false);
+    let engine_process_rate = engine_only(demo, n, a.workers, true);
     println!("cases: {n} ({} errors), workers: {} x 1 thread", last.cases_error, a.workers);
     println!("submit stream finished after {submitted:.1} s");
     println!("end to end: {e2e_s:.1} s, {e2e_rate:.0} cases/s (front + redis + workers + parquet, finalize included)");
@@ -404,15 +517,17 @@ async fn main() -> anyhow::Result<()> {
         cpu_workers.iter().map(|c| (c * 10.0).round() / 10.0).collect::<Vec<_>>(),
         e2e_s
     );
-    println!(
-        "engine CPU seconds for these cases (from the rate with the process view): {:.1}",
-        n as f64 / engine_process_rate * a.workers as f64
-    );
-    println!(
-        "peak RSS (VmHWM): front {} MB, workers {:?} MB",
-        front_kb / 1024,
-        worker_kb.iter().map(|k| k / 1024).collect::<Vec<_>>()
-    );
+    let engine_cpu = n as f64 / engine_process_rate * a.workers as f64;
+    println!("engine CPU seconds for these cases (from the rate with the process view): {engine_cpu:.1}");
+    let workers_mb: Vec<u64> = worker_kb.iter().map(|k| k / 1024).collect();
+    println!("peak RSS (VmHWM): front {} MB, workers {workers_mb:?} MB", front_kb / 1024);
     let _ = std::fs::remove_dir_all(&dir);
-    Ok(())
+    let cores = std::thread::available_parallelism().map_or(1, |c| c.get()) as f64;
+    let worker_cpu: f64 = cpu_workers.iter().sum();
+    Ok(ServiceFigures {
+        worker_cpu_ratio: worker_cpu / engine_cpu,
+        idle_ratio: e2e_s * cores / (cpu_client + cpu_front + cpu_redis + worker_cpu),
+        front_mb: front_kb / 1024,
+        workers_mb,
+    })
 }

@@ -287,10 +287,16 @@ fn median_ms(bin: &Path, args: &[&OsStr], runs: usize, before: impl Fn()) -> any
     for _ in 0..runs {
         before();
         let t0 = Instant::now();
-        let status = Command::new(bin).args(args).stdout(Stdio::null()).stderr(Stdio::null()).status()?;
+        let out = Command::new(bin).args(args).stdout(Stdio::null()).stderr(Stdio::piped()).output()?;
         ms.push(t0.elapsed().as_secs_f64() * 1e3);
-        if !status.success() {
-            bail!("{} {:?} failed: {status}", bin.display(), args);
+        if !out.status.success() {
+            bail!(
+                "{} {:?} failed ({}): {}",
+                bin.display(),
+                args,
+                out.status,
+                String::from_utf8_lossy(&out.stderr)
+            );
         }
     }
     ms.sort_by(f64::total_cmp);
@@ -446,6 +452,12 @@ async fn service(bin: &Path, demo: &[CaseInput], a: &Args) -> anyhow::Result<Ser
             Err(_) => tokio::time::sleep(Duration::from_millis(100)).await,
         }
     };
+    // CPU from here on, as the wall time: not the processes' start-up (a worker parses its
+    // tables as it starts).
+    let cpu = |pid: u32| cpu_seconds(&pid.to_string(), ticks);
+    let start_cpu = |p: &Proc| cpu(p.0.id());
+    let (front0, redis0) = (start_cpu(&front), start_cpu(&redis));
+    let workers0: Vec<f64> = workers.iter().map(start_cpu).collect();
     let t0 = Instant::now();
     let (tx, rx) = tokio::sync::mpsc::channel(1024);
     let n = a.cases;
@@ -487,9 +499,12 @@ async fn service(bin: &Path, demo: &[CaseInput], a: &Args) -> anyhow::Result<Ser
     }
     let manifest: serde_json::Value = serde_json::from_slice(&std::fs::read(dir.join("results").join(&id).join("manifest.json"))?)?;
     let finalize_s = manifest["timings"]["finalize_seconds"].as_f64().unwrap_or(f64::NAN);
-    let cpu = |pid: u32| cpu_seconds(&pid.to_string(), ticks);
-    let (cpu_front, cpu_redis, cpu_client) = (cpu(front.0.id()), cpu(redis.0.id()), cpu_seconds("self", ticks) - cpu_self0);
-    let cpu_workers: Vec<f64> = workers.iter().map(|w| cpu(w.0.id())).collect();
+    let (cpu_front, cpu_redis, cpu_client) = (
+        start_cpu(&front) - front0,
+        start_cpu(&redis) - redis0,
+        cpu_seconds("self", ticks) - cpu_self0,
+    );
+    let cpu_workers: Vec<f64> = workers.iter().zip(&workers0).map(|(w, c0)| start_cpu(w) - c0).collect();
     let front_kb = vm_hwm_kb(front.0.id());
     let worker_kb: Vec<u64> = workers.iter().map(|w| vm_hwm_kb(w.0.id())).collect();
     let e2e_rate = n as f64 / e2e_s;
@@ -497,7 +512,10 @@ async fn service(bin: &Path, demo: &[CaseInput], a: &Args) -> anyhow::Result<Ser
     drop(front);
     drop(redis);
     let engine_rate = engine_only(demo, n, a.workers, false);
+    let cpu_engine0 = cpu_seconds("self", ticks);
     let engine_process_rate = engine_only(demo, n, a.workers, true);
+    // Measured, not wall time × threads: threads that end unevenly would flatter the ratio.
+    let engine_cpu = cpu_seconds("self", ticks) - cpu_engine0;
     println!("cases: {n} ({} errors), workers: {} x 1 thread", last.cases_error, a.workers);
     println!("submit stream finished after {submitted:.1} s");
     println!("end to end: {e2e_s:.1} s, {e2e_rate:.0} cases/s (front + redis + workers + parquet, finalize included)");
@@ -517,8 +535,10 @@ async fn service(bin: &Path, demo: &[CaseInput], a: &Args) -> anyhow::Result<Ser
         cpu_workers.iter().map(|c| (c * 10.0).round() / 10.0).collect::<Vec<_>>(),
         e2e_s
     );
-    let engine_cpu = n as f64 / engine_process_rate * a.workers as f64;
-    println!("engine CPU seconds for these cases (from the rate with the process view): {engine_cpu:.1}");
+    println!(
+        "engine CPU seconds for these cases (engine with the process view, {} threads): {engine_cpu:.1}",
+        a.workers
+    );
     let workers_mb: Vec<u64> = worker_kb.iter().map(|k| k / 1024).collect();
     println!("peak RSS (VmHWM): front {} MB, workers {workers_mb:?} MB", front_kb / 1024);
     let _ = std::fs::remove_dir_all(&dir);

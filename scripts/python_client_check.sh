@@ -125,7 +125,7 @@ with open(sys.argv[2], "w", newline="", encoding="utf-8") as f:
                     r[k] = f"{r[k]}-copy{copy}"
             w.writerow(r)
 PY
-"$BIN" run "$WORK/thrice.csv" --out "$WORK/embedded" --chunk-size 500 >/dev/null 2>&1
+THERMOSIEVE_LOG=warn "$BIN" run "$WORK/thrice.csv" --out "$WORK/embedded" --chunk-size 500 >/dev/null
 CHECK=$("$VENV/bin/python" scripts/parquet_check.py "$WORK"/embedded/*/ "$WORK/thrice.csv")
 echo "$CHECK"
 if ! grep -q "trends.parquet: .* in 2 row group(s)" <<<"$CHECK"; then

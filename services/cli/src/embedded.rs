@@ -47,19 +47,35 @@ pub async fn run_cases(
     cfg.consumer = "embedded".into();
     cfg.block = Duration::from_millis(200);
     let (stop_tx, stop_rx) = tokio::sync::oneshot::channel::<()>();
-    let worker = tokio::spawn(thermosieve_worker::run(queue.clone(), cfg, async move {
+    let mut worker = tokio::spawn(thermosieve_worker::run(queue.clone(), cfg, async move {
         let _ = stop_rx.await;
     }));
-    let mut ingest = Ingest::start(queue.clone(), spec, limits).await?;
-    for case in cases {
-        ingest.push(case).await?;
-    }
-    let submitted = ingest.finish().await?;
-    let Some(progress) = memory.wait_final(&batch_id).await else {
-        return Err(FrontError::BatchEnded {
+    let batch = async {
+        let mut ingest = Ingest::start(queue.clone(), spec, limits).await?;
+        for case in cases {
+            ingest.push(case).await?;
+        }
+        let submitted = ingest.finish().await?;
+        let progress = memory.wait_final(&batch_id).await.ok_or_else(|| FrontError::BatchEnded {
             state: "lost",
             message: "the in-process queue lost the batch".into(),
-        });
+        })?;
+        Ok::<_, FrontError>((submitted, progress))
+    };
+    // A worker returns only when told to stop: one that ends first (an engine thread that could
+    // not start, a panic) would leave the batch waiting for ever.
+    let (submitted, progress) = tokio::select! {
+        ended = batch => ended?,
+        early = &mut worker => {
+            return Err(match early {
+                Ok(Err(e)) => e.into(),
+                Err(source) => FrontError::Task { what: "the worker", source },
+                Ok(Ok(_)) => FrontError::BatchEnded {
+                    state: "failed",
+                    message: "the worker stopped before the batch ended".into(),
+                },
+            });
+        }
     };
     let _ = stop_tx.send(());
     let worker = worker.await.map_err(|source| FrontError::Task {

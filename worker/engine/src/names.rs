@@ -10,9 +10,10 @@
 //! shipped in `chemicals` (derived from PubChem, public domain); melting and boiling points only
 //! from openly licensed tables (origins and terms in `scripts/README-open-data.md`).
 //!
-//! The file is 3 MB with some 60,000 names: its rows are cut once (a few milliseconds) and each
-//! index is built the first time it is asked for, so a run that never writes a name does not pay
-//! for the name index.
+//! The file is 3 MB with some 60,000 names: its rows are cut once (a few milliseconds; a worker
+//! does it on a thread of its own as it starts) and each index is built the first time it is
+//! asked for, so a run that never writes a name does not pay for the name index. Every column
+//! the layout names must be in the header, even one whose cells are all empty.
 
 use crate::smiles::Molecule;
 use crate::tsv::{Column, DataError};

@@ -118,6 +118,7 @@ impl<'a> Row<'_, 'a> {
     /// # Errors
     /// [`DataError`] naming the file and line when the row is too short.
     pub fn at(&self, c: Column<'_>) -> Result<&'a str, DataError> {
+        debug_assert_eq!(self.tsv.header.get(c.k), Some(&c.name), "a column of another file");
         self.fields
             .get(c.k)
             .copied()

@@ -368,6 +368,40 @@ mod tests {
     // The state machine (chunks, reclaim, finalize, final states, depth limit, lease) is
     // checked against both backends in tests/e2e/queue_conformance.rs.
 
+    /// The embedded run waits on this instead of polling: a state change that did not notify
+    /// would leave the waiter asleep, and this test timed out.
+    #[tokio::test]
+    async fn a_waiter_wakes_when_its_batch_ends_and_not_before() {
+        let q = std::sync::Arc::new(MemoryQueue::new());
+        let id = "a".repeat(32);
+        let spec = BatchSpec {
+            batch_id: id.clone(),
+            temperatures_k: vec![298.15],
+            default_conditions: Conditions::default(),
+            chunk_size: 10,
+            label: String::new(),
+            created_unix_ms: 0,
+            tenant: String::new(),
+        };
+        q.create_batch(&spec).await.unwrap();
+        assert!(q.wait_final(&"b".repeat(32)).await.is_none(), "an unknown batch is not waited for");
+        let waiter = tokio::spawn({
+            let (q, id) = (q.clone(), id.clone());
+            async move { q.wait_final(&id).await }
+        });
+        // Still receiving: the waiter must not have returned.
+        tokio::time::sleep(Duration::from_millis(50)).await;
+        assert!(!waiter.is_finished(), "woke before the batch ended");
+        q.stop_batch(&id, BatchState::Cancelled, "stopped by the test").await.unwrap();
+        let progress = tokio::time::timeout(Duration::from_secs(10), waiter)
+            .await
+            .expect("the waiter is woken by the change, not left asleep")
+            .unwrap()
+            .unwrap();
+        assert_eq!(progress.state, BatchState::Cancelled);
+        assert_eq!(progress.message, "stopped by the test");
+    }
+
     #[test]
     fn conditions_with_an_unknown_key_are_refused() {
         let e = serde_json::from_str::<Conditions>(r#"{"scale_mol": 1.0, "scale_kmol": 2.0}"#).unwrap_err();

@@ -398,8 +398,6 @@ fn thermosieve_binary(given: Option<PathBuf>) -> anyhow::Result<PathBuf> {
 /// N cases through a front, redis-server and the workers, against the engine alone.
 async fn service(bin: &Path, demo: &[CaseInput], a: &Args) -> anyhow::Result<ServiceFigures> {
     let ticks = clock_ticks_per_second();
-    // This process's CPU before the run: the embedded run may have come first.
-    let cpu_self0 = cpu_seconds("self", ticks);
     let dir = std::env::temp_dir().join(format!("thermosieve-bench-{}", std::process::id()));
     std::fs::create_dir_all(&dir)?;
     let rport = free_port()?;
@@ -453,10 +451,10 @@ async fn service(bin: &Path, demo: &[CaseInput], a: &Args) -> anyhow::Result<Ser
         }
     };
     // CPU from here on, as the wall time: not the processes' start-up (a worker parses its
-    // tables as it starts).
+    // tables as it starts), nor this process's embedded run before.
     let cpu = |pid: u32| cpu_seconds(&pid.to_string(), ticks);
     let start_cpu = |p: &Proc| cpu(p.0.id());
-    let (front0, redis0) = (start_cpu(&front), start_cpu(&redis));
+    let (front0, redis0, cpu_self0) = (start_cpu(&front), start_cpu(&redis), cpu_seconds("self", ticks));
     let workers0: Vec<f64> = workers.iter().map(start_cpu).collect();
     let t0 = Instant::now();
     let (tx, rx) = tokio::sync::mpsc::channel(1024);

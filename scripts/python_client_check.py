@@ -102,10 +102,8 @@ def main():
     assert manifest["counts"]["cases"] == len(all_cases), manifest["counts"]
     print(f"python client: fetched cases.parquet ({len(data)} bytes); {manifest['counts']['cases']} cases, "
           f"{manifest['counts']['cases_error']} errors")
-    rows, groups, checked = check_table(os.path.join(a.out, "cases.parquet"), rows=len(all_cases),
-                                        case_ids=[c.case_id for c in all_cases])
-    print(f"python client: pyarrow reads {rows} rows in {groups} row group(s); "
-          f"{checked} numeric column statistics equal their rows'")
+    print("python client:", check_table(os.path.join(a.out, "cases.parquet"), rows=len(all_cases),
+                                         case_ids=[c.case_id for c in all_cases]))
     print("1 passed, 0 failed")
     return 0
 

@@ -201,10 +201,10 @@ pub async fn run(
         shutdown.await;
         let _ = stop_tx.send(true);
     });
+    preload_tables();
     if !cfg.keep_parts {
         remove_leftovers(queue.as_ref(), &cfg.results_dir).await;
     }
-    preload_tables();
     let mut slots = Vec::new();
     let mut threads = Vec::new();
     for i in 0..cfg.threads.max(1) {
